@@ -1,0 +1,35 @@
+#pragma once
+/// Locale-independent number formatting and plain-text tables, shared by every module.
+
+#include <string>
+#include <vector>
+
+namespace stipple {
+
+/// `value` with `decimals` digits after the point, always with '.' as separator.
+[[nodiscard]] std::string format_fixed(double value, int decimals);
+/// `value` with about `digits` significant digits (fixed notation for readable ranges).
+[[nodiscard]] std::string format_significant(double value, int digits);
+/// `value` in the shortest general form ("1.5", "0.001", "2e-07"), '.' as separator.
+[[nodiscard]] std::string format_general(double value);
+/// A p-value for people: 3 significant digits, "<0.0001" below that.
+[[nodiscard]] std::string format_p_value(double p);
+
+/// A plain-text table with a header, columns padded to their widest cell.
+/// Columns whose header is listed as left-aligned are padded on the right.
+class TextTable {
+ public:
+  explicit TextTable(std::vector<std::string> header, std::size_t left_aligned_columns = 1);
+  void add_row(std::vector<std::string> row);
+  [[nodiscard]] std::string render(const std::string& indent = "  ") const;
+
+ private:
+  std::vector<std::string> header_;
+  std::vector<std::vector<std::string>> rows_;
+  std::size_t left_aligned_;
+};
+
+/// RFC 4180 quoting of one CSV field.
+[[nodiscard]] std::string csv_field(const std::string& text);
+
+}  // namespace stipple

@@ -1,0 +1,88 @@
+#pragma once
+/// Intensity (density) of each species per plot and pooled across plots, with exact
+/// Poisson intervals, tests that plots share one intensity and one species mix, and
+/// correction for imperfect detection.
+
+#include <cstdint>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "stipple/geometry/survey.hpp"
+#include "stipple/intensity/detection.hpp"
+#include "stipple/intensity/pearson.hpp"
+#include "stipple/intensity/poisson.hpp"
+#include "stipple/simulate/engine.hpp"
+
+namespace stipple {
+
+struct DensityOptions {
+  AreaUnit unit = AreaUnit::hectare;
+  double confidence = 0.95;         ///< two-sided level of every interval; alpha = 1 - level
+  DetectionTable detection;         ///< p = 1 for every species unless given
+  std::uint64_t seed = default_seed;
+  std::size_t simulations = 9999;   ///< Monte Carlo draws when expected counts are small
+};
+
+/// One plot x species (species empty = all species together, the superposed process).
+struct DensityEstimate {
+  std::string plot;
+  std::optional<std::string> species;
+  std::uint64_t count = 0;
+  double area = 0.0;        ///< in the reporting unit
+  double intensity = 0.0;   ///< count / area, per unit
+  Interval ci;              ///< exact Garwood interval, per unit
+  CorrectedIntensity corrected;
+};
+
+/// Do the plots share one intensity? Pearson X2 of the plot counts against expectations
+/// proportional to plot area, df = plots - 1 (common practice; e.g. Diggle 2003, ch. 2).
+struct HomogeneityTest {
+  ChiSquareTest chi_square;
+  double p_value = 1.0;         ///< Monte Carlo when any expected count < 5, else chi-square
+  bool monte_carlo = false;
+  double dispersion_ratio = 0.0;  ///< X2 / df: about 1 when plots share one intensity
+  /// Between-plot (ratio-estimator) standard error of the pooled intensity:
+  /// var = k / (k - 1) * sum (n_i - R a_i)^2 / A^2, R = sum n / sum a
+  /// (Cochran W.G. 1977, Sampling Techniques, 3rd ed., ch. 6, from memory: chapter).
+  double between_plot_se = 0.0;
+  Interval between_plot_ci;     ///< R +- t_{k-1} se, lower limit clipped at 0
+  bool significant = false;     ///< p_value < alpha
+};
+
+/// One species (or all together) pooled over plots: sum n / sum |W| (superposition).
+struct PooledEstimate {
+  std::optional<std::string> species;
+  std::size_t plots = 0;
+  std::uint64_t count = 0;
+  double area = 0.0;
+  double intensity = 0.0;
+  Interval ci;
+  CorrectedIntensity corrected;
+  std::optional<HomogeneityTest> homogeneity;  ///< with two or more plots and n > 0
+};
+
+/// Is the species mix the same in every plot? Pearson X2 of the plot x species table.
+struct CompositionTest {
+  ChiSquareTest chi_square;
+  double p_value = 1.0;
+  bool monte_carlo = false;
+  bool significant = false;
+};
+
+struct DensityResult {
+  AreaUnit unit = AreaUnit::hectare;
+  double confidence = 0.95;
+  double alpha = 0.05;
+  std::uint64_t seed = default_seed;
+  std::size_t simulations = 0;
+  std::vector<DensityEstimate> estimates;  ///< per plot: each species, then all together
+  std::vector<PooledEstimate> pooled;      ///< each species, then all together
+  std::optional<CompositionTest> composition;  ///< with two or more plots and species
+};
+
+/// Densities of every species in every plot of the survey, pooled, tested and corrected.
+/// Throws InputError when a species has no detection probability.
+[[nodiscard]] DensityResult estimate_density(const Survey& survey, const DensityOptions& options);
+
+}  // namespace stipple

@@ -1,0 +1,69 @@
+#pragma once
+/// Reading sightings, plot windows and detection tables from any OGR vector source
+/// (GeoPackage, Shapefile, GeoJSON, GPX, KML, CSV with coordinate columns), in one
+/// projected analysis CRS in metres.
+
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "stipple/geometry/survey.hpp"
+#include "stipple/intensity/detection.hpp"
+
+namespace stipple {
+
+/// A vector source and, optionally, the layer to read.
+struct SourceSpec {
+  std::string path;
+  std::optional<std::string> layer;
+};
+
+/// Where the survey windows come from.
+enum class WindowMode {
+  plots,        ///< polygons from --plots
+  convex_hull,  ///< Ripley-Rasson enlarged convex hull of the sightings (model-based)
+};
+
+struct SurveyReadOptions {
+  SourceSpec sightings;
+  std::optional<SourceSpec> plots;
+  WindowMode window = WindowMode::plots;
+  std::string species_field = "species";
+  std::string plot_field = "plot";
+  bool plot_field_given = false;      ///< the user named --plot-field explicitly
+  std::optional<std::string> x_field; ///< CSV coordinate columns; default x/lon/longitude/easting
+  std::optional<std::string> y_field; ///< default y/lat/latitude/northing
+  std::optional<std::string> target_crs;  ///< --crs: analysis CRS, projected, metres
+  std::optional<std::string> assume_crs;  ///< --assume-crs: for layers without a CRS
+  bool repair_geometry = false;           ///< fix invalid polygons with GDAL's MakeValid
+};
+
+/// The analysis CRS and why it was chosen.
+struct AnalysisCrs {
+  std::string code;    ///< "EPSG:32630", or the CRS name when it has no authority code
+  std::string name;    ///< "WGS 84 / UTM zone 30N"
+  std::string reason;  ///< how it was chosen, for the output
+};
+
+/// A survey read from its sources and assigned to plots.
+struct LoadedSurvey {
+  AnalysisCrs crs;
+  std::string sightings_label;  ///< "path: layer 'name'"
+  std::string plots_label;      ///< empty for convex-hull windows
+  WindowMode window = WindowMode::plots;
+  Survey survey;
+  std::vector<std::string> notes;     ///< facts worth printing (reprojection, repairs)
+  std::vector<std::string> warnings;  ///< things the user must know (exclusions, model-based)
+};
+
+/// Reads sightings and windows, reprojects them to the analysis CRS and assigns every
+/// sighting to a plot. Throws InputError naming the file, layer, field or feature.
+[[nodiscard]] LoadedSurvey load_survey(const SurveyReadOptions& options);
+
+/// Reads a CSV (or any OGR table) of detection probabilities with columns `species`,
+/// `p` and optionally `se`; `fallback` covers species not listed. Throws InputError
+/// naming the file and row for a bad value or a repeated species.
+[[nodiscard]] DetectionTable read_detection_table(const std::string& path,
+                                                  std::optional<Detection> fallback);
+
+}  // namespace stipple

@@ -1,0 +1,29 @@
+#!/usr/bin/env bash
+# Regenerates the Harrowmere Wood demo data in this folder (needs python3 and gdal-bin).
+set -euo pipefail
+cd "$(dirname "$0")"
+work=$(mktemp -d)
+trap 'rm -rf "$work"' EXIT
+python3 make_demo.py "$work"
+
+rm -rf reserve.gpkg shapefiles gps-sightings.csv
+ogr2ogr -f GPKG reserve.gpkg "$work/plots.csv" -nln plots -a_srs EPSG:32630 \
+  -oo GEOM_POSSIBLE_NAMES=wkt -oo KEEP_GEOM_COLUMNS=NO -nlt MULTIPOLYGON
+ogr2ogr -f GPKG -update reserve.gpkg "$work/sightings.csv" -nln sightings -a_srs EPSG:32630 \
+  -oo X_POSSIBLE_NAMES=x -oo Y_POSSIBLE_NAMES=y -oo KEEP_GEOM_COLUMNS=NO -nlt POINT
+
+mkdir -p shapefiles
+for plot in north glade ridge burn; do
+  ogr2ogr -f "ESRI Shapefile" "shapefiles/${plot}-plot.shp" reserve.gpkg plots -where "plot = '${plot}'"
+  ogr2ogr -f "ESRI Shapefile" "shapefiles/${plot}-sightings.shp" reserve.gpkg sightings \
+    -where "plot = '${plot}'"
+done
+
+# GPS sightings as a handheld exports them: longitude/latitude (WGS 84), no plot column.
+ogr2ogr -f CSV "$work/gps-lonlat.csv" "$work/gps.csv" -s_srs EPSG:32630 -t_srs EPSG:4326 \
+  -oo X_POSSIBLE_NAMES=x -oo Y_POSSIBLE_NAMES=y -oo KEEP_GEOM_COLUMNS=NO -lco GEOMETRY=AS_XY
+sed -E '1s/^X,Y,(.*[^,]),?$/lon,lat,\1/' "$work/gps-lonlat.csv" > gps-sightings.csv
+
+cp "$work/detection.csv" detection.csv
+cp "$work/generating-values.json" generating-values.json
+echo "demo data written to $(pwd)"

@@ -1,0 +1,23 @@
+#!/usr/bin/env bash
+# Installs everything stipple needs to build, test and regenerate its demo data, from
+# Debian's packages (Debian 12 / Ubuntu 22.04 or later). Run as root or with sudo.
+set -euo pipefail
+packages=(
+  build-essential cmake            # compiler and build system
+  libgdal-dev gdal-bin             # GDAL/OGR vector I/O, OSR/PROJ reprojection; ogr2ogr for demo data
+  libboost-dev                     # Boost.Geometry, Boost.Math, Boost.Random (header-only)
+  libcli11-dev                     # command-line option parsing
+  nlohmann-json3-dev               # JSON output
+  libgtest-dev libgmock-dev        # GoogleTest
+  libbenchmark-dev                 # Google Benchmark (bench/)
+  python3                          # demo-data generator
+)
+if [ "$(id -u)" -ne 0 ]; then sudo=sudo; else sudo=; fi
+missing=()
+for p in "${packages[@]}"; do
+  dpkg-query -W -f='${Status}' "$p" 2>/dev/null | grep -q "install ok installed" || missing+=("$p")
+done
+if [ ${#missing[@]} -gt 0 ]; then
+  $sudo apt-get update -qq
+  DEBIAN_FRONTEND=noninteractive $sudo apt-get install -y -qq --no-install-recommends "${missing[@]}"
+fi

@@ -1,0 +1,17 @@
+#pragma once
+// One function per subcommand: registers its options and returns the action to run.
+
+#include <functional>
+
+#include <CLI/CLI.hpp>
+
+namespace stipple::cli {
+
+using Action = std::function<int()>;
+
+/// `stipple density`: per-plot and pooled intensities, detection-corrected.
+Action add_density_command(CLI::App& app);
+/// `stipple inspect`: what a vector source holds.
+Action add_inspect_command(CLI::App& app);
+
+}  // namespace stipple::cli

@@ -1,0 +1,86 @@
+#include "common_options.hpp"
+
+#include <iostream>
+
+#include "stipple/io/output.hpp"
+
+namespace stipple::cli {
+
+namespace {
+
+std::optional<std::string> optional(const std::string& value) {
+  return value.empty() ? std::nullopt : std::optional<std::string>(value);
+}
+
+}  // namespace
+
+void add_common_options(CLI::App& command, CommonOptions& o) {
+  command.add_option("SIGHTINGS", o.sightings,
+                     "Sightings: any OGR vector source (GeoPackage, Shapefile, GeoJSON, GPX, "
+                     "KML, CSV with coordinate columns)")
+      ->required();
+  command.add_option("--layer", o.layer, "Layer of SIGHTINGS to read (default: the only point layer)");
+  command.add_option("--plots", o.plots, "Plot polygons (survey windows): any OGR polygon source");
+  command.add_option("--plots-layer", o.plots_layer, "Layer of --plots to read");
+  o.plot_field_option =
+      command.add_option("--plot-field", o.plot_field, "Plot-id attribute of plots and sightings")
+          ->capture_default_str();
+  command.add_option("--species-field", o.species_field, "Species attribute of the sightings")
+      ->capture_default_str();
+  command.add_option("--x-field", o.x_field,
+                     "CSV column of x or longitude (default: x, lon, longitude or easting)");
+  command.add_option("--y-field", o.y_field,
+                     "CSV column of y or latitude (default: y, lat, latitude or northing)");
+  command.add_option("--crs", o.crs,
+                     "Analysis CRS, projected in metres, e.g. EPSG:32630 (default: the data's "
+                     "own, or the UTM zone of a geographic input)");
+  command.add_option("--assume-crs", o.assume_crs,
+                     "CRS of layers that carry none, e.g. EPSG:4326 for GPS longitude/latitude");
+  command.add_option("--window", o.window,
+                     "Survey windows: plots (from --plots) or convex-hull (Ripley-Rasson "
+                     "estimate from the points; model-based)")
+      ->check(CLI::IsMember({"plots", "convex-hull"}))
+      ->capture_default_str();
+  command.add_flag("--repair-geometry", o.repair_geometry,
+                   "Repair invalid plot polygons with GDAL's MakeValid instead of refusing them");
+  command.add_option("--unit", o.unit, "Area unit of intensities: m2, ha or km2")
+      ->check(CLI::IsMember({"m2", "ha", "km2"}))
+      ->capture_default_str();
+  command.add_option("--confidence", o.confidence, "Two-sided confidence level of intervals")
+      ->capture_default_str();
+  command.add_option("--json", o.json, "Write JSON results to FILE ('-' = standard output)");
+  command.add_option("--csv", o.csv, "Write CSV results to FILE ('-' = standard output)");
+}
+
+SurveyReadOptions to_read_options(const CommonOptions& o) {
+  SurveyReadOptions r;
+  r.sightings = SourceSpec{o.sightings, optional(o.layer)};
+  if (!o.plots.empty()) r.plots = SourceSpec{o.plots, optional(o.plots_layer)};
+  r.window = o.window == "convex-hull" ? WindowMode::convex_hull : WindowMode::plots;
+  r.species_field = o.species_field;
+  r.plot_field = o.plot_field;
+  r.plot_field_given = o.plot_field_option != nullptr && o.plot_field_option->count() > 0;
+  r.x_field = optional(o.x_field);
+  r.y_field = optional(o.y_field);
+  r.target_crs = optional(o.crs);
+  r.assume_crs = optional(o.assume_crs);
+  r.repair_geometry = o.repair_geometry;
+  return r;
+}
+
+std::vector<std::string> input_paths(const CommonOptions& o) {
+  std::vector<std::string> paths{o.sightings};
+  if (!o.plots.empty()) paths.push_back(o.plots);
+  return paths;
+}
+
+void write_output(const std::string& path, const std::string& content,
+                  const std::vector<std::string>& inputs) {
+  if (path == "-") {
+    std::cout << content << std::flush;
+    return;
+  }
+  write_file_safely(path, content, inputs);
+}
+
+}  // namespace stipple::cli

@@ -1,0 +1,47 @@
+#pragma once
+// Options shared by every analysis command, and output helpers of the front end.
+
+#include <optional>
+#include <string>
+#include <vector>
+
+#include <CLI/CLI.hpp>
+
+#include "stipple/io/reader.hpp"
+
+namespace stipple::cli {
+
+struct CommonOptions {
+  std::string sightings;
+  std::string layer;
+  std::string plots;
+  std::string plots_layer;
+  std::string plot_field = "plot";
+  std::string species_field = "species";
+  std::string x_field;
+  std::string y_field;
+  std::string crs;
+  std::string assume_crs;
+  std::string window = "plots";
+  bool repair_geometry = false;
+  std::string unit = "ha";
+  double confidence = 0.95;
+  std::string json;
+  std::string csv;
+  CLI::Option* plot_field_option = nullptr;
+};
+
+/// Adds SIGHTINGS and the shared input, CRS and output options to a subcommand.
+void add_common_options(CLI::App& command, CommonOptions& options);
+
+/// The library's read options from the parsed command line.
+[[nodiscard]] SurveyReadOptions to_read_options(const CommonOptions& options);
+
+/// Every input path named on the command line (outputs must never replace one).
+[[nodiscard]] std::vector<std::string> input_paths(const CommonOptions& options);
+
+/// Writes `content` to `path` ("-" = standard output) safely.
+void write_output(const std::string& path, const std::string& content,
+                  const std::vector<std::string>& inputs);
+
+}  // namespace stipple::cli

@@ -1,0 +1,98 @@
+#include <algorithm>
+#include <map>
+#include <set>
+
+#include <boost/geometry.hpp>
+
+#include "stipple/error.hpp"
+#include "stipple/format.hpp"
+#include "stipple/geometry/survey.hpp"
+
+namespace bg = boost::geometry;
+
+namespace stipple {
+
+namespace {
+
+bool bounds_overlap(const Bounds& a, const Bounds& b) {
+  return a.xmin < b.xmax && b.xmin < a.xmax && a.ymin < b.ymax && b.ymin < a.ymax;
+}
+
+void check_plots(const std::vector<Plot>& plots) {
+  std::set<std::string> seen;
+  for (const auto& plot : plots) {
+    if (!seen.insert(plot.id).second)
+      throw InputError("plot id '" + plot.id + "' is used by more than one plot polygon");
+  }
+  for (std::size_t i = 0; i < plots.size(); ++i) {
+    for (std::size_t j = i + 1; j < plots.size(); ++j) {
+      const auto& a = plots[i].window;
+      const auto& b = plots[j].window;
+      if (!bounds_overlap(a.bounds(), b.bounds())) continue;
+      BgMultiPolygon common;
+      bg::intersection(a.shape(), b.shape(), common);
+      const double overlap = bg::area(common);
+      // Shared edges have zero area; allow for rounding in reprojected vertices.
+      if (overlap > 1e-6 * std::min(a.area_m2(), b.area_m2())) {
+        throw InputError("plots '" + plots[i].id + "' and '" + plots[j].id + "' overlap by " +
+                         format_fixed(overlap, 1) +
+                         " m2; their area would be counted twice");
+      }
+    }
+  }
+}
+
+}  // namespace
+
+std::size_t Survey::sighting_count() const {
+  std::size_t n = 0;
+  for (const auto& pattern : patterns) n += pattern.points.size();
+  return n;
+}
+
+Survey assign_to_plots(const std::vector<Sighting>& sightings, std::vector<Plot> plots) {
+  check_plots(plots);
+  Survey survey;
+  std::set<std::string> names;
+  for (const auto& s : sightings) names.insert(s.species);
+  survey.species.assign(names.begin(), names.end());
+  std::map<std::string, std::size_t> species_index;
+  for (std::size_t i = 0; i < survey.species.size(); ++i) species_index[survey.species[i]] = i;
+  std::map<std::string, std::size_t> plot_index;
+  for (std::size_t i = 0; i < plots.size(); ++i) plot_index[plots[i].id] = i;
+
+  survey.patterns.resize(plots.size());
+  for (const auto& s : sightings) {
+    std::size_t target = plots.size();
+    if (s.plot && !s.plot->empty()) {
+      survey.assigned_by_attribute = true;
+      const auto found = plot_index.find(*s.plot);
+      if (found == plot_index.end()) {
+        survey.unknown_plot_feature_ids.push_back(s.feature_id);
+        continue;
+      }
+      target = found->second;
+      if (!plots[target].window.contains(s.location))
+        survey.off_window_feature_ids.push_back(s.feature_id);
+    } else {
+      for (std::size_t i = 0; i < plots.size(); ++i) {
+        if (plots[i].window.contains(s.location)) {
+          target = i;
+          break;
+        }
+      }
+      if (target == plots.size()) {
+        survey.outside_feature_ids.push_back(s.feature_id);
+        continue;
+      }
+    }
+    auto& pattern = survey.patterns[target];
+    pattern.points.push_back(s.location);
+    pattern.marks.push_back(species_index.at(s.species));
+    pattern.feature_ids.push_back(s.feature_id);
+  }
+  survey.plots = std::move(plots);
+  return survey;
+}
+
+}  // namespace stipple

@@ -1,0 +1,178 @@
+#include "stipple/intensity/density.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <numeric>
+
+#include <boost/math/distributions/students_t.hpp>
+
+#include "stipple/error.hpp"
+
+namespace stipple {
+
+namespace {
+
+// Expected counts of exactly 5 computed from areas carry rounding noise: allow for it.
+bool needs_monte_carlo(const ChiSquareTest& test) {
+  return test.min_expected < min_expected_for_chi_square * (1.0 - 1e-9);
+}
+
+HomogeneityTest test_homogeneity(const std::vector<std::uint64_t>& counts,
+                                 const std::vector<double>& areas, const DensityOptions& options,
+                                 double alpha, const std::string& key) {
+  const double total_area = std::accumulate(areas.begin(), areas.end(), 0.0);
+  const auto total = std::accumulate(counts.begin(), counts.end(), std::uint64_t{0});
+  std::vector<double> expected(areas.size());
+  for (std::size_t i = 0; i < areas.size(); ++i)
+    expected[i] = static_cast<double>(total) * areas[i] / total_area;
+
+  HomogeneityTest test;
+  test.chi_square = pearson_goodness_of_fit(counts, expected);
+  test.p_value = test.chi_square.p_upper;
+  test.dispersion_ratio = test.chi_square.statistic / test.chi_square.df;
+  if (needs_monte_carlo(test.chi_square) && options.simulations > 0) {
+    Engine engine(derive_seed(options.seed, key));
+    test.chi_square.monte_carlo_p_value =
+        multinomial_monte_carlo_p(counts, expected, options.simulations, engine);
+    test.chi_square.simulations = options.simulations;
+    test.p_value = *test.chi_square.monte_carlo_p_value;
+    test.monte_carlo = true;
+  }
+  test.significant = test.p_value < alpha;
+
+  const double k = static_cast<double>(counts.size());
+  const double ratio = static_cast<double>(total) / total_area;
+  double sum_sq = 0.0;
+  for (std::size_t i = 0; i < counts.size(); ++i) {
+    const double residual = static_cast<double>(counts[i]) - ratio * areas[i];
+    sum_sq += residual * residual;
+  }
+  test.between_plot_se = std::sqrt(k / (k - 1.0) * sum_sq) / total_area;
+  const boost::math::students_t t_law(k - 1.0);
+  const double t = boost::math::quantile(t_law, 1.0 - alpha / 2.0);
+  test.between_plot_ci = {std::max(0.0, ratio - t * test.between_plot_se),
+                          ratio + t * test.between_plot_se};
+  return test;
+}
+
+}  // namespace
+
+DensityResult estimate_density(const Survey& survey, const DensityOptions& options) {
+  check_confidence(options.confidence);
+  DensityResult result;
+  result.unit = options.unit;
+  result.confidence = options.confidence;
+  result.alpha = 1.0 - options.confidence;
+  result.seed = options.seed;
+  result.simulations = options.simulations;
+
+  const std::size_t n_species = survey.species.size();
+  const std::size_t n_plots = survey.plots.size();
+  const double per_unit = square_metres_per(options.unit);
+
+  std::vector<Detection> detections;
+  detections.reserve(n_species);
+  for (const auto& name : survey.species) detections.push_back(options.detection.for_species(name));
+
+  // counts[plot][species]
+  std::vector<std::vector<std::uint64_t>> counts(n_plots, std::vector<std::uint64_t>(n_species));
+  std::vector<double> areas(n_plots);
+  for (std::size_t i = 0; i < n_plots; ++i) {
+    areas[i] = survey.plots[i].window.area_m2() / per_unit;
+    for (const auto mark : survey.patterns[i].marks) ++counts[i][mark];
+  }
+
+  const auto make_estimate = [&](const std::vector<std::uint64_t>& by_species,
+                                 const std::vector<Detection>& dets, double area) {
+    DensityEstimate e;
+    e.count = std::accumulate(by_species.begin(), by_species.end(), std::uint64_t{0});
+    e.area = area;
+    e.intensity = static_cast<double>(e.count) / area;
+    const Interval exact = garwood_interval(e.count, options.confidence);
+    e.ci = {exact.lower / area, exact.upper / area};
+    e.corrected = correct_for_detection(by_species, dets, area, options.confidence);
+    return e;
+  };
+
+  for (std::size_t i = 0; i < n_plots; ++i) {
+    for (std::size_t s = 0; s < n_species; ++s) {
+      DensityEstimate e = make_estimate({counts[i][s]}, {detections[s]}, areas[i]);
+      e.plot = survey.plots[i].id;
+      e.species = survey.species[s];
+      result.estimates.push_back(std::move(e));
+    }
+    if (n_species > 0) {
+      DensityEstimate e = make_estimate(counts[i], detections, areas[i]);
+      e.plot = survey.plots[i].id;
+      result.estimates.push_back(std::move(e));
+    }
+  }
+
+  const double total_area = std::accumulate(areas.begin(), areas.end(), 0.0);
+  const auto pool = [&](std::optional<std::size_t> species) {
+    PooledEstimate pooled;
+    std::vector<std::uint64_t> plot_counts(n_plots, 0);
+    std::vector<std::uint64_t> species_counts(n_species, 0);
+    for (std::size_t i = 0; i < n_plots; ++i) {
+      for (std::size_t s = 0; s < n_species; ++s) {
+        if (species && *species != s) continue;
+        plot_counts[i] += counts[i][s];
+        species_counts[s] += counts[i][s];
+      }
+    }
+    std::vector<std::uint64_t> used_counts;
+    std::vector<Detection> used_detections;
+    for (std::size_t s = 0; s < n_species; ++s) {
+      if (species && *species != s) continue;
+      used_counts.push_back(species_counts[s]);
+      used_detections.push_back(detections[s]);
+    }
+    const DensityEstimate e = make_estimate(used_counts, used_detections, total_area);
+    if (species) pooled.species = survey.species[*species];
+    pooled.plots = n_plots;
+    pooled.count = e.count;
+    pooled.area = e.area;
+    pooled.intensity = e.intensity;
+    pooled.ci = e.ci;
+    pooled.corrected = e.corrected;
+    if (n_plots >= 2 && pooled.count > 0) {
+      const std::string key = "homogeneity/" + (pooled.species ? *pooled.species : std::string());
+      pooled.homogeneity = test_homogeneity(plot_counts, areas, options, result.alpha, key);
+    }
+    return pooled;
+  };
+  if (n_plots > 0) {
+    for (std::size_t s = 0; s < n_species; ++s) result.pooled.push_back(pool(s));
+    if (n_species > 0) result.pooled.push_back(pool(std::nullopt));
+  }
+
+  // Species composition across plots: needs two plots and two species with sightings.
+  std::size_t plots_with_sightings = 0;
+  std::vector<bool> species_seen(n_species, false);
+  for (std::size_t i = 0; i < n_plots; ++i) {
+    bool any = false;
+    for (std::size_t s = 0; s < n_species; ++s) {
+      if (counts[i][s] > 0) any = true, species_seen[s] = true;
+    }
+    plots_with_sightings += any ? 1 : 0;
+  }
+  const auto seen = static_cast<std::size_t>(std::count(species_seen.begin(), species_seen.end(), true));
+  if (plots_with_sightings >= 2 && seen >= 2) {
+    CompositionTest c;
+    c.chi_square = pearson_contingency(counts);
+    c.p_value = c.chi_square.p_upper;
+    if (needs_monte_carlo(c.chi_square) && options.simulations > 0) {
+      Engine engine(derive_seed(options.seed, "composition"));
+      c.chi_square.monte_carlo_p_value =
+          contingency_monte_carlo_p(counts, options.simulations, engine);
+      c.chi_square.simulations = options.simulations;
+      c.p_value = *c.chi_square.monte_carlo_p_value;
+      c.monte_carlo = true;
+    }
+    c.significant = c.p_value < result.alpha;
+    result.composition = c;
+  }
+  return result;
+}
+
+}  // namespace stipple

@@ -1,0 +1,308 @@
+#include "stipple/report/density_report.hpp"
+
+#include <cmath>
+#include <sstream>
+
+#include <nlohmann/json.hpp>
+
+#include "stipple/format.hpp"
+
+namespace stipple {
+
+namespace {
+
+using Json = nlohmann::ordered_json;
+
+Json interval_json(const Interval& ci) { return Json::array({ci.lower, ci.upper}); }
+
+Json species_json(const std::optional<std::string>& species) {
+  return species ? Json(*species) : Json(nullptr);
+}
+
+std::string species_text(const std::optional<std::string>& species) {
+  return species ? *species : "(all)";
+}
+
+std::string number(double value) { return format_significant(value, 4); }
+
+std::string interval_text(const Interval& ci) {
+  return "[" + number(ci.lower) + ", " + number(ci.upper) + "]";
+}
+
+Json ids_json(const std::vector<std::int64_t>& ids) {
+  Json array = Json::array();
+  for (const auto id : ids) array.push_back(id);
+  return array;
+}
+
+Json chi_square_json(const ChiSquareTest& t, double p_value, bool monte_carlo) {
+  Json j;
+  j["statistic"] = t.statistic;
+  j["df"] = t.df;
+  j["p_value"] = p_value;
+  j["p_value_method"] = monte_carlo ? "monte-carlo" : "chi-square";
+  j["chi_square_p_value"] = t.p_upper;
+  j["monte_carlo_p_value"] =
+      t.monte_carlo_p_value ? Json(*t.monte_carlo_p_value) : Json(nullptr);
+  j["simulations"] = t.simulations;
+  j["min_expected"] = t.min_expected;
+  return j;
+}
+
+std::string method_line(const DensityResult& result) {
+  bool any = false;
+  bool delta = false;
+  for (const auto& e : result.estimates) {
+    if (e.corrected.method != CorrectionMethod::none) any = true;
+    if (e.corrected.method == CorrectionMethod::delta_log) delta = true;
+  }
+  if (!any) return "no detection correction (p = 1 for every species)";
+  return delta ? "detection-corrected intervals: exact limits / p where se(p) = 0, otherwise "
+                 "log-normal with var(log D) = 1/n + (se/p)^2 (delta method)"
+               : "detection-corrected intervals: exact Poisson limits divided by p";
+}
+
+}  // namespace
+
+std::vector<std::string> density_warnings(const DensityResult& result) {
+  std::vector<std::string> warnings;
+  const std::string unit(unit_name(result.unit));
+  for (const auto& p : result.pooled) {
+    if (!p.homogeneity || !p.homogeneity->significant) continue;
+    const auto& h = *p.homogeneity;
+    warnings.push_back(
+        (p.species ? "species '" + *p.species + "'" : std::string("all species together")) +
+        ": plots differ in intensity (homogeneity p = " + format_p_value(h.p_value) +
+        ", dispersion ratio " + format_fixed(h.dispersion_ratio, 2) +
+        "); the pooled Poisson interval assumes one shared intensity and is too narrow: use "
+        "the between-plot interval " + interval_text(h.between_plot_ci) + " per " + unit);
+  }
+  if (result.composition && result.composition->significant) {
+    warnings.push_back(
+        "species composition differs between plots (p = " +
+        format_p_value(result.composition->p_value) +
+        "): species marks are not independent of plot, so each pooled species intensity "
+        "averages over plots with different species mixes; report plots separately too");
+  }
+  return warnings;
+}
+
+const std::vector<std::string>& density_cautions() {
+  static const std::vector<std::string> cautions{
+      "Intervals assume the sightings of each plot form a homogeneous Poisson pattern; "
+      "clustered species make them too narrow (see the homogeneity test and the randomness "
+      "analyses).",
+      "Detection correction assumes every individual is detected independently with the "
+      "given probability p, that p is constant within a plot, and that plot areas are "
+      "correct; an error in p biases the density by the same factor.",
+      "Densities that feed harvest quotas, culls or protection decisions need a survey design "
+      "and analysis reviewed by a qualified biometrician under the local agency's protocol; "
+      "this output does not replace that review.",
+  };
+  return cautions;
+}
+
+std::string density_json(const LoadedSurvey& survey, const DensityResult& result) {
+  Json doc;
+  doc["stipple_version"] = STIPPLE_VERSION;
+  doc["command"] = "density";
+  doc["crs"] = survey.crs.code;
+  doc["crs_name"] = survey.crs.name;
+  doc["crs_reason"] = survey.crs.reason;
+  doc["unit"] = std::string(unit_name(result.unit));
+  doc["confidence"] = result.confidence;
+  doc["alpha"] = result.alpha;
+  doc["seed"] = result.seed;
+  doc["simulations"] = result.simulations;
+  doc["sightings"] = survey.sightings_label;
+  doc["plots"] = survey.plots_label.empty() ? Json(nullptr) : Json(survey.plots_label);
+  doc["window"] = survey.window == WindowMode::plots ? "plots" : "convex-hull";
+  doc["interval_method"] = "exact Poisson (Garwood 1936)";
+
+  Json estimates = Json::array();
+  for (const auto& e : result.estimates) {
+    Json j;
+    j["plot"] = e.plot;
+    j["species"] = species_json(e.species);
+    j["count"] = e.count;
+    j["area"] = e.area;
+    j["intensity"] = e.intensity;
+    j["ci"] = interval_json(e.ci);
+    j["detection_probability"] = e.corrected.detection_probability;
+    j["corrected_intensity"] = e.corrected.intensity;
+    j["corrected_ci"] = interval_json(e.corrected.ci);
+    j["correction_method"] = std::string(correction_method_name(e.corrected.method));
+    estimates.push_back(std::move(j));
+  }
+  doc["estimates"] = std::move(estimates);
+
+  Json pooled = Json::array();
+  for (const auto& p : result.pooled) {
+    Json j;
+    j["species"] = species_json(p.species);
+    j["plots"] = p.plots;
+    j["count"] = p.count;
+    j["area"] = p.area;
+    j["intensity"] = p.intensity;
+    j["ci"] = interval_json(p.ci);
+    j["detection_probability"] = p.corrected.detection_probability;
+    j["corrected_intensity"] = p.corrected.intensity;
+    j["corrected_ci"] = interval_json(p.corrected.ci);
+    j["correction_method"] = std::string(correction_method_name(p.corrected.method));
+    if (p.homogeneity) {
+      const auto& h = *p.homogeneity;
+      Json t = chi_square_json(h.chi_square, h.p_value, h.monte_carlo);
+      t["dispersion_ratio"] = h.dispersion_ratio;
+      t["significant"] = h.significant;
+      t["between_plot_se"] = h.between_plot_se;
+      t["between_plot_ci"] = interval_json(h.between_plot_ci);
+      j["homogeneity"] = std::move(t);
+    } else {
+      j["homogeneity"] = nullptr;
+    }
+    pooled.push_back(std::move(j));
+  }
+  doc["pooled"] = std::move(pooled);
+
+  if (result.composition) {
+    const auto& c = *result.composition;
+    Json t = chi_square_json(c.chi_square, c.p_value, c.monte_carlo);
+    t["significant"] = c.significant;
+    doc["composition"] = std::move(t);
+  } else {
+    doc["composition"] = nullptr;
+  }
+
+  const Survey& s = survey.survey;
+  Json excluded;
+  excluded["outside_plots"] = s.outside_feature_ids.size();
+  excluded["outside_plots_feature_ids"] = ids_json(s.outside_feature_ids);
+  excluded["unknown_plot"] = s.unknown_plot_feature_ids.size();
+  excluded["unknown_plot_feature_ids"] = ids_json(s.unknown_plot_feature_ids);
+  doc["excluded"] = std::move(excluded);
+  Json assignment;
+  assignment["by"] = s.assigned_by_attribute ? "attribute" : "point-in-polygon";
+  assignment["outside_own_plot_feature_ids"] = ids_json(s.off_window_feature_ids);
+  doc["assignment"] = std::move(assignment);
+  doc["detection_method"] = method_line(result);
+  doc["notes"] = survey.notes;
+  Json warnings = Json::array();
+  for (const auto& w : survey.warnings) warnings.push_back(w);
+  for (const auto& w : density_warnings(result)) warnings.push_back(w);
+  doc["warnings"] = std::move(warnings);
+  doc["cautions"] = density_cautions();
+  return doc.dump(2) + "\n";
+}
+
+std::string density_table(const LoadedSurvey& survey, const DensityResult& result) {
+  std::ostringstream out;
+  const std::string unit(unit_name(result.unit));
+  const double percent = 100.0 * result.confidence;
+  const std::string level =
+      format_fixed(percent, percent == std::round(percent) ? 0 : 1) + "%";
+  out << "stipple density\n";
+  out << "  sightings: " << survey.sightings_label << "\n";
+  if (!survey.plots_label.empty()) out << "  plots:     " << survey.plots_label << "\n";
+  out << "  CRS:       " << survey.crs.code << " (" << survey.crs.name << "), "
+      << survey.crs.reason << "\n";
+  out << "  intensity per " << unit << "; " << level
+      << " exact Poisson (Garwood) intervals; " << method_line(result) << "\n\n";
+
+  out << "Per plot\n";
+  TextTable plots({"plot", "species", "count", "area_" + unit, "intensity", level + " CI", "p",
+                   "corrected", "corrected " + level + " CI"},
+                  2);
+  for (const auto& e : result.estimates) {
+    plots.add_row({e.plot, species_text(e.species), std::to_string(e.count), number(e.area),
+                   number(e.intensity), interval_text(e.ci),
+                   format_significant(e.corrected.detection_probability, 3),
+                   number(e.corrected.intensity), interval_text(e.corrected.ci)});
+  }
+  out << plots.render() << "\n";
+
+  if (!result.pooled.empty()) {
+    out << "Pooled across plots (superposition: sum n / sum area)\n";
+    TextTable pooled({"species", "plots", "count", "area_" + unit, "intensity", level + " CI",
+                      "corrected", "corrected " + level + " CI", "homogeneity X2", "df", "p",
+                      "dispersion"},
+                     1);
+    for (const auto& p : result.pooled) {
+      std::vector<std::string> row{species_text(p.species), std::to_string(p.plots),
+                                   std::to_string(p.count), number(p.area), number(p.intensity),
+                                   interval_text(p.ci), number(p.corrected.intensity),
+                                   interval_text(p.corrected.ci)};
+      if (p.homogeneity) {
+        const auto& h = *p.homogeneity;
+        row.push_back(format_fixed(h.chi_square.statistic, 2));
+        row.push_back(format_fixed(h.chi_square.df, 0));
+        row.push_back(format_p_value(h.p_value) + (h.monte_carlo ? " (MC)" : ""));
+        row.push_back(format_fixed(h.dispersion_ratio, 2));
+      } else {
+        row.insert(row.end(), {"-", "-", "-", "-"});
+      }
+      pooled.add_row(std::move(row));
+    }
+    out << pooled.render();
+    out << "  homogeneity: Pearson X2 of plot counts against area-proportional expectations; "
+           "(MC) = Monte Carlo p-value, used when an expected count is below 5\n\n";
+  }
+  if (result.composition) {
+    const auto& c = *result.composition;
+    out << "Species composition across plots: X2 = " << format_fixed(c.chi_square.statistic, 2)
+        << ", df = " << format_fixed(c.chi_square.df, 0) << ", p = " << format_p_value(c.p_value)
+        << (c.monte_carlo ? " (Monte Carlo)" : "")
+        << (c.significant ? " -> the species mix differs between plots" : " -> no evidence the mix differs")
+        << "\n\n";
+  }
+  const Survey& s = survey.survey;
+  out << "Sightings: " << s.sighting_count() << " analysed, "
+      << s.outside_feature_ids.size() + s.unknown_plot_feature_ids.size() << " excluded; "
+      << "assigned by " << (s.assigned_by_attribute ? "plot attribute" : "point-in-polygon")
+      << "\n";
+  if (!survey.notes.empty()) {
+    out << "\nNotes\n";
+    for (const auto& n : survey.notes) out << "  - " << n << "\n";
+  }
+  const std::vector<std::string> warnings = density_warnings(result);
+  if (!survey.warnings.empty() || !warnings.empty()) {
+    out << "\nWarnings\n";
+    for (const auto& w : survey.warnings) out << "  - " << w << "\n";
+    for (const auto& w : warnings) out << "  - " << w << "\n";
+  }
+  out << "\nCautions\n";
+  for (const auto& c : density_cautions()) out << "  - " << c << "\n";
+  return out.str();
+}
+
+std::string density_csv(const DensityResult& result) {
+  std::ostringstream out;
+  out.imbue(std::locale::classic());
+  out.precision(10);
+  out << "scope,plot,species,count,area,unit,intensity,ci_low,ci_high,detection_probability,"
+         "corrected_intensity,corrected_ci_low,corrected_ci_high,correction_method,"
+         "homogeneity_statistic,homogeneity_df,homogeneity_p_value\n";
+  const std::string unit(unit_name(result.unit));
+  for (const auto& e : result.estimates) {
+    out << "plot," << csv_field(e.plot) << "," << csv_field(e.species.value_or("")) << ","
+        << e.count << "," << e.area << "," << unit << "," << e.intensity << "," << e.ci.lower
+        << "," << e.ci.upper << "," << e.corrected.detection_probability << ","
+        << e.corrected.intensity << "," << e.corrected.ci.lower << "," << e.corrected.ci.upper
+        << "," << correction_method_name(e.corrected.method) << ",,,\n";
+  }
+  for (const auto& p : result.pooled) {
+    out << "pooled,," << csv_field(p.species.value_or("")) << "," << p.count << "," << p.area
+        << "," << unit << "," << p.intensity << "," << p.ci.lower << "," << p.ci.upper << ","
+        << p.corrected.detection_probability << "," << p.corrected.intensity << ","
+        << p.corrected.ci.lower << "," << p.corrected.ci.upper << ","
+        << correction_method_name(p.corrected.method) << ",";
+    if (p.homogeneity)
+      out << p.homogeneity->chi_square.statistic << "," << p.homogeneity->chi_square.df << ","
+          << p.homogeneity->p_value;
+    else
+      out << ",,";
+    out << "\n";
+  }
+  return out.str();
+}
+
+}  // namespace stipple

@@ -1,0 +1,72 @@
+#include "stipple/report/inspect_report.hpp"
+
+#include <sstream>
+
+#include <nlohmann/json.hpp>
+
+#include "stipple/format.hpp"
+
+namespace stipple {
+
+std::string inspect_table(const SourceSummary& source) {
+  std::ostringstream out;
+  out << source.path << " (" << source.driver << "), " << source.layers.size() << " layer(s)\n";
+  for (const auto& layer : source.layers) {
+    out << "\nlayer '" << layer.name << "': " << layer.geometry_type << ", "
+        << layer.feature_count << " feature(s), CRS " << layer.crs;
+    if (!layer.crs_name.empty() && layer.crs_name != layer.crs) out << " (" << layer.crs_name << ")";
+    out << "\n  fields: ";
+    for (std::size_t i = 0; i < layer.fields.size(); ++i)
+      out << (i ? ", " : "") << layer.fields[i].name << " (" << layer.fields[i].type << ")";
+    if (layer.fields.empty()) out << "none";
+    out << "\n";
+    if (layer.species_counts) {
+      out << "  species:\n";
+      TextTable table({"species", "count"});
+      for (const auto& [name, count] : *layer.species_counts)
+        table.add_row({name, std::to_string(count)});
+      out << table.render("    ");
+    }
+    if (!layer.plots.empty()) {
+      out << "  plots (areas in " << layer.area_crs << "):\n";
+      TextTable table({"plot", "area_ha", "area_m2", "valid"});
+      for (const auto& plot : layer.plots)
+        table.add_row({plot.id, format_fixed(plot.area_m2 / 1e4, 4), format_fixed(plot.area_m2, 1),
+                       plot.valid ? "yes" : "NO (self-intersecting?)"});
+      out << table.render("    ");
+    }
+    if (layer.crs == "none")
+      out << "  note: no CRS; analysis commands need --assume-crs EPSG:N for this layer\n";
+  }
+  return out.str();
+}
+
+std::string inspect_json(const SourceSummary& source) {
+  using Json = nlohmann::ordered_json;
+  Json doc;
+  doc["path"] = source.path;
+  doc["driver"] = source.driver;
+  Json layers = Json::array();
+  for (const auto& layer : source.layers) {
+    Json j;
+    j["name"] = layer.name;
+    j["geometry_type"] = layer.geometry_type;
+    j["feature_count"] = layer.feature_count;
+    j["crs"] = layer.crs;
+    j["crs_name"] = layer.crs_name;
+    Json fields = Json::array();
+    for (const auto& f : layer.fields) fields.push_back({{"name", f.name}, {"type", f.type}});
+    j["fields"] = std::move(fields);
+    j["species_counts"] = layer.species_counts ? Json(*layer.species_counts) : Json(nullptr);
+    Json plots = Json::array();
+    for (const auto& p : layer.plots)
+      plots.push_back({{"plot", p.id}, {"area_m2", p.area_m2}, {"valid", p.valid}});
+    j["plots"] = std::move(plots);
+    j["area_crs"] = layer.area_crs;
+    layers.push_back(std::move(j));
+  }
+  doc["layers"] = std::move(layers);
+  return doc.dump(2) + "\n";
+}
+
+}  // namespace stipple

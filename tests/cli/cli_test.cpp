@@ -1,0 +1,342 @@
+// The command-line tool as a user runs it: the demo, output formats, and every bad input
+// it refuses (message naming the file, layer, field or feature; exit code 2).
+
+#include <fstream>
+
+#include <gtest/gtest.h>
+#include <nlohmann/json.hpp>
+
+#include "support.hpp"
+
+namespace stipple {
+namespace {
+
+using test::run_cli;
+using test::sample;
+using test::TempDir;
+
+const std::string kSquare =
+    "[[512000,6290000],[512000,6290100],[512100,6290100],[512100,6290000],[512000,6290000]]";
+const std::string kSquareB =
+    "[[512200,6290000],[512200,6290100],[512300,6290100],[512300,6290000],[512200,6290000]]";
+
+// A valid little survey: two 1-ha plots in EPSG:32630, sightings CSV with a .prj.
+struct Fixture {
+  TempDir dir;
+  std::string plots;
+  std::string sightings;
+  Fixture() {
+    plots = dir.write("plots.geojson", test::geojson_utm(test::plot_feature("A", kSquare) + "," +
+                                                         test::plot_feature("B", kSquareB)));
+    sightings = write_csv("sightings",
+                          "x,y,species\n512010,6290010,oak\n512050,6290050,ash\n"
+                          "512250,6290050,oak\n512150,6290050,oak\n");
+  }
+  std::string write_csv(const std::string& stem, const std::string& text, bool prj = true) const {
+    if (prj) (void)dir.write(stem + ".prj", test::utm30_prj());
+    return dir.write(stem + ".csv", text);
+  }
+};
+
+nlohmann::json parse(const std::string& text) { return nlohmann::json::parse(text); }
+
+void expect_refused(const test::RunResult& r, const std::string& message) {
+  EXPECT_EQ(r.exit_code, 2) << r.err;
+  EXPECT_NE(r.err.find(message), std::string::npos) << "stderr: " << r.err;
+  EXPECT_EQ(r.err.rfind("error: ", 0), 0u) << r.err;
+  EXPECT_EQ(std::count(r.err.begin(), r.err.end(), '\n'), 1) << "one line: " << r.err;
+}
+
+TEST(Cli, HelpAndVersion) {
+  EXPECT_EQ(run_cli("--help").exit_code, 0);
+  const auto help = run_cli("density --help");
+  EXPECT_EQ(help.exit_code, 0);
+  EXPECT_NE(help.out.find("--detection-prob"), std::string::npos);
+  EXPECT_NE(run_cli("--version").out.find("stipple"), std::string::npos);
+  EXPECT_EQ(run_cli("").exit_code, 2);
+  EXPECT_EQ(run_cli("density").exit_code, 2);
+}
+
+TEST(Cli, DemoRecoversGeneratingIntensities) {
+  // The demo's stated truth (sample-plots/generating-values.json) must lie inside the
+  // corrected 95% interval of every species pooled over the four plots.
+  const auto r = run_cli(sample("reserve.gpkg") + " --plots " + sample("reserve.gpkg") +
+                         " --detection " + sample("detection.csv") + " --json -");
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  const auto doc = parse(r.out);
+  std::ifstream truth_file(sample("generating-values.json"));
+  const auto truth = nlohmann::json::parse(truth_file);
+  int checked = 0;
+  for (const auto& p : doc["pooled"]) {
+    if (p["species"].is_null()) continue;
+    const double true_intensity = truth["species"][p["species"].get<std::string>()]["intensity_ha"];
+    EXPECT_LE(p["corrected_ci"][0].get<double>(), true_intensity) << p["species"];
+    EXPECT_GE(p["corrected_ci"][1].get<double>(), true_intensity) << p["species"];
+    ++checked;
+  }
+  EXPECT_EQ(checked, 4);
+  std::size_t total = 0;
+  for (const auto& e : doc["estimates"])
+    if (e["species"].is_null()) total += e["count"].get<std::size_t>();
+  EXPECT_EQ(total, truth["recorded_sightings"].get<std::size_t>());
+}
+
+TEST(Cli, JsonContractHolds) {
+  const auto r = run_cli(sample("reserve.gpkg") + " --plots " + sample("reserve.gpkg") +
+                         " --detection " + sample("detection.csv") + " --json -");
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  const auto doc = parse(r.out);
+  EXPECT_EQ(doc["crs"], "EPSG:32630");
+  EXPECT_EQ(doc["unit"], "ha");
+  EXPECT_EQ(doc["confidence"], 0.95);
+  for (const char* key : {"plot", "species", "count", "area", "intensity", "ci",
+                          "detection_probability", "corrected_intensity", "corrected_ci"})
+    EXPECT_TRUE(doc["estimates"][0].contains(key)) << key;
+  for (const char* key : {"species", "plots", "count", "area", "intensity", "ci",
+                          "corrected_intensity", "corrected_ci", "homogeneity"})
+    EXPECT_TRUE(doc["pooled"][0].contains(key)) << key;
+  for (const char* key : {"statistic", "df", "p_value"})
+    EXPECT_TRUE(doc["pooled"][0]["homogeneity"].contains(key)) << key;
+  EXPECT_EQ(doc["excluded"]["outside_plots"], 0);
+  EXPECT_EQ(doc["estimates"][0]["ci"].size(), 2u);
+  bool has_all_species_row = false;
+  for (const auto& e : doc["estimates"]) has_all_species_row |= e["species"].is_null();
+  EXPECT_TRUE(has_all_species_row);
+  EXPECT_FALSE(doc["cautions"].empty());
+}
+
+TEST(Cli, TableAndCsvOutputs) {
+  TempDir out;
+  const auto r = run_cli(sample("reserve.gpkg") + " --plots " + sample("reserve.gpkg") +
+                         " --csv " + out.file("d.csv") + " --unit km2");
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  EXPECT_NE(r.out.find("Per plot"), std::string::npos);
+  EXPECT_NE(r.out.find("Pooled across plots"), std::string::npos);
+  EXPECT_NE(r.out.find("Cautions"), std::string::npos);
+  std::ifstream csv(out.file("d.csv"));
+  std::string header;
+  std::getline(csv, header);
+  EXPECT_EQ(header.rfind("scope,plot,species,count,area,unit,intensity,ci_low,ci_high", 0), 0u);
+}
+
+TEST(Cli, GpsLonLatCsvIsReprojectedAndStraysAreReported) {
+  const auto r = run_cli(sample("gps-sightings.csv") + " --assume-crs EPSG:4326 --plots " +
+                         sample("reserve.gpkg") + " --json -");
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  const auto doc = parse(r.out);
+  EXPECT_EQ(doc["crs"], "EPSG:32630");  // the plots' projected CRS
+  EXPECT_EQ(doc["excluded"]["outside_plots"], 3);
+  EXPECT_EQ(doc["excluded"]["outside_plots_feature_ids"].size(), 3u);
+  EXPECT_EQ(doc["assignment"]["by"], "point-in-polygon");
+  // Same sightings as the GeoPackage (which assigns by attribute): same counts.
+  const auto gpkg = parse(run_cli(sample("reserve.gpkg") + " --plots " + sample("reserve.gpkg") +
+                                  " --json -").out);
+  ASSERT_EQ(doc["estimates"].size(), gpkg["estimates"].size());
+  for (std::size_t i = 0; i < doc["estimates"].size(); ++i)
+    EXPECT_EQ(doc["estimates"][i]["count"], gpkg["estimates"][i]["count"]) << i;
+  EXPECT_NE(r.err.find("outside every plot"), std::string::npos);
+}
+
+TEST(Cli, GeographicInputWithoutPlotsGetsUtmAndModelBasedWarning) {
+  const auto r = run_cli(sample("gps-sightings.csv") +
+                         " --assume-crs EPSG:4326 --window convex-hull --json -");
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  const auto doc = parse(r.out);
+  EXPECT_EQ(doc["crs"], "EPSG:32630");
+  EXPECT_NE(doc["crs_reason"].get<std::string>().find("UTM zone"), std::string::npos);
+  EXPECT_EQ(doc["window"], "convex-hull");
+  EXPECT_NE(r.err.find("model-based"), std::string::npos);
+}
+
+TEST(Cli, PerPlotShapefilesGiveThePlotsCounts) {
+  const auto r = run_cli(sample("shapefiles/north-sightings.shp") + " --plots " +
+                         sample("shapefiles/north-plot.shp") + " --json -");
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  const auto one = parse(r.out);
+  const auto all = parse(run_cli(sample("reserve.gpkg") + " --plots " + sample("reserve.gpkg") +
+                                 " --json -").out);
+  for (const auto& e : one["estimates"]) {
+    for (const auto& f : all["estimates"])
+      if (f["plot"] == "north" && f["species"] == e["species"]) {
+        EXPECT_EQ(f["count"], e["count"]);
+      }
+  }
+}
+
+TEST(Cli, InspectDescribesASource) {
+  const auto r = run_cli("inspect " + sample("reserve.gpkg"));
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  EXPECT_NE(r.out.find("layer 'plots'"), std::string::npos);
+  EXPECT_NE(r.out.find("layer 'sightings'"), std::string::npos);
+  EXPECT_NE(r.out.find("EPSG:32630"), std::string::npos);
+  EXPECT_NE(r.out.find("hazel"), std::string::npos);
+  EXPECT_NE(r.out.find("glade"), std::string::npos);
+  const auto j = parse(run_cli("inspect --json " + sample("reserve.gpkg")).out);
+  double glade_m2 = 0;
+  for (const auto& layer : j["layers"])
+    for (const auto& p : layer["plots"])
+      if (p["plot"] == "glade") glade_m2 = p["area_m2"];
+  EXPECT_NEAR(glade_m2, 19100.0, 1e-3);  // 200 x 100 m less a 30 x 30 m pond
+  expect_refused(run_cli("inspect /no/such.gpkg"), "/no/such.gpkg: no such file");
+}
+
+// ---- bad input: one line naming the culprit, exit code 2 ----
+
+TEST(CliBadInput, MissingFile) {
+  Fixture f;
+  expect_refused(run_cli(f.dir.file("nope.gpkg") + " --plots " + f.plots),
+                 f.dir.file("nope.gpkg") + ": no such file");
+  expect_refused(run_cli(f.sightings + " --plots " + f.dir.file("nope.shp")),
+                 f.dir.file("nope.shp") + ": no such file");
+}
+
+TEST(CliBadInput, UnreadableFile) {
+  Fixture f;
+  const auto junk = f.dir.write("junk.gpkg", "this is not a GeoPackage");
+  expect_refused(run_cli(junk + " --plots " + f.plots), junk + ": cannot be read as a vector");
+}
+
+TEST(CliBadInput, UnknownLayer) {
+  expect_refused(run_cli(sample("reserve.gpkg") + " --layer stems --plots " + sample("reserve.gpkg")),
+                 "reserve.gpkg: layer 'stems' not found (layers: ");
+  expect_refused(run_cli(sample("reserve.gpkg") + " --plots " + sample("reserve.gpkg") +
+                         " --plots-layer zones"),
+                 "layer 'zones' not found");
+}
+
+TEST(CliBadInput, MissingSpeciesField) {
+  Fixture f;
+  expect_refused(run_cli(f.sightings + " --plots " + f.plots + " --species-field taxon"),
+                 "sightings.csv: layer 'sightings': no species field 'taxon' (fields: ");
+}
+
+TEST(CliBadInput, EmptySpeciesValue) {
+  Fixture f;
+  const auto s = f.write_csv("s", "x,y,species\n512010,6290010,oak\n512020,6290020,\n");
+  expect_refused(run_cli(s + " --plots " + f.plots), "s.csv: layer 's': feature 2: species field");
+}
+
+TEST(CliBadInput, MissingPlotField) {
+  Fixture f;
+  expect_refused(run_cli(f.sightings + " --plots " + f.plots + " --plot-field site"),
+                 "plots.geojson: layer 'plots': no plot field 'site' (fields: plot)");
+}
+
+TEST(CliBadInput, NonPointSightings) {
+  Fixture f;
+  const auto lines = f.dir.write(
+      "tracks.geojson",
+      test::geojson_utm("{\"type\":\"Feature\",\"properties\":{\"species\":\"oak\"},\"geometry\":"
+                        "{\"type\":\"LineString\",\"coordinates\":[[512010,6290010],[512020,6290020]]}}"));
+  expect_refused(run_cli(lines + " --plots " + f.plots),
+                 "tracks.geojson: layer 'tracks': feature 0: geometry is Line String; sightings "
+                 "must be single points");
+}
+
+TEST(CliBadInput, EmptyPlot) {
+  Fixture f;
+  const auto plots = f.dir.write(
+      "empty.geojson",
+      test::geojson_utm(test::plot_feature("A", kSquare) +
+                        ",{\"type\":\"Feature\",\"properties\":{\"plot\":\"B\"},\"geometry\":null}"));
+  expect_refused(run_cli(f.sightings + " --plots " + plots),
+                 "empty.geojson: layer 'empty': feature 1: plot polygon is empty");
+}
+
+TEST(CliBadInput, ZeroAreaPlot) {
+  Fixture f;
+  const auto plots = f.dir.write(
+      "flat.geojson",
+      test::geojson_utm(test::plot_feature(
+          "A", "[[512000,6290000],[512050,6290000],[512100,6290000],[512000,6290000]]")));
+  expect_refused(run_cli(f.sightings + " --plots " + plots),
+                 "flat.geojson: layer 'flat': feature 0: plot polygon has zero area");
+}
+
+TEST(CliBadInput, SelfIntersectingPlotIsRefusedUnlessRepaired) {
+  Fixture f;
+  const auto plots = f.dir.write(
+      "bowtie.geojson",
+      test::geojson_utm(test::plot_feature(
+          "A", "[[512000,6290000],[512100,6290100],[512100,6290000],[512000,6290100],[512000,6290000]]")));
+  expect_refused(run_cli(f.sightings + " --plots " + plots),
+                 "bowtie.geojson: layer 'bowtie': feature 0: plot polygon is not valid");
+  EXPECT_NE(run_cli(f.sightings + " --plots " + plots).err.find("--repair-geometry"),
+            std::string::npos);
+  const auto repaired = run_cli(f.sightings + " --plots " + plots + " --repair-geometry --json -");
+  ASSERT_EQ(repaired.exit_code, 0) << repaired.err;
+  const auto doc = parse(repaired.out);
+  EXPECT_NEAR(doc["estimates"][0]["area"].get<double>(), 0.5, 1e-9);  // two triangles, 0.5 ha
+}
+
+TEST(CliBadInput, NanOrInfiniteCoordinates) {
+  Fixture f;
+  const auto nan = f.write_csv("nan", "x,y,species\n512010,6290010,oak\nnan,6290020,oak\n");
+  expect_refused(run_cli(nan + " --plots " + f.plots),
+                 "nan.csv: layer 'nan': feature 2: has no point geometry: coordinates must be "
+                 "finite numbers (x: empty or not a number, y = 6290020)");
+  const auto inf = f.write_csv("inf", "x,y,species\n512010,inf,oak\n");
+  expect_refused(run_cli(inf + " --plots " + f.plots), "feature 1: has no point geometry: "
+                                                       "coordinates must be finite numbers");
+}
+
+TEST(CliBadInput, DetectionProbabilityOutsideUnitInterval) {
+  Fixture f;
+  expect_refused(run_cli(f.sightings + " --plots " + f.plots + " --detection-prob 1.5"),
+                 "--detection-prob: detection probability 1.5 is outside (0, 1]");
+  expect_refused(run_cli(f.sightings + " --plots " + f.plots + " --detection-prob 0"),
+                 "detection probability 0 is outside (0, 1]");
+  const auto table = f.dir.write("p.csv", "species,p,se\noak,0.9,0.02\nash,0,0\n");
+  expect_refused(run_cli(f.sightings + " --plots " + f.plots + " --detection " + table),
+                 "p.csv: line 3 (species 'ash'): detection probability 0 is outside (0, 1]");
+  const auto partial = f.dir.write("q.csv", "species,p\noak,0.9\n");
+  expect_refused(run_cli(f.sightings + " --plots " + f.plots + " --detection " + partial),
+                 "q.csv: no detection probability for species 'ash'");
+  expect_refused(run_cli(f.sightings + " --plots " + f.plots + " --detection-se 0.1"),
+                 "--detection-se needs --detection-prob");
+}
+
+TEST(CliBadInput, MissingCrs) {
+  Fixture f;
+  const auto bare = f.write_csv("bare", "x,y,species\n512010,6290010,oak\n", false);
+  expect_refused(run_cli(bare + " --plots " + f.plots),
+                 "bare.csv: layer 'bare': has no CRS; give it with --assume-crs EPSG:N");
+  const auto ok = run_cli(bare + " --plots " + f.plots + " --assume-crs EPSG:32630 --json -");
+  EXPECT_EQ(ok.exit_code, 0) << ok.err;
+  expect_refused(run_cli(f.sightings + " --plots " + f.plots + " --crs EPSG:4326"),
+                 "--crs EPSG:4326: not a projected CRS in metres");
+  expect_refused(run_cli(f.sightings + " --plots " + f.plots + " --crs EPSG:99999999"),
+                 "--crs EPSG:99999999: not a coordinate reference system");
+}
+
+TEST(CliBadInput, NoPlotsGiven) {
+  Fixture f;
+  expect_refused(run_cli(f.sightings), "density needs the surveyed area: give the plot polygons");
+}
+
+TEST(CliBadInput, OutsideSightingsAreCountedNotHidden) {
+  Fixture f;
+  const auto r = run_cli(f.sightings + " --plots " + f.plots + " --json -");
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  const auto doc = parse(r.out);
+  EXPECT_EQ(doc["excluded"]["outside_plots"], 1);
+  EXPECT_EQ(doc["excluded"]["outside_plots_feature_ids"][0], 4);
+}
+
+TEST(CliBadInput, NeverWritesOverAnInput) {
+  Fixture f;
+  expect_refused(run_cli(f.sightings + " --plots " + f.plots + " --json " + f.plots),
+                 "plots.geojson: refusing to write over an input file");
+  expect_refused(run_cli(f.sightings + " --plots " + f.plots + " --csv " + f.sightings),
+                 "refusing to write over an input file");
+}
+
+TEST(CliBadInput, BadOptionValues) {
+  Fixture f;
+  EXPECT_EQ(run_cli(f.sightings + " --plots " + f.plots + " --unit acre").exit_code, 2);
+  expect_refused(run_cli(f.sightings + " --plots " + f.plots + " --confidence 1.2"),
+                 "--confidence must lie strictly between 0 and 1");
+}
+
+}  // namespace
+}  // namespace stipple

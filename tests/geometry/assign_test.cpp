@@ -1,0 +1,59 @@
+#include "stipple/geometry/survey.hpp"
+
+#include <gtest/gtest.h>
+
+#include "stipple/error.hpp"
+
+namespace stipple {
+namespace {
+
+std::vector<Plot> two_plots() {
+  return {Plot{"A", Window::rectangle(0, 0, 10, 10)}, Plot{"B", Window::rectangle(20, 0, 30, 10)}};
+}
+
+TEST(AssignToPlots, PointInPolygonAndExclusionsAreListed) {
+  const std::vector<Sighting> sightings{
+      {{1, 1}, 1, "oak", std::nullopt},
+      {{25, 5}, 2, "ash", std::nullopt},
+      {{15, 5}, 3, "oak", std::nullopt},  // between the plots
+  };
+  const Survey s = assign_to_plots(sightings, two_plots());
+  EXPECT_EQ(s.patterns[0].points.size(), 1u);
+  EXPECT_EQ(s.patterns[1].points.size(), 1u);
+  ASSERT_EQ(s.outside_feature_ids.size(), 1u);
+  EXPECT_EQ(s.outside_feature_ids[0], 3);
+  EXPECT_EQ(s.species, (std::vector<std::string>{"ash", "oak"}));
+  EXPECT_FALSE(s.assigned_by_attribute);
+}
+
+TEST(AssignToPlots, AttributeDecidesAndMismatchesAreReported) {
+  const std::vector<Sighting> sightings{
+      {{1, 1}, 1, "oak", std::string("A")},
+      {{1, 1}, 2, "oak", std::string("B")},  // says B but lies in A: kept in B, reported
+      {{1, 1}, 3, "oak", std::string("Z")},  // unknown plot: excluded, reported
+  };
+  const Survey s = assign_to_plots(sightings, two_plots());
+  EXPECT_TRUE(s.assigned_by_attribute);
+  EXPECT_EQ(s.patterns[0].points.size(), 1u);
+  EXPECT_EQ(s.patterns[1].points.size(), 1u);
+  EXPECT_EQ(s.off_window_feature_ids, (std::vector<std::int64_t>{2}));
+  EXPECT_EQ(s.unknown_plot_feature_ids, (std::vector<std::int64_t>{3}));
+  EXPECT_EQ(s.sighting_count(), 2u);
+}
+
+TEST(AssignToPlots, RefusesOverlappingPlots) {
+  std::vector<Plot> plots{Plot{"A", Window::rectangle(0, 0, 10, 10)},
+                          Plot{"B", Window::rectangle(5, 0, 15, 10)}};
+  try {
+    (void)assign_to_plots({}, plots);
+    FAIL();
+  } catch (const InputError& e) {
+    EXPECT_NE(std::string(e.what()).find("plots 'A' and 'B' overlap"), std::string::npos);
+  }
+  // Shared edges are fine.
+  EXPECT_NO_THROW((void)assign_to_plots({}, {Plot{"A", Window::rectangle(0, 0, 10, 10)},
+                                             Plot{"B", Window::rectangle(10, 0, 20, 10)}}));
+}
+
+}  // namespace
+}  // namespace stipple

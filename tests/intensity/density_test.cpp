@@ -1,0 +1,131 @@
+#include "stipple/intensity/density.hpp"
+
+#include <cmath>
+
+#include <gtest/gtest.h>
+
+#include "stipple/simulate/point_process.hpp"
+
+namespace stipple {
+namespace {
+
+// A survey of three square plots with the given areas (m2) and, per plot, counts of
+// species "a" and "b" placed on a grid inside each plot.
+Survey make_survey(const std::vector<double>& areas_m2,
+                   const std::vector<std::vector<std::uint64_t>>& counts) {
+  std::vector<Sighting> sightings;
+  std::vector<Plot> plots;
+  double x0 = 0.0;
+  std::int64_t fid = 1;
+  for (std::size_t i = 0; i < areas_m2.size(); ++i) {
+    const double side = std::sqrt(areas_m2[i]);
+    plots.push_back(Plot{"P" + std::to_string(i + 1), Window::rectangle(x0, 0, x0 + side, side)});
+    for (std::size_t s = 0; s < counts[i].size(); ++s) {
+      for (std::uint64_t k = 0; k < counts[i][s]; ++k) {
+        const double u = (static_cast<double>(k) + 0.5) / static_cast<double>(counts[i][s]);
+        sightings.push_back(Sighting{{x0 + side * u, side * (0.25 + 0.5 * static_cast<double>(s))},
+                                     fid++, s == 0 ? "a" : "b", std::nullopt});
+      }
+    }
+    x0 += side + 10.0;
+  }
+  return assign_to_plots(sightings, std::move(plots));
+}
+
+TEST(EstimateDensity, HomogeneityWorkedExample) {
+  // Source: REFERENCES.md section 5: areas [1, 0.5, 1.5] ha, counts [12, 7, 11]:
+  // X2 = 2.266667, df 2, p = 0.3219583, X2/df = 1.13333.
+  const Survey survey = make_survey({1e4, 0.5e4, 1.5e4}, {{12}, {7}, {11}});
+  const DensityResult r = estimate_density(survey, DensityOptions{});
+  ASSERT_EQ(r.pooled.size(), 2u);  // species a, then all together
+  const auto& pooled = r.pooled.front();
+  ASSERT_TRUE(pooled.homogeneity);
+  EXPECT_NEAR(pooled.homogeneity->chi_square.statistic, 2.266667, 1e-6);
+  EXPECT_EQ(pooled.homogeneity->chi_square.df, 2.0);
+  EXPECT_NEAR(pooled.homogeneity->p_value, 0.3219583, 1e-7);
+  EXPECT_NEAR(pooled.homogeneity->dispersion_ratio, 1.133333, 1e-6);
+  EXPECT_FALSE(pooled.homogeneity->monte_carlo);
+  EXPECT_FALSE(pooled.homogeneity->significant);
+  EXPECT_NEAR(pooled.intensity, 10.0, 1e-9);  // 30 in 3 ha
+}
+
+TEST(EstimateDensity, PooledIntervalIsExactOnSummedCounts) {
+  // Source: REFERENCES.md section 1: pooled 80 counts in 3 ha: 26.667 per ha,
+  // 95% [21.145008, 33.188975]. Superposition: sum n / sum |W|.
+  const Survey survey = make_survey({1e4, 1e4, 1e4}, {{31}, {25}, {24}});
+  const DensityResult r = estimate_density(survey, DensityOptions{});
+  const auto& pooled = r.pooled.front();
+  EXPECT_EQ(pooled.count, 80u);
+  EXPECT_NEAR(pooled.area, 3.0, 1e-9);
+  EXPECT_NEAR(pooled.intensity, 80.0 / 3.0, 1e-9);
+  EXPECT_NEAR(pooled.ci.lower, 21.145008, 1e-6);
+  EXPECT_NEAR(pooled.ci.upper, 33.188975, 1e-6);
+  // Per plot: 31 in 1 ha, Garwood [21.062996, 44.002026] (REFERENCES.md section 1).
+  EXPECT_EQ(r.estimates.front().count, 31u);
+  EXPECT_NEAR(r.estimates.front().ci.lower, 21.062996, 1e-6);
+  EXPECT_NEAR(r.estimates.front().ci.upper, 44.002026, 1e-6);
+}
+
+TEST(EstimateDensity, CompositionWorkedExample) {
+  // Source: REFERENCES.md section 5: table [[12,7,11],[8,13,9]] has X2 = 2.8 with
+  // species as rows; here plots are rows, so the table is its transpose (same X2).
+  const Survey survey = make_survey({1e4, 1e4, 1e4}, {{12, 8}, {7, 13}, {11, 9}});
+  const DensityResult r = estimate_density(survey, DensityOptions{});
+  ASSERT_TRUE(r.composition);
+  EXPECT_NEAR(r.composition->chi_square.statistic, 2.8, 1e-12);
+  EXPECT_EQ(r.composition->chi_square.df, 2.0);
+  EXPECT_NEAR(r.composition->p_value, 0.2465970, 1e-7);
+}
+
+TEST(EstimateDensity, SmallExpectedCountsUseMonteCarlo) {
+  const Survey survey = make_survey({1e4, 1e4, 1e4}, {{1}, {0}, {5}});
+  DensityOptions options;
+  options.simulations = 1999;
+  const DensityResult r = estimate_density(survey, options);
+  const auto& h = *r.pooled.front().homogeneity;
+  EXPECT_TRUE(h.monte_carlo);
+  ASSERT_TRUE(h.chi_square.monte_carlo_p_value);
+  EXPECT_EQ(h.p_value, *h.chi_square.monte_carlo_p_value);
+  EXPECT_GT(h.p_value, 0.0);
+  // Reproducible: same seed, same p.
+  const DensityResult again = estimate_density(survey, options);
+  EXPECT_EQ(again.pooled.front().homogeneity->p_value, h.p_value);
+}
+
+TEST(EstimateDensity, HeterogeneousPlotsReportBetweenPlotError) {
+  // Ratio-estimator variance (Cochran 1977, from memory): k/(k-1) sum (n_i - R a_i)^2 / A^2.
+  const Survey survey = make_survey({1e4, 1e4, 1e4}, {{10}, {50}, {90}});
+  const DensityResult r = estimate_density(survey, DensityOptions{});
+  const auto& h = *r.pooled.front().homogeneity;
+  EXPECT_TRUE(h.significant);
+  const double expected_se = std::sqrt(1.5 * (40.0 * 40.0 + 0.0 + 40.0 * 40.0)) / 3.0;
+  EXPECT_NEAR(h.between_plot_se, expected_se, 1e-9);
+  EXPECT_GT(h.between_plot_ci.upper - h.between_plot_ci.lower,
+            r.pooled.front().ci.upper - r.pooled.front().ci.lower);
+}
+
+TEST(EstimateDensity, AllSpeciesRowIsTheSuperposition) {
+  const Survey survey = make_survey({1e4}, {{12, 8}});
+  DensityOptions options;
+  options.detection = DetectionTable::by_species({{"a", {0.5, 0.0}}, {"b", {1.0, 0.0}}},
+                                                 std::nullopt, "test");
+  const DensityResult r = estimate_density(survey, options);
+  ASSERT_EQ(r.estimates.size(), 3u);
+  EXPECT_FALSE(r.estimates[2].species);
+  EXPECT_EQ(r.estimates[2].count, 20u);
+  EXPECT_NEAR(r.estimates[2].corrected.intensity, 24.0 + 8.0, 1e-9);
+  EXPECT_NEAR(r.estimates[0].corrected.intensity, 24.0, 1e-9);
+  EXPECT_FALSE(r.pooled.back().homogeneity);  // one plot: nothing to compare
+}
+
+TEST(EstimateDensity, UnitsScaleIntensities) {
+  const Survey survey = make_survey({1e4}, {{31}});
+  DensityOptions options;
+  options.unit = AreaUnit::square_kilometre;
+  const DensityResult r = estimate_density(survey, options);
+  EXPECT_NEAR(r.estimates.front().area, 0.01, 1e-12);
+  EXPECT_NEAR(r.estimates.front().intensity, 3100.0, 1e-9);
+}
+
+}  // namespace
+}  // namespace stipple
