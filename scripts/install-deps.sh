@@ -8,6 +8,8 @@ packages=(
   libboost-dev                     # Boost.Geometry, Boost.Math, Boost.Random (header-only)
   libcli11-dev                     # command-line option parsing
   nlohmann-json3-dev               # JSON output
+  libcairo2-dev fonts-dejavu-core  # figures (SVG, PNG) and their font
+  pkg-config                       # finds cairo
   libgtest-dev libgmock-dev        # GoogleTest
   libbenchmark-dev                 # Google Benchmark (bench/)
   python3                          # demo-data generator

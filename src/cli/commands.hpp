@@ -11,6 +11,8 @@ using Action = std::function<int()>;
 
 /// `stipple density`: per-plot and pooled intensities, detection-corrected.
 Action add_density_command(CLI::App& app);
+/// `stipple randomness`: CSR tests per plot and species, and between species.
+Action add_randomness_command(CLI::App& app);
 /// `stipple inspect`: what a vector source holds.
 Action add_inspect_command(CLI::App& app);
 

@@ -18,6 +18,7 @@ int main(int argc, char** argv) {
   app.set_version_flag("--version", std::string("stipple ") + STIPPLE_VERSION);
   app.require_subcommand(1);
   std::vector<stipple::cli::Action> actions{stipple::cli::add_density_command(app),
+                                            stipple::cli::add_randomness_command(app),
                                             stipple::cli::add_inspect_command(app)};
   try {
     app.parse(argc, argv);

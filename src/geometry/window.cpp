@@ -1,6 +1,8 @@
 #include "stipple/geometry/window.hpp"
 
+#include <algorithm>
 #include <cmath>
+#include <limits>
 #include <sstream>
 
 #include <boost/geometry.hpp>
@@ -35,6 +37,68 @@ Window::Window(BgMultiPolygon shape) : shape_(std::move(shape)) {
              box.max_corner().y()};
   is_rectangle_ = shape_.size() == 1 && shape_[0].inners().empty() &&
                   ring_is_axis_aligned_rectangle(shape_[0].outer());
+  const auto add_ring = [this](const BgPolygon::ring_type& ring) {
+    for (std::size_t i = 0; i + 1 < ring.size(); ++i)
+      edges_.push_back({{ring[i].x(), ring[i].y()}, {ring[i + 1].x(), ring[i + 1].y()}});
+  };
+  for (const auto& polygon : shape_) {
+    add_ring(polygon.outer());
+    for (const auto& inner : polygon.inners()) add_ring(inner);
+  }
+}
+
+double Window::boundary_distance(const Point& p) const {
+  double best2 = std::numeric_limits<double>::infinity();
+  for (const auto& e : edges_) {
+    const double ex = e.b.x - e.a.x;
+    const double ey = e.b.y - e.a.y;
+    const double length2 = ex * ex + ey * ey;
+    double t = length2 > 0.0 ? ((p.x - e.a.x) * ex + (p.y - e.a.y) * ey) / length2 : 0.0;
+    t = std::clamp(t, 0.0, 1.0);
+    const double dx = e.a.x + t * ex - p.x;
+    const double dy = e.a.y + t * ey - p.y;
+    best2 = std::min(best2, dx * dx + dy * dy);
+  }
+  return std::sqrt(best2);
+}
+
+double Window::circle_fraction_inside(const Point& c, double r) const {
+  constexpr double two_pi = 6.283185307179586;
+  if (!(r > 0.0)) return contains_almost_surely(c) ? 1.0 : 0.0;
+  std::vector<double> angles;
+  for (const auto& e : edges_) {
+    // |a + t (b - a) - c|^2 = r^2, t in [0, 1]
+    const double dx = e.b.x - e.a.x;
+    const double dy = e.b.y - e.a.y;
+    const double fx = e.a.x - c.x;
+    const double fy = e.a.y - c.y;
+    const double qa = dx * dx + dy * dy;
+    if (qa == 0.0) continue;
+    const double qb = 2.0 * (fx * dx + fy * dy);
+    const double qc = fx * fx + fy * fy - r * r;
+    const double disc = qb * qb - 4.0 * qa * qc;
+    if (disc < 0.0) continue;
+    const double root = std::sqrt(disc);
+    for (const double t : {(-qb - root) / (2.0 * qa), (-qb + root) / (2.0 * qa)}) {
+      if (t < 0.0 || t > 1.0) continue;
+      double angle = std::atan2(fy + t * dy, fx + t * dx);
+      if (angle < 0.0) angle += two_pi;
+      angles.push_back(angle);
+    }
+  }
+  const auto on_circle = [&](double angle) {
+    return Point{c.x + r * std::cos(angle), c.y + r * std::sin(angle)};
+  };
+  if (angles.empty()) return contains_almost_surely(on_circle(0.0)) ? 1.0 : 0.0;
+  std::sort(angles.begin(), angles.end());
+  angles.push_back(angles.front() + two_pi);
+  double inside = 0.0;
+  for (std::size_t k = 0; k + 1 < angles.size(); ++k) {
+    const double arc = angles[k + 1] - angles[k];
+    if (arc <= 1e-12) continue;
+    if (contains_almost_surely(on_circle(angles[k] + arc / 2.0))) inside += arc;
+  }
+  return inside / two_pi;
 }
 
 Window Window::from_polygons(BgMultiPolygon shape, std::string_view context) {
@@ -71,6 +135,18 @@ bool Window::contains(const Point& p) const {
   if (p.x < bounds_.xmin || p.x > bounds_.xmax || p.y < bounds_.ymin || p.y > bounds_.ymax)
     return false;
   return bg::covered_by(BgPoint(p.x, p.y), shape_);
+}
+
+bool Window::contains_almost_surely(const Point& p) const {
+  if (p.x < bounds_.xmin || p.x > bounds_.xmax || p.y < bounds_.ymin || p.y > bounds_.ymax)
+    return false;
+  bool inside = false;
+  for (const auto& e : edges_) {
+    if ((e.a.y > p.y) != (e.b.y > p.y) &&
+        p.x < e.a.x + (p.y - e.a.y) * (e.b.x - e.a.x) / (e.b.y - e.a.y))
+      inside = !inside;
+  }
+  return inside;
 }
 
 std::size_t Window::hole_count() const {

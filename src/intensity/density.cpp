@@ -33,7 +33,7 @@ HomogeneityTest test_homogeneity(const std::vector<std::uint64_t>& counts,
   if (needs_monte_carlo(test.chi_square) && options.simulations > 0) {
     Engine engine(derive_seed(options.seed, key));
     test.chi_square.monte_carlo_p_value =
-        multinomial_monte_carlo_p(counts, expected, options.simulations, engine);
+        multinomial_monte_carlo(counts, expected, options.simulations, engine).upper;
     test.chi_square.simulations = options.simulations;
     test.p_value = *test.chi_square.monte_carlo_p_value;
     test.monte_carlo = true;
@@ -154,7 +154,7 @@ DensityResult estimate_density(const Survey& survey, const DensityOptions& optio
     for (std::size_t s = 0; s < n_species; ++s) {
       if (counts[i][s] > 0) any = true, species_seen[s] = true;
     }
-    plots_with_sightings += any ? 1 : 0;
+    plots_with_sightings += any ? 1u : 0u;
   }
   const auto seen = static_cast<std::size_t>(std::count(species_seen.begin(), species_seen.end(), true));
   if (plots_with_sightings >= 2 && seen >= 2) {

@@ -115,23 +115,25 @@ ChiSquareTest pearson_goodness_of_fit(const std::vector<std::uint64_t>& observed
   return test;
 }
 
-double multinomial_monte_carlo_p(const std::vector<std::uint64_t>& observed,
-                                 const std::vector<double>& expected, std::size_t simulations,
-                                 Engine& engine) {
+MonteCarloTails multinomial_monte_carlo(const std::vector<std::uint64_t>& observed,
+                                        const std::vector<double>& expected,
+                                        std::size_t simulations, Engine& engine) {
   const auto total = std::accumulate(observed.begin(), observed.end(), std::uint64_t{0});
   const double expected_total = std::accumulate(expected.begin(), expected.end(), 0.0);
   // Expected counts under the null, rescaled to the observed total.
   std::vector<double> probabilities(expected.size());
-  for (std::size_t i = 0; i < expected.size(); ++i)
-    probabilities[i] = expected[i] / expected_total;
   std::vector<double> null_expected(expected.size());
-  for (std::size_t i = 0; i < expected.size(); ++i)
+  for (std::size_t i = 0; i < expected.size(); ++i) {
+    probabilities[i] = expected[i] / expected_total;
     null_expected[i] = probabilities[i] * static_cast<double>(total);
+  }
   const double observed_x2 = statistic_of(observed, null_expected);
 
-  std::size_t extreme = 0;
+  std::size_t upper = 0;
+  std::size_t lower = 0;
   std::vector<std::uint64_t> draw(observed.size());
   for (std::size_t s = 0; s < simulations; ++s) {
+    // Sequential conditional binomials give one multinomial draw.
     std::uint64_t remaining = total;
     double remaining_p = 1.0;
     for (std::size_t i = 0; i < probabilities.size(); ++i) {
@@ -148,9 +150,16 @@ double multinomial_monte_carlo_p(const std::vector<std::uint64_t>& observed,
       remaining -= draw[i];
       remaining_p -= probabilities[i];
     }
-    if (at_least(statistic_of(draw, null_expected), observed_x2)) ++extreme;
+    const double x2 = statistic_of(draw, null_expected);
+    upper += at_least(x2, observed_x2) ? 1u : 0u;
+    lower += at_least(-x2, -observed_x2) ? 1u : 0u;
   }
-  return static_cast<double>(1 + extreme) / static_cast<double>(simulations + 1);
+  MonteCarloTails tails;
+  const double n = static_cast<double>(simulations + 1);
+  tails.upper = static_cast<double>(1 + upper) / n;
+  tails.lower = static_cast<double>(1 + lower) / n;
+  tails.two_sided = std::min(1.0, 2.0 * std::min(tails.upper, tails.lower));
+  return tails;
 }
 
 ChiSquareTest pearson_contingency(const std::vector<std::vector<std::uint64_t>>& table) {

@@ -48,6 +48,10 @@ class Window {
   [[nodiscard]] const Bounds& bounds() const { return bounds_; }
   /// True when the point lies inside or on the boundary.
   [[nodiscard]] bool contains(const Point& p) const;
+  /// True when the point is inside by the even-odd crossing rule over all rings; a point
+  /// exactly on the boundary may go either way. Several times faster than contains(): for
+  /// sampling and for arc tests, where the boundary has measure zero.
+  [[nodiscard]] bool contains_almost_surely(const Point& p) const;
   /// True when the window is a single axis-aligned rectangle without holes.
   [[nodiscard]] bool is_rectangle() const { return is_rectangle_; }
   [[nodiscard]] const BgMultiPolygon& shape() const { return shape_; }
@@ -56,6 +60,20 @@ class Window {
   /// Number of holes over all parts.
   [[nodiscard]] std::size_t hole_count() const;
 
+  /// Distance from a point to the nearest edge of any ring (outer or hole), metres.
+  [[nodiscard]] double boundary_distance(const Point& p) const;
+  /// Share of the circumference of the circle (centre, radius) that lies inside the
+  /// window, computed exactly from the circle's crossings with every polygon edge.
+  /// Used as Ripley's isotropic edge-correction weight 1/share (Ripley 1977).
+  [[nodiscard]] double circle_fraction_inside(const Point& centre, double radius) const;
+
+  /// An edge of a ring.
+  struct Segment {
+    Point a;
+    Point b;
+  };
+  [[nodiscard]] const std::vector<Segment>& edges() const { return edges_; }
+
  private:
   explicit Window(BgMultiPolygon shape);
   BgMultiPolygon shape_;
@@ -63,6 +81,7 @@ class Window {
   double perimeter_m_ = 0.0;
   Bounds bounds_;
   bool is_rectangle_ = false;
+  std::vector<Segment> edges_;
 };
 
 /// The Ripley–Rasson estimate of an unknown convex window from the points inside it:

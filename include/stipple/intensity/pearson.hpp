@@ -35,12 +35,19 @@ inline constexpr double min_expected_for_chi_square = 5.0;
 [[nodiscard]] ChiSquareTest pearson_goodness_of_fit(const std::vector<std::uint64_t>& observed,
                                                     const std::vector<double>& expected);
 
-/// Monte Carlo upper-tail p-value of X2 given the total count: multinomial draws with cell
-/// probabilities proportional to `expected`; p = (1 + #{X2_sim >= X2_obs}) / (N + 1)
-/// (Hope 1968, JRSS B 30:582-598, from memory: pages).
-[[nodiscard]] double multinomial_monte_carlo_p(const std::vector<std::uint64_t>& observed,
-                                               const std::vector<double>& expected,
-                                               std::size_t simulations, Engine& engine);
+/// Monte Carlo p-values of X2 given the total count.
+struct MonteCarloTails {
+  double upper = 1.0;       ///< (1 + #{X2_sim >= X2_obs}) / (N + 1)
+  double lower = 1.0;       ///< (1 + #{X2_sim <= X2_obs}) / (N + 1)
+  double two_sided = 1.0;   ///< 2 min(upper, lower), capped at 1
+};
+
+/// Multinomial draws of the observed total with cell probabilities proportional to
+/// `expected` (for quadrats: the binomial process, same n in the same window); Monte Carlo
+/// p-values as in Hope (1968, JRSS B 30:582-598, from memory: pages).
+[[nodiscard]] MonteCarloTails multinomial_monte_carlo(const std::vector<std::uint64_t>& observed,
+                                                      const std::vector<double>& expected,
+                                                      std::size_t simulations, Engine& engine);
 
 /// Pearson X2 of independence for an r x c table of counts (rows or columns summing to 0
 /// are dropped), df = (r - 1)(c - 1). Throws AnalysisError when fewer than 2 rows or

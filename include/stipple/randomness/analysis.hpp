@@ -1,0 +1,111 @@
+#pragma once
+/// Tests of complete spatial randomness for every plot x species of a survey (and all
+/// species together), and random-labelling tests between species.
+
+#include <cstddef>
+#include <cstdint>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "stipple/geometry/survey.hpp"
+#include "stipple/randomness/clark_evans.hpp"
+#include "stipple/randomness/envelope.hpp"
+#include "stipple/randomness/quadrat.hpp"
+#include "stipple/randomness/summary_functions.hpp"
+#include "stipple/simulate/engine.hpp"
+
+namespace stipple {
+
+struct RandomnessOptions {
+  QuadratOptions quadrat;                                 ///< its `simulations` is set from below
+  std::optional<NeighbourEdgeCorrection> edge_correction; ///< default per window shape
+  std::size_t simulations = 999;
+  std::uint64_t seed = default_seed;
+  unsigned threads = 0;                  ///< 0 = all cores; results never depend on it
+  std::optional<double> rmax_m;          ///< default: default_rmax() per group
+  std::size_t steps = 64;
+  double alpha = 0.05;
+  bool run_quadrat = true;
+  bool run_clark_evans = true;
+  bool run_envelope = true;
+  bool run_interactions = true;
+  std::size_t min_points = 3;            ///< smaller groups are skipped and listed
+};
+
+/// One summary function with its Monte Carlo envelope.
+struct FunctionEnvelope {
+  std::string function;  ///< "L", "K", "g", "G", "F", "J"
+  EnvelopeResult envelope;
+};
+
+struct GroupResult {
+  std::string plot;
+  std::optional<std::string> species;  ///< empty = all species together
+  std::size_t n = 0;
+  std::optional<QuadratResult> quadrat;
+  std::optional<ClarkEvansResult> clark_evans;
+  std::optional<double> rmax_m;
+  PairCorrection pair_correction = PairCorrection::isotropic;
+  DistanceCorrection distance_correction = DistanceCorrection::kaplan_meier;
+  std::vector<FunctionEnvelope> functions;  ///< L first; empty when the envelope did not run
+  std::string verdict = "random";           ///< clustered | regular | random, at alpha
+  std::string verdict_basis;                ///< which test decided
+  std::vector<std::string> notes;
+  /// The L envelope, when it ran.
+  [[nodiscard]] const EnvelopeResult* l_envelope() const {
+    return functions.empty() ? nullptr : &functions.front().envelope;
+  }
+};
+
+struct InteractionResult {
+  std::string plot;
+  std::string species_a;
+  std::string species_b;
+  std::size_t n_a = 0;
+  std::size_t n_b = 0;
+  double rmax_m = 0.0;
+  EnvelopeResult cross_l;     ///< cross-L of b around a against random labellings
+  double p_value = 1.0;       ///< DCLF test of cross-L under random labelling
+  std::string direction = "none";  ///< association | segregation | none, at alpha
+};
+
+struct SkippedGroup {
+  std::string plot;
+  std::optional<std::string> species;
+  std::size_t n = 0;
+  std::string reason;
+};
+
+struct RandomnessResult {
+  std::size_t simulations = 0;
+  std::uint64_t seed = default_seed;
+  double alpha = 0.05;
+  std::vector<GroupResult> results;
+  std::vector<InteractionResult> interactions;
+  std::vector<SkippedGroup> skipped;
+};
+
+/// Runs the quadrat, Clark-Evans and envelope tests for each species of each plot and
+/// for all species together, and random-labelling tests for each pair of species in a
+/// plot. CSR is simulated as the binomial process (same n, same window); every simulation
+/// has its own seed derived from (seed, plot, species, index), so results are identical for
+/// any thread count. The verdict follows the DCLF test on L when the envelope ran (direction
+/// from the sign of the mean deviation from the simulation mean), else the Clark-Evans test,
+/// else the quadrat test.
+[[nodiscard]] RandomnessResult analyse_randomness(const Survey& survey,
+                                                  const RandomnessOptions& options);
+
+/// One group's tests: exposed for the statistical test suite and the benchmarks.
+[[nodiscard]] GroupResult analyse_pattern(const std::vector<Point>& points, const Window& window,
+                                          const RandomnessOptions& options,
+                                          const std::string& key);
+
+/// Random labelling of two species over their fixed locations (Diggle 2003, ch. 7).
+[[nodiscard]] InteractionResult random_labelling_test(const std::vector<Point>& a,
+                                                      const std::vector<Point>& b,
+                                                      const Window& window,
+                                                      const RandomnessOptions& options,
+                                                      const std::string& key);
+
+}  // namespace stipple

@@ -1,0 +1,27 @@
+#pragma once
+/// Randomness results as a readable table, JSON, a curves CSV and figures.
+
+#include <string>
+#include <utility>
+#include <vector>
+
+#include "stipple/io/reader.hpp"
+#include "stipple/randomness/analysis.hpp"
+
+namespace stipple {
+
+/// The cautions printed with every randomness result.
+[[nodiscard]] const std::vector<std::string>& randomness_cautions();
+
+[[nodiscard]] std::string randomness_table(const LoadedSurvey& survey, const RandomnessResult& result);
+/// The JSON document of `stipple randomness --json` (contract in README, "JSON output").
+[[nodiscard]] std::string randomness_json(const LoadedSurvey& survey, const RandomnessResult& result);
+/// One row per group, function and distance: plot, species, species_b, function, r,
+/// observed, theoretical, low, high (pointwise envelope), global_low, global_high.
+[[nodiscard]] std::string randomness_curves_csv(const RandomnessResult& result);
+/// One (file name, content) pair per figure: L with its envelopes, SVG and PNG, per group
+/// and per species pair.
+[[nodiscard]] std::vector<std::pair<std::string, std::string>> randomness_figures(
+    const RandomnessResult& result);
+
+}  // namespace stipple

@@ -1,0 +1,136 @@
+// `stipple randomness`: parse options, call the library, print.
+
+#include <filesystem>
+#include <iostream>
+#include <memory>
+#include <sstream>
+
+#include "commands.hpp"
+#include "common_options.hpp"
+#include "stipple/error.hpp"
+#include "stipple/intensity/poisson.hpp"
+#include "stipple/randomness/analysis.hpp"
+#include "stipple/report/randomness_report.hpp"
+
+namespace stipple::cli {
+
+namespace {
+
+struct RandomnessCommandOptions {
+  CommonOptions common;
+  std::string quadrats = "4x4";
+  bool quadrat_monte_carlo = false;
+  std::string edge_correction;
+  std::size_t simulations = 999;
+  std::uint64_t seed = default_seed;
+  unsigned threads = 0;
+  double rmax = 0.0;
+  std::vector<std::string> only;
+  std::string curves;
+  std::string figures;
+};
+
+std::pair<std::size_t, std::size_t> parse_grid(const std::string& text) {
+  const auto x = text.find_first_of("xX");
+  std::size_t nx = 0;
+  std::size_t ny = 0;
+  try {
+    if (x == std::string::npos) throw std::invalid_argument(text);
+    std::size_t used = 0;
+    nx = std::stoul(text.substr(0, x), &used);
+    if (used != x) throw std::invalid_argument(text);
+    ny = std::stoul(text.substr(x + 1), &used);
+    if (used != text.size() - x - 1) throw std::invalid_argument(text);
+  } catch (const std::exception&) {
+    throw InputError("--quadrats must look like 4x4 (got '" + text + "')");
+  }
+  if (nx < 1 || ny < 1 || nx * ny < 2 || nx * ny > 10000)
+    throw InputError("--quadrats needs between 2 and 10000 cells (got '" + text + "')");
+  return {nx, ny};
+}
+
+int run_randomness(const RandomnessCommandOptions& o) {
+  RandomnessOptions options;
+  std::tie(options.quadrat.nx, options.quadrat.ny) = parse_grid(o.quadrats);
+  options.quadrat.force_monte_carlo = o.quadrat_monte_carlo;
+  if (!o.edge_correction.empty()) options.edge_correction = parse_edge_correction(o.edge_correction);
+  options.simulations = o.simulations;
+  options.seed = o.seed;
+  options.threads = o.threads;
+  if (o.rmax < 0.0) throw InputError("--rmax must be positive");
+  if (o.rmax > 0.0) options.rmax_m = o.rmax;
+  check_confidence(o.common.confidence);
+  options.alpha = 1.0 - o.common.confidence;
+  if (!o.only.empty()) {
+    options.run_quadrat = options.run_clark_evans = options.run_envelope = options.run_interactions = false;
+    for (const auto& name : o.only) {
+      if (name == "quadrat") options.run_quadrat = true;
+      else if (name == "clark-evans") options.run_clark_evans = true;
+      else if (name == "envelope") options.run_envelope = true;
+      else if (name == "interactions") options.run_interactions = true;
+      else throw InputError("--only takes quadrat, clark-evans, envelope, interactions (got '" + name + "')");
+    }
+  }
+  if (options.simulations == 0 && (options.run_envelope || options.run_interactions))
+    throw InputError("--simulations 0 leaves no envelope or labelling test; use --only quadrat,clark-evans");
+
+  const std::vector<std::string> inputs = input_paths(o.common);
+  const LoadedSurvey survey = load_survey(to_read_options(o.common));
+  const RandomnessResult result = analyse_randomness(survey.survey, options);
+
+  const bool stdout_taken = o.common.json == "-" || o.common.csv == "-" || o.curves == "-";
+  if (!o.common.json.empty()) write_output(o.common.json, randomness_json(survey, result), inputs);
+  if (!o.curves.empty()) write_output(o.curves, randomness_curves_csv(result), inputs);
+  if (!o.common.csv.empty()) write_output(o.common.csv, randomness_curves_csv(result), inputs);
+  if (!o.figures.empty()) {
+    std::error_code ec;
+    std::filesystem::create_directories(o.figures, ec);
+    if (ec) throw InputError(o.figures + ": cannot create folder (" + ec.message() + ")");
+    for (const auto& [name, content] : randomness_figures(result))
+      write_output((std::filesystem::path(o.figures) / name).string(), content, inputs);
+  }
+  if (!stdout_taken) {
+    std::cout << randomness_table(survey, result);
+  } else {
+    for (const auto& w : survey.warnings) std::cerr << "warning: " << w << "\n";
+  }
+  return 0;
+}
+
+}  // namespace
+
+Action add_randomness_command(CLI::App& app) {
+  auto o = std::make_shared<RandomnessCommandOptions>();
+  CLI::App* command = app.add_subcommand(
+      "randomness",
+      "Tests of complete spatial randomness per plot and species (quadrats, Clark-Evans, "
+      "summary functions with Monte Carlo envelopes) and random-labelling tests between species");
+  add_common_options(*command, o->common);
+  command->add_option("--quadrats", o->quadrats, "Quadrat grid NxM over the window's bounding box")
+      ->capture_default_str();
+  command->add_flag("--quadrat-monte-carlo", o->quadrat_monte_carlo,
+                    "Monte Carlo quadrat p-value even when every expected count is 5 or more");
+  command->add_option("--edge-correction", o->edge_correction,
+                      "Clark-Evans edge correction: none, donnelly (rectangles) or border "
+                      "(default: donnelly for rectangles, border otherwise)")
+      ->check(CLI::IsMember({"none", "donnelly", "border"}));
+  command->add_option("--simulations", o->simulations, "CSR simulations and random labellings")
+      ->capture_default_str();
+  command->add_option("--seed", o->seed, "Seed of every simulation")->capture_default_str();
+  command->add_option("--threads", o->threads, "Threads (0 = all cores; results do not depend on it)")
+      ->capture_default_str();
+  command->add_option("--rmax", o->rmax,
+                      "Largest distance of the summary functions, metres (default: the smaller of "
+                      "a quarter of the window's shorter side and 4/sqrt(intensity))");
+  command->add_option("--only", o->only, "Run only these: quadrat, clark-evans, envelope, interactions")
+      ->delimiter(',');
+  command->add_option("--curves", o->curves,
+                      "CSV of r, observed, theoretical and envelopes per group and function");
+  command->add_option("--figures", o->figures, "Folder for one L-envelope figure per group (SVG and PNG)");
+  return [command, o] {
+    if (!command->parsed()) return -1;
+    return run_randomness(*o);
+  };
+}
+
+}  // namespace stipple::cli

@@ -1,0 +1,253 @@
+#include "stipple/randomness/analysis.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <numeric>
+
+#include <boost/random/uniform_int_distribution.hpp>
+
+#include "stipple/error.hpp"
+#include "stipple/format.hpp"
+#include "stipple/geometry/spatial_index.hpp"
+#include "stipple/parallel.hpp"
+#include "stipple/simulate/point_process.hpp"
+
+namespace stipple {
+
+namespace {
+
+constexpr double pi = 3.14159265358979323846;
+
+std::string group_key(const std::string& plot, const std::optional<std::string>& species) {
+  return plot + "/" + (species ? *species : std::string("*"));
+}
+
+// Two-sided Monte Carlo p of a statistic against simulated values (Hope 1968).
+double two_sided_monte_carlo(double observed, const std::vector<double>& simulated) {
+  std::size_t upper = 0;
+  std::size_t lower = 0;
+  std::size_t used = 0;
+  for (const double v : simulated) {
+    if (std::isnan(v)) continue;
+    ++used;
+    upper += v >= observed ? 1u : 0u;
+    lower += v <= observed ? 1u : 0u;
+  }
+  const double n = static_cast<double>(used + 1);
+  return std::min(1.0, 2.0 * std::min(static_cast<double>(upper + 1), static_cast<double>(lower + 1)) / n);
+}
+
+std::vector<double> curve_of(const SummaryCurves& c, std::size_t which) {
+  switch (which) {
+    case 0: return c.l;
+    case 1: return c.k;
+    case 2: return c.g;
+    case 3: return c.nn;
+    case 4: return c.f;
+    default: return c.j;
+  }
+}
+
+const char* function_names[] = {"L", "K", "g", "G", "F", "J"};
+
+}  // namespace
+
+GroupResult analyse_pattern(const std::vector<Point>& points, const Window& window,
+                            const RandomnessOptions& options, const std::string& key) {
+  GroupResult g;
+  g.n = points.size();
+  const std::size_t n = points.size();
+  const double lambda = static_cast<double>(n) / window.area_m2();
+
+  if (options.run_quadrat) {
+    QuadratOptions q = options.quadrat;
+    q.simulations = options.simulations;
+    Engine engine(derive_seed(options.seed, key + "/quadrat"));
+    try {
+      g.quadrat = quadrat_test(points, window, q, engine);
+    } catch (const AnalysisError& e) {
+      g.notes.push_back(std::string("quadrat test not run: ") + e.what());
+    }
+    if (g.quadrat && g.quadrat->cells_too_small) {
+      g.notes.push_back("quadrat cells are small for the chi-square law (smallest expected count " +
+                        format_significant(g.quadrat->chi_square.min_expected, 3) +
+                        " < 5): the Monte Carlo p-value is used; consider fewer quadrats");
+    }
+  }
+
+  const bool need_simulations = options.simulations > 0 && (options.run_envelope || options.run_clark_evans);
+  const double rmax = options.rmax_m.value_or(default_rmax(window, n));
+  SummaryOptions so;
+  so.rmax_m = rmax;
+  so.steps = options.steps;
+  const SummaryContext context(window, so);
+  const SummaryCurves observed = summary_functions(points, context);
+
+  if (options.run_clark_evans) {
+    try {
+      g.clark_evans = clark_evans(observed.nearest, observed.boundary, window, options.edge_correction);
+      if (!g.clark_evans->note.empty()) g.notes.push_back(g.clark_evans->note);
+    } catch (const AnalysisError& e) {
+      g.notes.push_back(std::string("Clark-Evans test not run: ") + e.what());
+    }
+  }
+  if (need_simulations) {
+    std::vector<SummaryCurves> simulated(options.simulations);
+    std::vector<double> simulated_ce(options.simulations, std::nan(""));
+    const NeighbourEdgeCorrection ce_correction =
+        g.clark_evans ? g.clark_evans->edge_correction : NeighbourEdgeCorrection::none;
+    parallel_for(options.simulations, options.threads, [&](std::size_t s) {
+      Engine engine(derive_seed(options.seed, key + "/sim/" + std::to_string(s)));
+      const std::vector<Point> pattern = simulate_binomial(window, n, engine);
+      simulated[s] = summary_functions(pattern, context);
+      simulated_ce[s] = clark_evans_mean(simulated[s].nearest, simulated[s].boundary, window, ce_correction);
+      simulated[s].nearest.clear();
+      simulated[s].boundary.clear();
+    });
+    if (g.clark_evans) g.clark_evans->monte_carlo_p_value = two_sided_monte_carlo(g.clark_evans->mean_distance, simulated_ce);
+    if (options.run_envelope) {
+      g.rmax_m = rmax;
+      const SummaryCurves theory = csr_curves(context.r(), lambda);
+      for (std::size_t f = 0; f < 6; ++f) {
+        std::vector<std::vector<double>> curves;
+        curves.reserve(simulated.size());
+        for (const auto& sim : simulated) curves.push_back(curve_of(sim, f));
+        g.functions.push_back(FunctionEnvelope{
+            function_names[f], envelope_test(context.r(), curve_of(observed, f), curve_of(theory, f),
+                                             curves, options.alpha)});
+      }
+    }
+  }
+
+  // Verdict.
+  if (const EnvelopeResult* l = g.l_envelope()) {
+    g.verdict_basis = "DCLF test on L";
+    if (l->dclf_p_value < options.alpha) g.verdict = l->mean_deviation > 0.0 ? "clustered" : "regular";
+  } else if (g.clark_evans) {
+    const double p = g.clark_evans->monte_carlo_p_value.value_or(g.clark_evans->p_value);
+    g.verdict_basis = "Clark-Evans test";
+    if (p < options.alpha) g.verdict = g.clark_evans->ratio < 1.0 ? "clustered" : "regular";
+  } else if (g.quadrat) {
+    g.verdict_basis = "quadrat test";
+    if (g.quadrat->p_value < options.alpha)
+      g.verdict = g.quadrat->chi_square.p_upper < g.quadrat->chi_square.p_lower ? "clustered" : "regular";
+  }
+  return g;
+}
+
+InteractionResult random_labelling_test(const std::vector<Point>& a, const std::vector<Point>& b,
+                                        const Window& window, const RandomnessOptions& options,
+                                        const std::string& key) {
+  if (a.size() < 2 || b.size() < 2) throw AnalysisError("random labelling needs 2 points of each species");
+  if (options.simulations == 0) throw AnalysisError("random labelling needs --simulations > 0");
+  InteractionResult result;
+  result.n_a = a.size();
+  result.n_b = b.size();
+  std::vector<Point> all(a);
+  all.insert(all.end(), b.begin(), b.end());
+  const std::size_t n = all.size();
+  result.rmax_m = options.rmax_m.value_or(default_rmax(window, n));
+  const std::size_t steps = options.steps;
+  const double dr = result.rmax_m / static_cast<double>(steps);
+  std::vector<double> r(steps);
+  for (std::size_t k = 0; k < steps; ++k) r[k] = dr * static_cast<double>(k + 1);
+
+  // Pairs of the fixed locations with Ripley's isotropic weights, centred on each end.
+  struct Pair {
+    std::uint32_t i, j;
+    std::size_t bin;
+    double w_i, w_j;
+  };
+  std::vector<Pair> pairs;
+  std::vector<double> boundary(n);
+  for (std::size_t i = 0; i < n; ++i) boundary[i] = window.boundary_distance(all[i]);
+  const auto weight = [&](std::size_t centre, double d) {
+    if (d <= boundary[centre]) return 1.0;
+    return 1.0 / std::max(window.circle_fraction_inside(all[centre], d), 1e-6);
+  };
+  const PointGrid grid(all);
+  grid.for_each_pair_within(result.rmax_m, [&](std::size_t i, std::size_t j, double d) {
+    const double bin = std::ceil(d / dr - 1e-12);
+    pairs.push_back({static_cast<std::uint32_t>(i), static_cast<std::uint32_t>(j),
+                     bin < 1.0 ? std::size_t{1} : static_cast<std::size_t>(bin), weight(i, d), weight(j, d)});
+  });
+  const double scale = window.area_m2() / (static_cast<double>(a.size()) * static_cast<double>(b.size()));
+  const auto cross_l = [&](const std::vector<std::uint8_t>& is_a) {
+    std::vector<double> hist(steps + 2, 0.0);
+    for (const auto& p : pairs) {
+      if (is_a[p.i] && !is_a[p.j]) hist[p.bin] += p.w_i;
+      else if (!is_a[p.i] && is_a[p.j]) hist[p.bin] += p.w_j;
+    }
+    std::vector<double> l(steps);
+    double cumulative = 0.0;
+    for (std::size_t k = 1; k <= steps; ++k) {
+      cumulative += hist[k];
+      l[k - 1] = std::sqrt(scale * cumulative / pi);
+    }
+    return l;
+  };
+  std::vector<std::uint8_t> labels(n, 0);
+  std::fill(labels.begin(), labels.begin() + static_cast<std::ptrdiff_t>(a.size()), 1);
+  const std::vector<double> observed = cross_l(labels);
+  std::vector<std::vector<double>> simulated(options.simulations);
+  parallel_for(options.simulations, options.threads, [&](std::size_t s) {
+    Engine engine(derive_seed(options.seed, key + "/labelling/" + std::to_string(s)));
+    std::vector<std::uint8_t> shuffled = labels;
+    for (std::size_t i = shuffled.size(); i > 1; --i) {
+      boost::random::uniform_int_distribution<std::size_t> pick(0, i - 1);
+      std::swap(shuffled[i - 1], shuffled[pick(engine)]);
+    }
+    simulated[s] = cross_l(shuffled);
+  });
+  result.cross_l = envelope_test(r, observed, r, simulated, options.alpha);
+  result.p_value = result.cross_l.dclf_p_value;
+  if (result.p_value < options.alpha)
+    result.direction = result.cross_l.mean_deviation > 0.0 ? "association" : "segregation";
+  return result;
+}
+
+RandomnessResult analyse_randomness(const Survey& survey, const RandomnessOptions& options) {
+  RandomnessResult result;
+  result.simulations = options.simulations;
+  result.seed = options.seed;
+  result.alpha = options.alpha;
+  for (std::size_t p = 0; p < survey.plots.size(); ++p) {
+    const Plot& plot = survey.plots[p];
+    const MarkedPattern& pattern = survey.patterns[p];
+    std::vector<std::vector<Point>> by_species(survey.species.size());
+    for (std::size_t i = 0; i < pattern.points.size(); ++i)
+      by_species[pattern.marks[i]].push_back(pattern.points[i]);
+    const auto run = [&](const std::vector<Point>& points, const std::optional<std::string>& species) {
+      if (points.size() < options.min_points) {
+        result.skipped.push_back({plot.id, species, points.size(),
+                                  "fewer than " + std::to_string(options.min_points) + " sightings"});
+        return;
+      }
+      GroupResult g = analyse_pattern(points, plot.window, options, group_key(plot.id, species));
+      g.plot = plot.id;
+      g.species = species;
+      result.results.push_back(std::move(g));
+    };
+    for (std::size_t s = 0; s < survey.species.size(); ++s) {
+      if (by_species[s].empty()) continue;
+      run(by_species[s], survey.species[s]);
+    }
+    run(pattern.points, std::nullopt);
+    if (!options.run_interactions || options.simulations == 0) continue;
+    for (std::size_t s = 0; s < survey.species.size(); ++s) {
+      for (std::size_t t = s + 1; t < survey.species.size(); ++t) {
+        if (by_species[s].size() < 2 || by_species[t].size() < 2) continue;
+        InteractionResult ir = random_labelling_test(
+            by_species[s], by_species[t], plot.window, options,
+            plot.id + "/" + survey.species[s] + "|" + survey.species[t]);
+        ir.plot = plot.id;
+        ir.species_a = survey.species[s];
+        ir.species_b = survey.species[t];
+        result.interactions.push_back(std::move(ir));
+      }
+    }
+  }
+  return result;
+}
+
+}  // namespace stipple

@@ -1,0 +1,256 @@
+#include "stipple/randomness/summary_functions.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <limits>
+#include <numeric>
+
+#include "stipple/error.hpp"
+#include "stipple/geometry/spatial_index.hpp"
+
+namespace stipple {
+
+namespace {
+
+constexpr double pi = 3.14159265358979323846;
+const double nan_value = std::numeric_limits<double>::quiet_NaN();
+
+// Ripley's isotropic weight for the pair (centre, other) at distance d.
+double isotropic_weight(const Window& window, const Point& centre, double boundary, double d) {
+  if (d <= boundary) return 1.0;  // the whole circle lies inside the window
+  const double share = window.circle_fraction_inside(centre, d);
+  return 1.0 / std::max(share, 1e-6);
+}
+
+std::size_t k_bin(double d, double dr) {
+  // r_k = k dr, k >= 1: a distance d counts for every k with k dr >= d.
+  const double b = std::ceil(d / dr - 1e-12);
+  return b < 1.0 ? 1 : static_cast<std::size_t>(b);
+}
+
+// Kaplan-Meier (Baddeley & Gill 1997) or reduced-sample distribution function of
+// distances `d` censored by boundary distances `b`, on the grid r.
+std::vector<double> distance_distribution(const std::vector<double>& d, const std::vector<double>& b,
+                                          const std::vector<double>& r, DistanceCorrection c) {
+  std::vector<double> out(r.size(), nan_value);
+  const std::size_t n = d.size();
+  if (n == 0) return out;
+  if (c == DistanceCorrection::border) {
+    for (std::size_t k = 0; k < r.size(); ++k) {
+      std::size_t at_risk = 0;
+      std::size_t hits = 0;
+      for (std::size_t i = 0; i < n; ++i) {
+        if (b[i] < r[k]) continue;
+        ++at_risk;
+        if (d[i] <= r[k]) ++hits;
+      }
+      if (at_risk > 0) out[k] = static_cast<double>(hits) / static_cast<double>(at_risk);
+    }
+    return out;
+  }
+  std::vector<std::pair<double, bool>> obs(n);
+  for (std::size_t i = 0; i < n; ++i) obs[i] = {std::min(d[i], b[i]), d[i] <= b[i]};
+  std::sort(obs.begin(), obs.end());
+  double survival = 1.0;
+  std::size_t idx = 0;
+  std::size_t at_risk = n;
+  for (std::size_t k = 0; k < r.size(); ++k) {
+    while (idx < n && obs[idx].first <= r[k]) {
+      const double t = obs[idx].first;
+      std::size_t deaths = 0;
+      std::size_t total = 0;
+      while (idx < n && obs[idx].first == t) {
+        deaths += obs[idx].second ? 1u : 0u;
+        ++total;
+        ++idx;
+      }
+      if (at_risk > 0)
+        survival *= 1.0 - static_cast<double>(deaths) / static_cast<double>(at_risk);
+      at_risk -= total;
+    }
+    out[k] = 1.0 - survival;
+  }
+  return out;
+}
+
+}  // namespace
+
+std::string_view pair_correction_name(PairCorrection c) {
+  return c == PairCorrection::isotropic ? "isotropic" : "border";
+}
+
+std::string_view distance_correction_name(DistanceCorrection c) {
+  return c == DistanceCorrection::kaplan_meier ? "kaplan-meier" : "border";
+}
+
+double default_rmax(const Window& window, std::size_t n) {
+  const Bounds& b = window.bounds();
+  const double quarter = 0.25 * std::min(b.width(), b.height());
+  if (n < 1) return quarter;
+  const double lambda = static_cast<double>(n) / window.area_m2();
+  return std::min(quarter, 4.0 / std::sqrt(lambda));
+}
+
+SummaryContext::SummaryContext(const Window& window, SummaryOptions options)
+    : window_(&window), options_(options) {
+  if (!(options_.rmax_m > 0.0) || options_.steps < 2)
+    throw AnalysisError("summary functions need rmax > 0 and at least 2 distance steps");
+  const double dr = options_.rmax_m / static_cast<double>(options_.steps);
+  for (std::size_t k = 1; k <= options_.steps; ++k) r_.push_back(dr * static_cast<double>(k));
+  const Bounds& b = window.bounds();
+  const std::size_t m = std::max<std::size_t>(options_.f_grid, 2);
+  for (std::size_t iy = 0; iy < m; ++iy) {
+    for (std::size_t ix = 0; ix < m; ++ix) {
+      const Point p{b.xmin + (static_cast<double>(ix) + 0.5) * b.width() / static_cast<double>(m),
+                    b.ymin + (static_cast<double>(iy) + 0.5) * b.height() / static_cast<double>(m)};
+      if (!window.contains_almost_surely(p)) continue;
+      test_locations_.push_back(p);
+      test_boundary_.push_back(window.boundary_distance(p));
+    }
+  }
+}
+
+SummaryCurves csr_curves(const std::vector<double>& r, double intensity_per_m2) {
+  SummaryCurves c;
+  c.r = r;
+  for (const double x : r) {
+    c.k.push_back(pi * x * x);
+    c.l.push_back(x);
+    c.g.push_back(1.0);
+    const double g = 1.0 - std::exp(-intensity_per_m2 * pi * x * x);
+    c.nn.push_back(g);
+    c.f.push_back(g);
+    c.j.push_back(1.0);
+  }
+  return c;
+}
+
+SummaryCurves summary_functions(const std::vector<Point>& points, const SummaryContext& context) {
+  const Window& window = context.window();
+  const SummaryOptions& o = context.options();
+  const std::size_t n = points.size();
+  if (n < 2) throw AnalysisError("summary functions need at least 2 points");
+  const std::vector<double>& r = context.r();
+  const std::size_t steps = r.size();
+  const double dr = o.rmax_m / static_cast<double>(steps);
+  const double area = window.area_m2();
+  const double lambda = static_cast<double>(n) / area;
+  const double bandwidth = 0.15 / std::sqrt(lambda);
+  const double nd = static_cast<double>(n);
+
+  std::vector<double> boundary(n);
+  for (std::size_t i = 0; i < n; ++i) boundary[i] = window.boundary_distance(points[i]);
+  const PointGrid grid(points);
+
+  // Weighted pair distances: K histogram, border-K difference arrays, fine pcf histogram.
+  std::vector<double> k_hist(steps + 2, 0.0);
+  std::vector<double> border_diff(steps + 2, 0.0);
+  const std::size_t fine_factor = 4;
+  const double fine_dr = dr / static_cast<double>(fine_factor);
+  const double pcf_reach = o.rmax_m + bandwidth;
+  const std::size_t fine_bins = static_cast<std::size_t>(std::ceil(pcf_reach / fine_dr)) + 1;
+  std::vector<double> fine(fine_bins, 0.0);
+  const bool isotropic = o.pair_correction == PairCorrection::isotropic;
+  const auto add_border = [&](std::size_t centre, double d) {
+    const std::size_t first = k_bin(d, dr);
+    const double last_r = std::min(boundary[centre], o.rmax_m);
+    const auto last = static_cast<std::size_t>(std::floor(last_r / dr + 1e-12));
+    if (first <= last && first <= steps) {
+      border_diff[first] += 1.0;
+      border_diff[std::min(last, steps) + 1] -= 1.0;
+    }
+  };
+  grid.for_each_pair_within(pcf_reach, [&](std::size_t i, std::size_t j, double d) {
+    double w = 2.0;
+    if (isotropic) {
+      w = isotropic_weight(window, points[i], boundary[i], d) +
+          isotropic_weight(window, points[j], boundary[j], d);
+    }
+    if (d <= o.rmax_m) {
+      k_hist[k_bin(d, dr)] += w;
+      add_border(i, d);
+      add_border(j, d);
+    }
+    fine[std::min(fine_bins - 1, static_cast<std::size_t>(d / fine_dr))] += w;
+  });
+
+  SummaryCurves c;
+  c.r = r;
+  c.k.resize(steps);
+  if (isotropic) {
+    double cumulative = 0.0;
+    for (std::size_t k = 1; k <= steps; ++k) {
+      cumulative += k_hist[k];
+      c.k[k - 1] = area / (nd * (nd - 1.0)) * cumulative;
+    }
+  } else {
+    // Border: |W| / (n - 1) * (neighbour count of centres with b >= r) / #(centres with b >= r).
+    double running = 0.0;
+    for (std::size_t k = 1; k <= steps; ++k) {
+      running += border_diff[k];
+      std::size_t centres = 0;
+      for (std::size_t i = 0; i < n; ++i) centres += boundary[i] >= r[k - 1] ? 1u : 0u;
+      c.k[k - 1] = centres > 0 ? area / (nd - 1.0) * running / static_cast<double>(centres)
+                               : nan_value;
+    }
+  }
+  for (const double kv : c.k) c.l.push_back(std::isnan(kv) ? nan_value : std::sqrt(std::max(0.0, kv) / pi));
+
+  // Pair correlation: Epanechnikov kernel over the fine histogram. With border correction
+  // the pair weights are uncorrected (2 per pair), so g is then a plain estimate.
+  c.g.resize(steps);
+  for (std::size_t k = 0; k < steps; ++k) {
+    double sum = 0.0;
+    for (std::size_t b = 0; b < fine_bins; ++b) {
+      const double mid = (static_cast<double>(b) + 0.5) * fine_dr;
+      const double u = (r[k] - mid) / bandwidth;
+      if (std::abs(u) >= 1.0) continue;
+      sum += fine[b] * 0.75 * (1.0 - u * u) / bandwidth;
+    }
+    c.g[k] = area / (nd * (nd - 1.0)) * sum / (2.0 * pi * r[k]);
+  }
+
+  // G from nearest-neighbour distances; F from the test locations.
+  const std::vector<double> nn = grid.nearest_neighbour_distances();
+  c.nn = distance_distribution(nn, boundary, r, o.distance_correction);
+  std::vector<double> empty(context.test_locations().size());
+  for (std::size_t t = 0; t < empty.size(); ++t)
+    empty[t] = grid.nearest_distance(context.test_locations()[t]);
+  c.f = distance_distribution(empty, context.test_boundary(), r, o.distance_correction);
+  c.j.resize(steps);
+  for (std::size_t k = 0; k < steps; ++k)
+    c.j[k] = c.f[k] < 1.0 ? (1.0 - c.nn[k]) / (1.0 - c.f[k]) : nan_value;
+  c.nearest = nn;
+  c.boundary = std::move(boundary);
+  return c;
+}
+
+SummaryCurves cross_summary(const std::vector<Point>& a, const std::vector<Point>& b,
+                            const SummaryContext& context) {
+  const Window& window = context.window();
+  const std::vector<double>& r = context.r();
+  const std::size_t steps = r.size();
+  const double rmax = context.options().rmax_m;
+  const double dr = rmax / static_cast<double>(steps);
+  if (a.empty() || b.empty()) throw AnalysisError("cross-K needs points of both species");
+  const PointGrid grid_b(b);
+  std::vector<double> hist(steps + 2, 0.0);
+  for (const auto& p : a) {
+    const double boundary = window.boundary_distance(p);
+    grid_b.for_each_within(p, rmax, [&](std::size_t, double d) {
+      hist[k_bin(d, dr)] += isotropic_weight(window, p, boundary, d);
+    });
+  }
+  SummaryCurves c;
+  c.r = r;
+  const double scale = window.area_m2() / (static_cast<double>(a.size()) * static_cast<double>(b.size()));
+  double cumulative = 0.0;
+  for (std::size_t k = 1; k <= steps; ++k) {
+    cumulative += hist[k];
+    c.k.push_back(scale * cumulative);
+    c.l.push_back(std::sqrt(c.k.back() / pi));
+  }
+  return c;
+}
+
+}  // namespace stipple

@@ -1,0 +1,294 @@
+#include "stipple/report/randomness_report.hpp"
+
+#include <cmath>
+#include <locale>
+#include <sstream>
+
+#include <nlohmann/json.hpp>
+
+#include "stipple/format.hpp"
+#include "stipple/report/figure.hpp"
+
+namespace stipple {
+
+namespace {
+
+using Json = nlohmann::ordered_json;
+
+Json number_or_null(double v) { return std::isfinite(v) ? Json(v) : Json(nullptr); }
+Json optional_json(const std::optional<double>& v) { return v ? number_or_null(*v) : Json(nullptr); }
+
+std::string species_text(const std::optional<std::string>& species) {
+  return species ? *species : "(all)";
+}
+
+std::string file_safe(const std::string& text) {
+  std::string out;
+  for (const char c : text) {
+    const bool ok = (c >= 'a' && c <= 'z') || (c >= 'A' && c <= 'Z') || (c >= '0' && c <= '9') ||
+                    c == '-' || c == '_' || c == '.';
+    out += ok ? c : '_';
+  }
+  return out;
+}
+
+Json quadrat_json(const QuadratResult& q) {
+  Json j;
+  j["nx"] = q.nx;
+  j["ny"] = q.ny;
+  j["cells"] = q.cells_used;
+  j["statistic"] = q.chi_square.statistic;
+  j["df"] = q.chi_square.df;
+  j["p_upper"] = q.chi_square.p_upper;
+  j["p_lower"] = q.chi_square.p_lower;
+  j["p_value"] = q.chi_square.p_two_sided;
+  j["monte_carlo_p_value"] = optional_json(q.monte_carlo_p_value);
+  j["dispersion_index"] = optional_json(q.dispersion_index);
+  j["min_expected"] = q.chi_square.min_expected;
+  j["cells_too_small"] = q.cells_too_small;
+  return j;
+}
+
+Json clark_evans_json(const ClarkEvansResult& c) {
+  Json j;
+  j["mean_distance"] = c.mean_distance;
+  j["expected_distance"] = c.expected_distance;
+  j["ratio"] = c.ratio;
+  j["z"] = c.z;
+  j["p_value"] = c.p_value;
+  j["edge_correction"] = std::string(edge_correction_name(c.edge_correction));
+  j["monte_carlo_p_value"] = optional_json(c.monte_carlo_p_value);
+  j["standard_error"] = c.standard_error;
+  j["reference_points"] = c.reference_points;
+  return j;
+}
+
+Json departures_json(const EnvelopeResult& e, const char* above, const char* below) {
+  Json list = Json::array();
+  for (const auto& d : e.departures)
+    list.push_back({{"from", d.from_m}, {"to", d.to_m},
+                    {"direction", d.direction == "above" ? above : below}});
+  return list;
+}
+
+std::string ranges_text(const EnvelopeResult& e, const char* above, const char* below) {
+  std::string text;
+  for (const auto& d : e.departures) {
+    if (!text.empty()) text += "; ";
+    text += format_significant(d.from_m, 3) + "-" + format_significant(d.to_m, 3) + " m " +
+            (d.direction == "above" ? above : below);
+  }
+  return text.empty() ? "none" : text;
+}
+
+}  // namespace
+
+const std::vector<std::string>& randomness_cautions() {
+  static const std::vector<std::string> cautions{
+      "CSR tests assume the window is the area actually searched and that detection is "
+      "uniform across it: a pattern of where observers looked hardest looks clustered.",
+      "Departures are relative to a homogeneous Poisson pattern; habitat gradients produce "
+      "apparent clustering (inhomogeneity) as well as true aggregation.",
+      "With many plots and species, some tests reject by chance at alpha; read the global "
+      "envelope ranges, not single p-values.",
+      "Spatial results that feed management or protection decisions need qualified review "
+      "under the local agency's protocol.",
+  };
+  return cautions;
+}
+
+std::string randomness_json(const LoadedSurvey& survey, const RandomnessResult& result) {
+  Json doc;
+  doc["stipple_version"] = STIPPLE_VERSION;
+  doc["command"] = "randomness";
+  doc["crs"] = survey.crs.code;
+  doc["simulations"] = result.simulations;
+  doc["seed"] = result.seed;
+  doc["alpha"] = result.alpha;
+  doc["sightings"] = survey.sightings_label;
+  doc["plots"] = survey.plots_label.empty() ? Json(nullptr) : Json(survey.plots_label);
+  Json results = Json::array();
+  for (const auto& g : result.results) {
+    Json j;
+    j["plot"] = g.plot;
+    j["species"] = g.species ? Json(*g.species) : Json(nullptr);
+    j["n"] = g.n;
+    j["quadrat"] = g.quadrat ? quadrat_json(*g.quadrat) : Json(nullptr);
+    j["clark_evans"] = g.clark_evans ? clark_evans_json(*g.clark_evans) : Json(nullptr);
+    if (const EnvelopeResult* l = g.l_envelope()) {
+      Json e;
+      e["function"] = "L";
+      e["rmax"] = *g.rmax_m;
+      e["simulations"] = l->simulations;
+      e["mad_p_value"] = l->mad_p_value;
+      e["dclf_p_value"] = l->dclf_p_value;
+      e["erl_p_value"] = l->erl_p_value;
+      e["mad_statistic"] = l->mad_statistic;
+      e["dclf_statistic"] = l->dclf_statistic;
+      e["edge_correction"] = std::string(pair_correction_name(g.pair_correction));
+      e["distance_edge_correction"] = std::string(distance_correction_name(g.distance_correction));
+      e["departures"] = departures_json(*l, "clustered", "regular");
+      j["envelope"] = std::move(e);
+    } else {
+      j["envelope"] = nullptr;
+    }
+    j["verdict"] = g.verdict;
+    j["verdict_basis"] = g.verdict_basis;
+    j["notes"] = g.notes;
+    results.push_back(std::move(j));
+  }
+  doc["results"] = std::move(results);
+  Json interactions = Json::array();
+  for (const auto& i : result.interactions) {
+    Json j;
+    j["plot"] = i.plot;
+    j["species_a"] = i.species_a;
+    j["species_b"] = i.species_b;
+    j["n_a"] = i.n_a;
+    j["n_b"] = i.n_b;
+    j["test"] = "random-labelling";
+    j["function"] = "cross-L";
+    j["rmax"] = i.rmax_m;
+    j["p_value"] = i.p_value;
+    j["mad_p_value"] = i.cross_l.mad_p_value;
+    j["direction"] = i.direction;
+    j["departures"] = departures_json(i.cross_l, "association", "segregation");
+    interactions.push_back(std::move(j));
+  }
+  doc["interactions"] = std::move(interactions);
+  Json skipped = Json::array();
+  for (const auto& s : result.skipped)
+    skipped.push_back({{"plot", s.plot}, {"species", s.species ? Json(*s.species) : Json(nullptr)},
+                       {"n", s.n}, {"reason", s.reason}});
+  doc["skipped"] = std::move(skipped);
+  doc["notes"] = survey.notes;
+  doc["warnings"] = survey.warnings;
+  doc["cautions"] = randomness_cautions();
+  return doc.dump(2) + "\n";
+}
+
+std::string randomness_table(const LoadedSurvey& survey, const RandomnessResult& result) {
+  std::ostringstream out;
+  out << "stipple randomness\n";
+  out << "  sightings: " << survey.sightings_label << "\n";
+  if (!survey.plots_label.empty()) out << "  plots:     " << survey.plots_label << "\n";
+  out << "  CRS:       " << survey.crs.code << " (" << survey.crs.name << ")\n";
+  out << "  " << result.simulations << " CSR simulations (binomial process, same n and window), seed "
+      << result.seed << ", alpha " << format_general(result.alpha) << "\n\n";
+  TextTable table({"plot", "species", "n", "quadrat p", "CE ratio", "CE p", "edge", "L rmax_m",
+                   "MAD p", "DCLF p", "verdict"},
+                  2);
+  for (const auto& g : result.results) {
+    std::vector<std::string> row{g.plot, species_text(g.species), std::to_string(g.n)};
+    row.push_back(g.quadrat ? format_p_value(g.quadrat->p_value) + (g.quadrat->monte_carlo_p_value ? " (MC)" : "") : "-");
+    if (g.clark_evans) {
+      row.push_back(format_fixed(g.clark_evans->ratio, 3));
+      row.push_back(format_p_value(g.clark_evans->monte_carlo_p_value.value_or(g.clark_evans->p_value)));
+      row.push_back(std::string(edge_correction_name(g.clark_evans->edge_correction)));
+    } else {
+      row.insert(row.end(), {"-", "-", "-"});
+    }
+    if (const EnvelopeResult* l = g.l_envelope()) {
+      row.push_back(format_significant(*g.rmax_m, 3));
+      row.push_back(format_p_value(l->mad_p_value));
+      row.push_back(format_p_value(l->dclf_p_value));
+    } else {
+      row.insert(row.end(), {"-", "-", "-"});
+    }
+    row.push_back(g.verdict);
+    table.add_row(std::move(row));
+  }
+  out << table.render();
+  out << "  CE p is the Monte Carlo p-value when simulations ran; (MC) quadrat p: Monte Carlo\n\n";
+  bool any_departure = false;
+  for (const auto& g : result.results) {
+    const EnvelopeResult* l = g.l_envelope();
+    if (!l || l->departures.empty()) continue;
+    if (!any_departure) out << "Distances where L leaves the global envelope\n";
+    any_departure = true;
+    out << "  " << g.plot << " " << species_text(g.species) << ": "
+        << ranges_text(*l, "clustered", "regular") << "\n";
+  }
+  if (any_departure) out << "\n";
+  if (!result.interactions.empty()) {
+    out << "Between species (random labelling, cross-L)\n";
+    TextTable pairs({"plot", "species a", "species b", "p", "direction", "distances"}, 3);
+    for (const auto& i : result.interactions)
+      pairs.add_row({i.plot, i.species_a, i.species_b, format_p_value(i.p_value), i.direction,
+                     ranges_text(i.cross_l, "association", "segregation")});
+    out << pairs.render() << "\n";
+  }
+  if (!result.skipped.empty()) {
+    out << "Skipped\n";
+    for (const auto& s : result.skipped)
+      out << "  - " << s.plot << " " << species_text(s.species) << " (n = " << s.n << "): " << s.reason << "\n";
+    out << "\n";
+  }
+  bool any_note = false;
+  for (const auto& g : result.results) {
+    for (const auto& n : g.notes) {
+      if (!any_note) out << "Notes\n";
+      any_note = true;
+      out << "  - " << g.plot << " " << species_text(g.species) << ": " << n << "\n";
+    }
+  }
+  for (const auto& n : survey.notes) out << "  - " << n << "\n";
+  if (!survey.warnings.empty()) {
+    out << "\nWarnings\n";
+    for (const auto& w : survey.warnings) out << "  - " << w << "\n";
+  }
+  out << "\nCautions\n";
+  for (const auto& c : randomness_cautions()) out << "  - " << c << "\n";
+  return out.str();
+}
+
+std::string randomness_curves_csv(const RandomnessResult& result) {
+  std::ostringstream out;
+  out.imbue(std::locale::classic());
+  out.precision(10);
+  out << "plot,species,species_b,function,r,observed,theoretical,low,high,global_low,global_high\n";
+  const auto value = [](double v) { return std::isfinite(v) ? format_general(v) : std::string(); };
+  const auto emit = [&](const std::string& plot, const std::string& species, const std::string& species_b,
+                        const std::string& function, const EnvelopeResult& e) {
+    for (std::size_t k = 0; k < e.r.size(); ++k) {
+      out << csv_field(plot) << "," << csv_field(species) << "," << csv_field(species_b) << ","
+          << function << "," << value(e.r[k]) << "," << value(e.observed[k]) << ","
+          << value(e.theoretical[k]) << "," << value(e.pointwise_low[k]) << ","
+          << value(e.pointwise_high[k]) << "," << value(e.global_low[k]) << ","
+          << value(e.global_high[k]) << "\n";
+    }
+  };
+  for (const auto& g : result.results)
+    for (const auto& f : g.functions) emit(g.plot, g.species.value_or(""), "", f.function, f.envelope);
+  for (const auto& i : result.interactions) emit(i.plot, i.species_a, i.species_b, "cross-L", i.cross_l);
+  return out.str();
+}
+
+std::vector<std::pair<std::string, std::string>> randomness_figures(const RandomnessResult& result) {
+  std::vector<std::pair<std::string, std::string>> files;
+  const auto add = [&](const std::string& stem, const std::string& title, const std::string& y_label,
+                       const EnvelopeResult& e, const std::string& caption) {
+    EnvelopeFigure f{title, y_label, e.r, e.observed, e.theoretical, e.pointwise_low,
+                     e.pointwise_high, e.global_low, e.global_high, caption};
+    files.emplace_back(stem + ".svg", envelope_figure_svg(f));
+    files.emplace_back(stem + ".png", envelope_figure_png(f));
+  };
+  for (const auto& g : result.results) {
+    const EnvelopeResult* l = g.l_envelope();
+    if (!l) continue;
+    const std::string species = g.species.value_or("all-species");
+    add("L-" + file_safe(g.plot) + "-" + file_safe(species), g.plot + " - " + species_text(g.species),
+        "L(r) (m)", *l,
+        std::to_string(l->simulations) + " CSR simulations; MAD p = " + format_p_value(l->mad_p_value) +
+            ", DCLF p = " + format_p_value(l->dclf_p_value) + "; verdict: " + g.verdict);
+  }
+  for (const auto& i : result.interactions) {
+    add("cross-L-" + file_safe(i.plot) + "-" + file_safe(i.species_a) + "-" + file_safe(i.species_b),
+        i.plot + " - " + i.species_b + " around " + i.species_a, "cross-L(r) (m)", i.cross_l,
+        std::to_string(i.cross_l.simulations) + " random labellings; p = " + format_p_value(i.p_value) +
+            "; " + i.direction);
+  }
+  return files;
+}
+
+}  // namespace stipple
