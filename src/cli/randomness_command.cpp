@@ -59,8 +59,7 @@ int run_randomness(const RandomnessCommandOptions& o) {
   options.threads = o.threads;
   if (o.rmax < 0.0) throw InputError("--rmax must be positive");
   if (o.rmax > 0.0) options.rmax_m = o.rmax;
-  check_confidence(o.common.confidence);
-  options.alpha = 1.0 - o.common.confidence;
+  options.alpha = alpha_from_confidence(o.common.confidence);
   if (!o.only.empty()) {
     options.run_quadrat = options.run_clark_evans = options.run_envelope = options.run_interactions = false;
     for (const auto& name : o.only) {

@@ -40,6 +40,8 @@ PointGrid::PointGrid(std::vector<Point> points, double points_per_cell)
   std::vector<std::uint32_t> fill(start_.begin(), start_.end() - 1);
   for (std::size_t i = 0; i < points_.size(); ++i)
     order_[fill[cell_of[i]]++] = static_cast<std::uint32_t>(i);
+  sorted_.resize(points_.size());
+  for (std::size_t k = 0; k < order_.size(); ++k) sorted_[k] = points_[order_[k]];
 }
 
 std::size_t PointGrid::cell_x(double x) const {
@@ -72,10 +74,9 @@ double PointGrid::nearest_distance(const Point& query, std::size_t exclude) cons
         if (!edge_row && cx + ring != qx && cx != qx + ring) continue;  // inner cells done
         const std::size_t c = cy * nx_ + cx;
         for (std::uint32_t k = start_[c]; k < start_[c + 1]; ++k) {
-          const std::uint32_t j = order_[k];
-          if (j == exclude) continue;
-          const double dx = points_[j].x - query.x;
-          const double dy = points_[j].y - query.y;
+          if (order_[k] == exclude) continue;
+          const double dx = sorted_[k].x - query.x;
+          const double dy = sorted_[k].y - query.y;
           best2 = std::min(best2, dx * dx + dy * dy);
         }
       }
@@ -89,7 +90,8 @@ double PointGrid::nearest_distance(const Point& query, std::size_t exclude) cons
 
 std::vector<double> PointGrid::nearest_neighbour_distances() const {
   std::vector<double> d(points_.size());
-  for (std::size_t i = 0; i < points_.size(); ++i) d[i] = nearest_distance(points_[i], i);
+  // In cell order: consecutive queries touch the same cells.
+  for (std::size_t k = 0; k < sorted_.size(); ++k) d[order_[k]] = nearest_distance(sorted_[k], order_[k]);
   return d;
 }
 

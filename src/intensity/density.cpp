@@ -62,7 +62,7 @@ DensityResult estimate_density(const Survey& survey, const DensityOptions& optio
   DensityResult result;
   result.unit = options.unit;
   result.confidence = options.confidence;
-  result.alpha = 1.0 - options.confidence;
+  result.alpha = alpha_from_confidence(options.confidence);
   result.seed = options.seed;
   result.simulations = options.simulations;
 

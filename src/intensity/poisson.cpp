@@ -15,6 +15,11 @@ void check_confidence(double confidence) {
                      format_general(confidence) + ")");
 }
 
+double alpha_from_confidence(double confidence) {
+  check_confidence(confidence);
+  return std::round((1.0 - confidence) * 1e12) / 1e12;
+}
+
 Interval garwood_interval(std::uint64_t count, double confidence) {
   check_confidence(confidence);
   const double alpha = 1.0 - confidence;

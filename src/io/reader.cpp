@@ -338,7 +338,7 @@ std::vector<Plot> hull_plots(const std::vector<Sighting>& sightings) {
 
 LoadedSurvey load_survey(const SurveyReadOptions& options) {
   if (options.window == WindowMode::plots && !options.plots) {
-    throw InputError("density needs the surveyed area: give the plot polygons with --plots PATH "
+    throw InputError("the analysis needs the surveyed area: give the plot polygons with --plots PATH "
                      "(or --window convex-hull for a model-based window estimated from the "
                      "points)");
   }

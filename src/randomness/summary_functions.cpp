@@ -168,8 +168,10 @@ SummaryCurves summary_functions(const std::vector<Point>& points, const SummaryC
     }
     if (d <= o.rmax_m) {
       k_hist[k_bin(d, dr)] += w;
-      add_border(i, d);
-      add_border(j, d);
+      if (!isotropic) {
+        add_border(i, d);
+        add_border(j, d);
+      }
     }
     fine[std::min(fine_bins - 1, static_cast<std::size_t>(d / fine_dr))] += w;
   });

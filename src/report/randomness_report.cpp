@@ -75,7 +75,8 @@ std::string ranges_text(const EnvelopeResult& e, const char* above, const char* 
   std::string text;
   for (const auto& d : e.departures) {
     if (!text.empty()) text += "; ";
-    text += format_significant(d.from_m, 3) + "-" + format_significant(d.to_m, 3) + " m " +
+    text += format_significant(d.from_m, 3) +
+            (d.to_m > d.from_m ? "-" + format_significant(d.to_m, 3) : std::string()) + " m " +
             (d.direction == "above" ? above : below);
   }
   return text.empty() ? "none" : text;
@@ -224,15 +225,24 @@ std::string randomness_table(const LoadedSurvey& survey, const RandomnessResult&
       out << "  - " << s.plot << " " << species_text(s.species) << " (n = " << s.n << "): " << s.reason << "\n";
     out << "\n";
   }
-  bool any_note = false;
+  // Small quadrat cells are common in small plots: one line for all, details in the JSON.
+  std::size_t small_cells = 0;
+  std::vector<std::string> notes;
   for (const auto& g : result.results) {
-    for (const auto& n : g.notes) {
-      if (!any_note) out << "Notes\n";
-      any_note = true;
-      out << "  - " << g.plot << " " << species_text(g.species) << ": " << n << "\n";
-    }
+    if (g.quadrat && g.quadrat->cells_too_small) ++small_cells;
+    for (const auto& n : g.notes)
+      if (!(g.quadrat && g.quadrat->cells_too_small && n.rfind("quadrat cells are small", 0) == 0))
+        notes.push_back(g.plot + " " + species_text(g.species) + ": " + n);
   }
-  for (const auto& n : survey.notes) out << "  - " << n << "\n";
+  if (small_cells > 0)
+    notes.push_back(std::to_string(small_cells) + " of " + std::to_string(result.results.size()) +
+                    " groups have quadrat cells with expected counts below 5: their quadrat p-value "
+                    "is the Monte Carlo one (consider fewer quadrats; per-group details in the JSON)");
+  notes.insert(notes.end(), survey.notes.begin(), survey.notes.end());
+  if (!notes.empty()) {
+    out << "Notes\n";
+    for (const auto& n : notes) out << "  - " << n << "\n";
+  }
   if (!survey.warnings.empty()) {
     out << "\nWarnings\n";
     for (const auto& w : survey.warnings) out << "  - " << w << "\n";

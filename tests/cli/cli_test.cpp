@@ -311,7 +311,7 @@ TEST(CliBadInput, MissingCrs) {
 
 TEST(CliBadInput, NoPlotsGiven) {
   Fixture f;
-  expect_refused(run_cli(f.sightings), "density needs the surveyed area: give the plot polygons");
+  expect_refused(run_cli(f.sightings), "the analysis needs the surveyed area: give the plot polygons");
 }
 
 TEST(CliBadInput, OutsideSightingsAreCountedNotHidden) {

@@ -32,4 +32,7 @@ enum class AreaUnit { square_metre, hectare, square_kilometre };
 /// Checks a two-sided confidence level; throws InputError unless 0 < level < 1.
 void check_confidence(double confidence);
 
+/// alpha = 1 - confidence, rounded to 12 decimals so 0.95 gives exactly 0.05.
+[[nodiscard]] double alpha_from_confidence(double confidence);
+
 }  // namespace stipple
