@@ -28,6 +28,8 @@ struct RandomnessCommandOptions {
   std::vector<std::string> only;
   std::string curves;
   std::string figures;
+  std::string pair_correction = "isotropic";
+  std::string distance_correction = "kaplan-meier";
 };
 
 std::pair<std::size_t, std::size_t> parse_grid(const std::string& text) {
@@ -54,6 +56,10 @@ int run_randomness(const RandomnessCommandOptions& o) {
   std::tie(options.quadrat.nx, options.quadrat.ny) = parse_grid(o.quadrats);
   options.quadrat.force_monte_carlo = o.quadrat_monte_carlo;
   if (!o.edge_correction.empty()) options.edge_correction = parse_edge_correction(o.edge_correction);
+  options.pair_correction =
+      o.pair_correction == "border" ? PairCorrection::border : PairCorrection::isotropic;
+  options.distance_correction = o.distance_correction == "border" ? DistanceCorrection::border
+                                                                  : DistanceCorrection::kaplan_meier;
   options.simulations = o.simulations;
   options.seed = o.seed;
   options.threads = o.threads;
@@ -113,6 +119,14 @@ Action add_randomness_command(CLI::App& app) {
                       "Clark-Evans edge correction: none, donnelly (rectangles) or border "
                       "(default: donnelly for rectangles, border otherwise)")
       ->check(CLI::IsMember({"none", "donnelly", "border"}));
+  command->add_option("--pair-correction", o->pair_correction,
+                      "Edge correction of K, L and g: isotropic (Ripley) or border")
+      ->check(CLI::IsMember({"isotropic", "border"}))
+      ->capture_default_str();
+  command->add_option("--distance-correction", o->distance_correction,
+                      "Edge correction of G and F: kaplan-meier or border")
+      ->check(CLI::IsMember({"kaplan-meier", "border"}))
+      ->capture_default_str();
   command->add_option("--simulations", o->simulations, "CSR simulations and random labellings")
       ->capture_default_str();
   command->add_option("--seed", o->seed, "Seed of every simulation")->capture_default_str();

@@ -80,6 +80,10 @@ GroupResult analyse_pattern(const std::vector<Point>& points, const Window& wind
   SummaryOptions so;
   so.rmax_m = rmax;
   so.steps = options.steps;
+  so.pair_correction = options.pair_correction;
+  so.distance_correction = options.distance_correction;
+  g.pair_correction = options.pair_correction;
+  g.distance_correction = options.distance_correction;
   const SummaryContext context(window, so);
   const SummaryCurves observed = summary_functions(points, context);
 

@@ -151,6 +151,19 @@ SummaryCurves summary_functions(const std::vector<Point>& points, const SummaryC
   const std::size_t fine_bins = static_cast<std::size_t>(std::ceil(pcf_reach / fine_dr)) + 1;
   std::vector<double> fine(fine_bins, 0.0);
   const bool isotropic = o.pair_correction == PairCorrection::isotropic;
+  // Border-corrected g: kernel sums per distance from centres with b_i >= r only.
+  std::vector<double> border_g(steps, 0.0);
+  const auto add_border_g = [&](std::size_t centre, double d) {
+    const double lo = std::max(dr, d - bandwidth);
+    const double hi = std::min({o.rmax_m, d + bandwidth, boundary[centre]});
+    if (lo > hi) return;
+    for (auto k = static_cast<std::size_t>(std::ceil(lo / dr - 1e-12));
+         k <= steps && static_cast<double>(k) * dr <= hi + 1e-12; ++k) {
+      if (k == 0) continue;
+      const double u = (r[k - 1] - d) / bandwidth;
+      if (std::abs(u) < 1.0) border_g[k - 1] += 0.75 * (1.0 - u * u) / bandwidth;
+    }
+  };
   const auto add_border = [&](std::size_t centre, double d) {
     const std::size_t first = k_bin(d, dr);
     const double last_r = std::min(boundary[centre], o.rmax_m);
@@ -173,12 +186,21 @@ SummaryCurves summary_functions(const std::vector<Point>& points, const SummaryC
         add_border(j, d);
       }
     }
+    if (!isotropic) {
+      add_border_g(i, d);
+      add_border_g(j, d);
+    }
     fine[std::min(fine_bins - 1, static_cast<std::size_t>(d / fine_dr))] += w;
   });
 
   SummaryCurves c;
   c.r = r;
   c.k.resize(steps);
+  const auto centres_beyond = [&](std::size_t k) {
+    std::size_t centres = 0;
+    for (std::size_t i = 0; i < n; ++i) centres += boundary[i] >= r[k] ? 1u : 0u;
+    return centres;
+  };
   if (isotropic) {
     double cumulative = 0.0;
     for (std::size_t k = 1; k <= steps; ++k) {
@@ -190,18 +212,22 @@ SummaryCurves summary_functions(const std::vector<Point>& points, const SummaryC
     double running = 0.0;
     for (std::size_t k = 1; k <= steps; ++k) {
       running += border_diff[k];
-      std::size_t centres = 0;
-      for (std::size_t i = 0; i < n; ++i) centres += boundary[i] >= r[k - 1] ? 1u : 0u;
+      const std::size_t centres = centres_beyond(k - 1);
       c.k[k - 1] = centres > 0 ? area / (nd - 1.0) * running / static_cast<double>(centres)
                                : nan_value;
     }
   }
   for (const double kv : c.k) c.l.push_back(std::isnan(kv) ? nan_value : std::sqrt(std::max(0.0, kv) / pi));
 
-  // Pair correlation: Epanechnikov kernel over the fine histogram. With border correction
-  // the pair weights are uncorrected (2 per pair), so g is then a plain estimate.
+  // Pair correlation: Epanechnikov kernel over the (isotropically weighted) fine histogram,
+  // or, with border correction, the kernel sums of centres at least r from the boundary.
   c.g.resize(steps);
-  for (std::size_t k = 0; k < steps; ++k) {
+  for (std::size_t k = 0; k < steps && !isotropic; ++k) {
+    const std::size_t centres = centres_beyond(k);
+    c.g[k] = centres > 0 ? area / (nd - 1.0) * border_g[k] / (2.0 * pi * r[k] * static_cast<double>(centres))
+                         : nan_value;
+  }
+  for (std::size_t k = 0; k < steps && isotropic; ++k) {
     double sum = 0.0;
     for (std::size_t b = 0; b < fine_bins; ++b) {
       const double mid = (static_cast<double>(b) + 0.5) * fine_dr;
@@ -224,34 +250,6 @@ SummaryCurves summary_functions(const std::vector<Point>& points, const SummaryC
     c.j[k] = c.f[k] < 1.0 ? (1.0 - c.nn[k]) / (1.0 - c.f[k]) : nan_value;
   c.nearest = nn;
   c.boundary = std::move(boundary);
-  return c;
-}
-
-SummaryCurves cross_summary(const std::vector<Point>& a, const std::vector<Point>& b,
-                            const SummaryContext& context) {
-  const Window& window = context.window();
-  const std::vector<double>& r = context.r();
-  const std::size_t steps = r.size();
-  const double rmax = context.options().rmax_m;
-  const double dr = rmax / static_cast<double>(steps);
-  if (a.empty() || b.empty()) throw AnalysisError("cross-K needs points of both species");
-  const PointGrid grid_b(b);
-  std::vector<double> hist(steps + 2, 0.0);
-  for (const auto& p : a) {
-    const double boundary = window.boundary_distance(p);
-    grid_b.for_each_within(p, rmax, [&](std::size_t, double d) {
-      hist[k_bin(d, dr)] += isotropic_weight(window, p, boundary, d);
-    });
-  }
-  SummaryCurves c;
-  c.r = r;
-  const double scale = window.area_m2() / (static_cast<double>(a.size()) * static_cast<double>(b.size()));
-  double cumulative = 0.0;
-  for (std::size_t k = 1; k <= steps; ++k) {
-    cumulative += hist[k];
-    c.k.push_back(scale * cumulative);
-    c.l.push_back(std::sqrt(c.k.back() / pi));
-  }
   return c;
 }
 

@@ -270,7 +270,15 @@ std::string randomness_curves_csv(const RandomnessResult& result) {
   };
   for (const auto& g : result.results)
     for (const auto& f : g.functions) emit(g.plot, g.species.value_or(""), "", f.function, f.envelope);
-  for (const auto& i : result.interactions) emit(i.plot, i.species_a, i.species_b, "cross-L", i.cross_l);
+  for (const auto& i : result.interactions) {
+    emit(i.plot, i.species_a, i.species_b, "cross-L", i.cross_l);
+    // K = pi L^2 is monotone in L, so every envelope quantile maps exactly.
+    EnvelopeResult k = i.cross_l;
+    for (auto* series : {&k.observed, &k.theoretical, &k.simulation_mean, &k.pointwise_low,
+                         &k.pointwise_high, &k.global_low, &k.global_high})
+      for (double& v : *series) v = 3.14159265358979323846 * v * v;
+    emit(i.plot, i.species_a, i.species_b, "cross-K", k);
+  }
   return out.str();
 }
 

@@ -100,6 +100,14 @@ TEST(RandomnessCli, WritesCurvesAndFigures) {
   EXPECT_GT(std::filesystem::file_size(png), 10000u);  // a drawn figure, not a blank page
 }
 
+TEST(RandomnessCli, BorderCorrectionsRun) {
+  const auto r = run_cli(demo("--only envelope --pair-correction border --distance-correction border --json -"));
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  const auto doc = nlohmann::json::parse(r.out);
+  EXPECT_EQ(doc["results"][0]["envelope"]["edge_correction"], "border");
+  EXPECT_EQ(doc["results"][0]["envelope"]["distance_edge_correction"], "border");
+}
+
 TEST(RandomnessCli, TableShowsVerdictsAndCautions) {
   const auto r = run_cli(demo("--only quadrat,clark-evans"));
   ASSERT_EQ(r.exit_code, 0) << r.err;
@@ -118,6 +126,8 @@ TEST(RandomnessCliBadInput, BadOptions) {
   expect_refused(run_cli(demo("--only quadrats")), "--only takes quadrat, clark-evans, envelope");
   expect_refused(run_cli(demo("--rmax -3")), "--rmax must be positive");
   EXPECT_EQ(run_cli(demo("--edge-correction toroidal")).exit_code, 2);
+  EXPECT_EQ(run_cli(demo("--pair-correction translation")).exit_code, 2);
+  EXPECT_EQ(run_cli(demo("--distance-correction hanisch")).exit_code, 2);
   expect_refused(run_cli("randomness " + sample("reserve.gpkg") + " --plots " + sample("reserve.gpkg") +
                          " --simulations 0"),
                  "--simulations 0 leaves no envelope");

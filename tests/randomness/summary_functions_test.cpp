@@ -115,6 +115,9 @@ TEST(SummaryFunctions, CsrMatchesTheoryInPolygonWithHole) {
   for (std::size_t s = 0; s < border.r.size(); ++s) {
     const double r = border.r[s];
     EXPECT_NEAR(border.k[s] / (pi * r * r), 1.0, 0.05) << "border K at r = " << r;
+    if (r >= 6.0) {
+      EXPECT_NEAR(border.g[s], 1.0, 0.08) << "border g at r = " << r;
+    }
     const double theory = 1.0 - std::exp(-lambda * pi * r * r);
     EXPECT_NEAR(border.nn[s], theory, 0.03) << "border G at r = " << r;
     EXPECT_NEAR(border.f[s], theory, 0.03) << "border F at r = " << r;

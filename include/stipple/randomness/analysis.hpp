@@ -25,6 +25,8 @@ struct RandomnessOptions {
   unsigned threads = 0;                  ///< 0 = all cores; results never depend on it
   std::optional<double> rmax_m;          ///< default: default_rmax() per group
   std::size_t steps = 64;
+  PairCorrection pair_correction = PairCorrection::isotropic;            ///< K, L, g
+  DistanceCorrection distance_correction = DistanceCorrection::kaplan_meier;  ///< G, F
   double alpha = 0.05;
   bool run_quadrat = true;
   bool run_clark_evans = true;

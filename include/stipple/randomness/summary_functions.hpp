@@ -75,16 +75,11 @@ class SummaryContext {
 /// All summary functions of the pattern (points must lie in the window; n >= 2).
 /// K: |W| / (n (n - 1)) sum_{i != j} w_ij 1(d_ij <= r) (isotropic) or the border estimator;
 /// L = sqrt(K / pi); g by an Epanechnikov kernel of bandwidth 0.15 / sqrt(lambda)
-/// (Stoyan & Stoyan 1994, from memory) on the same weighted pair distances;
+/// (Stoyan & Stoyan 1994, from memory) on the same weighted pair distances, or from centres
+/// at least r from the boundary with border correction;
 /// G, F by Kaplan-Meier or border; J = (1 - G) / (1 - F) (van Lieshout & Baddeley 1996).
 [[nodiscard]] SummaryCurves summary_functions(const std::vector<Point>& points,
                                               const SummaryContext& context);
-
-/// Cross-K and cross-L of type b around type a (isotropic weights centred on a points):
-/// K_ab = |W| / (n_a n_b) sum_{i in a, j in b} w_ij 1(d_ij <= r) (Lotwick & Silverman 1982,
-/// from memory). Returns L_ab in `l` and K_ab in `k`; other fields empty.
-[[nodiscard]] SummaryCurves cross_summary(const std::vector<Point>& a, const std::vector<Point>& b,
-                                          const SummaryContext& context);
 
 /// CSR values on the grid: K = pi r^2, L = r, g = 1, G = F = 1 - exp(-lambda pi r^2), J = 1.
 [[nodiscard]] SummaryCurves csr_curves(const std::vector<double>& r, double intensity_per_m2);
