@@ -10,6 +10,7 @@ packages=(
   nlohmann-json3-dev               # JSON output
   libcairo2-dev fonts-dejavu-core  # figures (SVG, PNG) and their font
   pkg-config                       # finds cairo
+  libnlopt-dev libnlopt-cxx-dev    # NLopt: maximum-likelihood fits of detection functions
   libgtest-dev libgmock-dev        # GoogleTest
   libbenchmark-dev                 # Google Benchmark (bench/)
   python3                          # demo-data generator

@@ -1,0 +1,544 @@
+#include "stipple/transect/detection_function.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <numeric>
+
+#include <boost/math/quadrature/exp_sinh.hpp>
+#include <boost/math/quadrature/gauss_kronrod.hpp>
+#include <boost/math/special_functions/bessel.hpp>
+#include <boost/math/special_functions/gamma.hpp>
+#include <boost/numeric/ublas/lu.hpp>
+#include <boost/numeric/ublas/matrix.hpp>
+#include <boost/math/distributions/chi_squared.hpp>
+#include <nlopt.hpp>
+
+#include "stipple/error.hpp"
+
+namespace stipple {
+
+namespace {
+
+constexpr double pi = 3.14159265358979323846;
+const double nan_value = std::numeric_limits<double>::quiet_NaN();
+
+std::size_t key_parameter_count(KeyFunction key) {
+  switch (key) {
+    case KeyFunction::half_normal: return 1;
+    case KeyFunction::hazard_rate: return 2;
+    case KeyFunction::uniform: return 0;
+  }
+  return 0;
+}
+
+// Probabilists' Hermite polynomial He_n(x).
+double hermite(std::size_t n, double x) {
+  double previous = 1.0;
+  double current = x;
+  if (n == 0) return previous;
+  for (std::size_t k = 1; k < n; ++k) {
+    const double next = x * current - static_cast<double>(k) * previous;
+    previous = current;
+    current = next;
+  }
+  return current;
+}
+
+std::vector<double> natural_from_working(const DetectionModel& model, const std::vector<double>& theta) {
+  std::vector<double> p(theta);
+  const std::size_t k = key_parameter_count(model.key);
+  for (std::size_t i = 0; i < k; ++i) p[i] = std::exp(theta[i]);
+  return p;
+}
+
+struct Objective {
+  const DistanceData* data;
+  DetectionModel model;
+  double truncation;
+};
+
+double log_likelihood(const DistanceData& data, const DetectionModel& model, double w,
+                      const std::vector<double>& theta) {
+  const DetectionFunction f(model, natural_from_working(model, theta), w);
+  if (data.binned()) {
+    const double lo = data.bin_edges.front();
+    const double total = f.integral(lo, data.bin_edges.back(), data.kind);
+    if (!(total > 0.0) || !std::isfinite(total)) return -std::numeric_limits<double>::infinity();
+    double ll = 0.0;
+    for (std::size_t k = 0; k < data.bin_counts.size(); ++k) {
+      if (data.bin_counts[k] == 0) continue;
+      const double part = f.integral(data.bin_edges[k], data.bin_edges[k + 1], data.kind);
+      if (!(part > 0.0)) return -std::numeric_limits<double>::infinity();
+      ll += static_cast<double>(data.bin_counts[k]) * std::log(part / total);
+    }
+    return ll;
+  }
+  const double total = f.integral(0.0, w, data.kind);
+  if (!(total > 0.0) || !std::isfinite(total)) return -std::numeric_limits<double>::infinity();
+  double ll = -static_cast<double>(data.exact.size()) * std::log(total);
+  for (const double x : data.exact) {
+    const double gx = f.g(x);
+    if (!(gx > 0.0)) return -std::numeric_limits<double>::infinity();
+    ll += std::log(gx);
+  }
+  return ll;
+}
+
+double objective(unsigned n, const double* x, double* gradient, void* context) {
+  (void)gradient;  // derivative-free algorithms only
+  const auto* o = static_cast<const Objective*>(context);
+  const std::vector<double> theta(x, x + n);
+  const double ll = log_likelihood(*o->data, o->model, o->truncation, theta);
+  return std::isfinite(ll) ? -ll : 1e300;
+}
+
+constexpr std::size_t monotone_grid = 50;
+
+void monotone_constraints(unsigned m, double* result, unsigned n, const double* x, double* gradient,
+                          void* context) {
+  (void)gradient;
+  const auto* o = static_cast<const Objective*>(context);
+  const DetectionFunction f(o->model, natural_from_working(o->model, std::vector<double>(x, x + n)),
+                            o->truncation);
+  const double step = o->truncation / static_cast<double>(monotone_grid - 1);
+  double previous = f.g(0.0);
+  for (std::size_t k = 1; k < monotone_grid; ++k) {
+    const double current = f.g(step * static_cast<double>(k));
+    result[2 * (k - 1)] = current - previous;  // <= 0: non-increasing
+    result[2 * (k - 1) + 1] = -current;        // <= 0: non-negative
+    previous = current;
+  }
+  (void)m;
+}
+
+bool is_monotone(const DetectionFunction& f) {
+  if (!std::isfinite(f.truncation_m())) return true;  // key-only: monotone by construction
+  const double step = f.truncation_m() / static_cast<double>(monotone_grid - 1);
+  double previous = f.g(0.0);
+  for (std::size_t k = 1; k < monotone_grid; ++k) {
+    const double current = f.g(step * static_cast<double>(k));
+    if (current > previous + 1e-6 || current < -1e-9) return false;
+    previous = current;
+  }
+  return true;
+}
+
+// Inverse of a small symmetric matrix by LU decomposition (Boost uBLAS); empty if singular.
+std::vector<std::vector<double>> inverse(const std::vector<std::vector<double>>& a) {
+  namespace ublas = boost::numeric::ublas;
+  const std::size_t n = a.size();
+  ublas::matrix<double> m(n, n);
+  for (std::size_t i = 0; i < n; ++i)
+    for (std::size_t j = 0; j < n; ++j) m(i, j) = a[i][j];
+  ublas::permutation_matrix<std::size_t> perm(n);
+  if (ublas::lu_factorize(m, perm) != 0) return {};
+  ublas::matrix<double> inv = ublas::identity_matrix<double>(n);
+  ublas::lu_substitute(m, perm, inv);
+  std::vector<std::vector<double>> out(n, std::vector<double>(n));
+  for (std::size_t i = 0; i < n; ++i) {
+    for (std::size_t j = 0; j < n; ++j) {
+      out[i][j] = inv(i, j);
+      if (!std::isfinite(out[i][j])) return {};
+    }
+    if (!(out[i][i] > 0.0)) return {};
+  }
+  return out;
+}
+
+double scale_start(const DistanceData& data) {
+  double sum = 0.0;
+  double n = 0.0;
+  if (data.binned()) {
+    for (std::size_t k = 0; k < data.bin_counts.size(); ++k) {
+      const double mid = 0.5 * (data.bin_edges[k] + data.bin_edges[k + 1]);
+      sum += static_cast<double>(data.bin_counts[k]) * mid * mid;
+      n += static_cast<double>(data.bin_counts[k]);
+    }
+  } else {
+    for (const double x : data.exact) sum += x * x;
+    n = static_cast<double>(data.exact.size());
+  }
+  const double ms = sum / std::max(1.0, n);
+  const double s = std::sqrt(data.kind == TransectKind::line ? ms : ms / 2.0);
+  return s > 0.0 ? s : 1.0;
+}
+
+}  // namespace
+
+std::size_t DistanceData::size() const {
+  if (!binned()) return exact.size();
+  return static_cast<std::size_t>(std::accumulate(bin_counts.begin(), bin_counts.end(), std::uint64_t{0}));
+}
+
+std::string_view key_function_name(KeyFunction key) {
+  switch (key) {
+    case KeyFunction::half_normal: return "half-normal";
+    case KeyFunction::hazard_rate: return "hazard-rate";
+    case KeyFunction::uniform: return "uniform";
+  }
+  return "";
+}
+
+std::string_view adjustment_name(Adjustment adjustment) {
+  switch (adjustment) {
+    case Adjustment::none: return "none";
+    case Adjustment::cosine: return "cosine";
+    case Adjustment::polynomial: return "polynomial";
+    case Adjustment::hermite: return "hermite";
+  }
+  return "";
+}
+
+KeyFunction parse_key_function(std::string_view name) {
+  if (name == "half-normal") return KeyFunction::half_normal;
+  if (name == "hazard-rate") return KeyFunction::hazard_rate;
+  if (name == "uniform") return KeyFunction::uniform;
+  throw InputError("--models takes half-normal, hazard-rate, uniform (got '" + std::string(name) + "')");
+}
+
+Adjustment parse_adjustment(std::string_view name) {
+  if (name == "none") return Adjustment::none;
+  if (name == "cosine") return Adjustment::cosine;
+  if (name == "polynomial") return Adjustment::polynomial;
+  if (name == "hermite") return Adjustment::hermite;
+  throw InputError("--adjustments takes none, cosine, polynomial, hermite (got '" + std::string(name) + "')");
+}
+
+std::vector<std::string> parameter_names(const DetectionModel& model) {
+  std::vector<std::string> names;
+  if (model.key != KeyFunction::uniform) names.push_back("sigma");
+  if (model.key == KeyFunction::hazard_rate) names.push_back("b");
+  for (std::size_t j = 1; j <= model.terms; ++j) names.push_back("a" + std::to_string(j));
+  return names;
+}
+
+DetectionFunction::DetectionFunction(DetectionModel model, std::vector<double> parameters,
+                                     double truncation_m)
+    : model_(model), parameters_(std::move(parameters)), truncation_m_(truncation_m) {
+  normaliser_ = key(0.0) * series(0.0);
+}
+
+double DetectionFunction::key(double x) const {
+  switch (model_.key) {
+    case KeyFunction::half_normal: {
+      const double s = parameters_[0];
+      return std::exp(-x * x / (2.0 * s * s));
+    }
+    case KeyFunction::hazard_rate: {
+      if (x <= 0.0) return 1.0;
+      return 1.0 - std::exp(-std::pow(x / parameters_[0], -parameters_[1]));
+    }
+    case KeyFunction::uniform: return 1.0;
+  }
+  return 1.0;
+}
+
+double DetectionFunction::series(double x) const {
+  if (model_.terms == 0 || model_.adjustment == Adjustment::none) return 1.0;
+  const std::size_t first = key_parameter_count(model_.key);
+  const std::size_t offset = model_.key == KeyFunction::uniform ? 0 : 1;
+  double sum = 1.0;
+  for (std::size_t j = 1; j <= model_.terms; ++j) {
+    const double a = parameters_[first + j - 1];
+    const double order = static_cast<double>(j + offset);
+    double t = 0.0;
+    switch (model_.adjustment) {
+      case Adjustment::cosine: t = std::cos(order * pi * x / truncation_m_); break;
+      case Adjustment::polynomial: t = std::pow(x / truncation_m_, 2.0 * order); break;
+      case Adjustment::hermite: {
+        const double scale = model_.key == KeyFunction::uniform ? truncation_m_ : parameters_[0];
+        t = hermite(2 * (j + offset), x / scale);
+        break;
+      }
+      case Adjustment::none: break;
+    }
+    sum += a * t;
+  }
+  return sum;
+}
+
+double DetectionFunction::g(double x) const { return key(x) * series(x) / normaliser_; }
+
+double DetectionFunction::integral(double a, double b, TransectKind kind) const {
+  const auto f = [&](double x) { return kind == TransectKind::line ? g(x) : 2.0 * pi * x * g(x); };
+  if (!(b > a)) return 0.0;
+  if (std::isinf(b)) {
+    boost::math::quadrature::exp_sinh<double> integrator;
+    return integrator.integrate(
+        [&](double x) { return x >= a ? f(x) : 0.0; }, a, std::numeric_limits<double>::infinity());
+  }
+  return boost::math::quadrature::gauss_kronrod<double, 31>::integrate(f, a, b, 12, 1e-11);
+}
+
+double DetectionFunction::effective_strip_width() const {
+  return integral(0.0, truncation_m_, TransectKind::line);
+}
+
+double DetectionFunction::effective_area() const {
+  return integral(0.0, truncation_m_, TransectKind::point);
+}
+
+DetectionFit fit_detection_function(const DistanceData& data, const DetectionModel& model) {
+  const double w = data.binned() ? data.bin_edges.back() : data.truncation_m;
+  const std::size_t q = key_parameter_count(model.key) + (model.adjustment == Adjustment::none ? 0 : model.terms);
+  const std::size_t n = data.size();
+  DetectionModel m = model;
+  if (m.adjustment == Adjustment::none) m.terms = 0;
+  if (!std::isfinite(w) && (m.key == KeyFunction::uniform || m.terms > 0))
+    throw AnalysisError("the " + std::string(key_function_name(m.key)) +
+                        " model with adjustments needs a truncation distance (--truncate)");
+  if (n < q + 2)
+    throw AnalysisError("too few detections (" + std::to_string(n) + ") to fit a " +
+                        std::string(key_function_name(m.key)) + " model with " + std::to_string(q) +
+                        " parameters");
+
+  const double s0 = scale_start(data);
+  std::vector<double> theta;
+  std::vector<double> lower;
+  std::vector<double> upper;
+  if (m.key != KeyFunction::uniform) {
+    theta.push_back(std::log(s0));
+    lower.push_back(std::log(s0) - 8.0);
+    upper.push_back(std::log(s0) + 8.0);
+  }
+  if (m.key == KeyFunction::hazard_rate) {
+    theta.push_back(std::log(3.0));
+    lower.push_back(std::log(0.5));
+    upper.push_back(std::log(60.0));
+  }
+  for (std::size_t j = 0; j < m.terms; ++j) {
+    theta.push_back(0.0);
+    lower.push_back(-10.0);
+    upper.push_back(10.0);
+  }
+  Objective context{&data, m, w};
+  bool converged = true;
+  if (!theta.empty()) {
+    const auto dim = static_cast<unsigned>(theta.size());
+    const bool constrained = m.terms > 0;
+    nlopt::opt opt(constrained ? nlopt::LN_COBYLA : nlopt::LN_SBPLX, dim);
+    opt.set_min_objective(objective, &context);
+    opt.set_lower_bounds(lower);
+    opt.set_upper_bounds(upper);
+    opt.set_xtol_rel(1e-10);
+    opt.set_ftol_abs(1e-12);
+    opt.set_maxeval(constrained ? 20000 : 5000);
+    if (constrained) {
+      const std::vector<double> tolerances(2 * (monotone_grid - 1), 1e-9);
+      opt.add_inequality_mconstraint(monotone_constraints, &context, tolerances);
+    }
+    double value = 0.0;
+    try {
+      const nlopt::result r = opt.optimize(theta, value);
+      converged = r > 0 && value < 1e299;
+    } catch (const std::exception&) {
+      converged = false;
+    }
+    if (!constrained && converged) {
+      // A second start from the optimum tightens the simplex search.
+      nlopt::opt polish(nlopt::LN_SBPLX, dim);
+      polish.set_min_objective(objective, &context);
+      polish.set_lower_bounds(lower);
+      polish.set_upper_bounds(upper);
+      polish.set_xtol_rel(1e-12);
+      polish.set_maxeval(5000);
+      try {
+        polish.optimize(theta, value);
+      } catch (const std::exception&) {
+      }
+    }
+  }
+  DetectionFit fit(DetectionFunction(m, natural_from_working(m, theta), w));
+  fit.n = n;
+  fit.parameter_count = q;
+  fit.log_likelihood = log_likelihood(data, m, w, theta);
+  fit.converged = converged && std::isfinite(fit.log_likelihood);
+  fit.monotone = is_monotone(fit.function);
+  fit.aic = -2.0 * fit.log_likelihood + 2.0 * static_cast<double>(q);
+  const double nd = static_cast<double>(n);
+  const double qd = static_cast<double>(q);
+  fit.aicc = nd - qd - 1.0 > 0.0 ? fit.aic + 2.0 * qd * (qd + 1.0) / (nd - qd - 1.0)
+                                 : std::numeric_limits<double>::infinity();
+
+  // Observed information: numerical Hessian of -log L at the optimum.
+  const auto nll = [&](const std::vector<double>& t) { return -log_likelihood(data, m, w, t); };
+  std::vector<std::vector<double>> hessian(q, std::vector<double>(q, 0.0));
+  std::vector<double> h(q);
+  for (std::size_t i = 0; i < q; ++i) h[i] = 1e-4 * std::max(1.0, std::abs(theta[i]));
+  const double f0 = nll(theta);
+  for (std::size_t i = 0; i < q; ++i) {
+    for (std::size_t j = i; j < q; ++j) {
+      std::vector<double> pp = theta, pm = theta, mp = theta, mm = theta;
+      pp[i] += h[i]; pp[j] += h[j];
+      pm[i] += h[i]; pm[j] -= h[j];
+      mp[i] -= h[i]; mp[j] += h[j];
+      mm[i] -= h[i]; mm[j] -= h[j];
+      double value = 0.0;
+      if (i == j) {
+        std::vector<double> p1 = theta, m1 = theta;
+        p1[i] += h[i];
+        m1[i] -= h[i];
+        value = (nll(p1) - 2.0 * f0 + nll(m1)) / (h[i] * h[i]);
+      } else {
+        value = (nll(pp) - nll(pm) - nll(mp) + nll(mm)) / (4.0 * h[i] * h[j]);
+      }
+      hessian[i][j] = hessian[j][i] = value;
+    }
+  }
+  fit.covariance = q > 0 ? inverse(hessian) : std::vector<std::vector<double>>{};
+
+  const auto effective = [&](const std::vector<double>& t) {
+    const DetectionFunction f(m, natural_from_working(m, t), w);
+    return data.kind == TransectKind::line ? f.effective_strip_width() : f.effective_area();
+  };
+  const double value = effective(theta);
+  if (data.kind == TransectKind::line) fit.effective_strip_width_m = value;
+  else fit.effective_area_m2 = value;
+  fit.detection_probability = std::isfinite(w)
+                                  ? (data.kind == TransectKind::line ? value / w : value / (pi * w * w))
+                                  : nan_value;
+  if (q == 0) {
+    fit.effective_cv = 0.0;
+  } else if (fit.covariance.empty()) {
+    fit.effective_cv = nan_value;
+    fit.converged = false;
+  } else {
+    std::vector<double> gradient(q);
+    for (std::size_t i = 0; i < q; ++i) {
+      std::vector<double> up = theta, down = theta;
+      up[i] += h[i];
+      down[i] -= h[i];
+      gradient[i] = (effective(up) - effective(down)) / (2.0 * h[i]);
+    }
+    double variance = 0.0;
+    for (std::size_t i = 0; i < q; ++i)
+      for (std::size_t j = 0; j < q; ++j) variance += gradient[i] * fit.covariance[i][j] * gradient[j];
+    fit.effective_cv = std::sqrt(std::max(0.0, variance)) / value;
+  }
+  fit.detection_probability_cv = fit.effective_cv;
+  return fit;
+}
+
+std::vector<DetectionFit> fit_candidates(const DistanceData& data, const std::vector<KeyFunction>& keys,
+                                         const std::vector<Adjustment>& adjustments,
+                                         std::size_t max_terms) {
+  std::vector<DetectionFit> fits;
+  std::string last_error;
+  const double w = data.binned() ? data.bin_edges.back() : data.truncation_m;
+  const auto attempt = [&](const DetectionModel& model) -> std::optional<DetectionFit> {
+    try {
+      DetectionFit fit = fit_detection_function(data, model);
+      if (fit.converged && fit.monotone) return fit;
+      last_error = std::string(key_function_name(model.key)) + " did not converge";
+    } catch (const AnalysisError& e) {
+      last_error = e.what();
+    }
+    return std::nullopt;
+  };
+  for (const KeyFunction key : keys) {
+    std::optional<DetectionFit> base;
+    if (key != KeyFunction::uniform || !std::isinf(w)) base = attempt({key, Adjustment::none, 0});
+    if (base) fits.push_back(*base);
+    if (!std::isfinite(w)) continue;
+    for (const Adjustment adjustment : adjustments) {
+      if (adjustment == Adjustment::none) continue;
+      double best_aic = base ? base->aic : std::numeric_limits<double>::infinity();
+      for (std::size_t t = 1; t <= max_terms; ++t) {
+        auto fit = attempt({key, adjustment, t});
+        if (!fit || !(fit->aic < best_aic)) break;
+        best_aic = fit->aic;
+        fits.push_back(*fit);
+      }
+    }
+  }
+  if (fits.empty()) throw AnalysisError("no detection function could be fitted: " + last_error);
+  std::stable_sort(fits.begin(), fits.end(), [](const DetectionFit& a, const DetectionFit& b) { return a.aic < b.aic; });
+  return fits;
+}
+
+double kolmogorov_smirnov_p(double d, std::size_t n) {
+  const double m = static_cast<double>(n);
+  const double lambda = (std::sqrt(m) + 0.12 + 0.11 / std::sqrt(m)) * d;
+  if (lambda < 0.2) return 1.0;  // the series converges slowly there, and Q is 1 to 1e-10
+  double q = 0.0;
+  for (int k = 1; k <= 100; ++k)
+    q += 2.0 * ((k % 2) ? 1.0 : -1.0) * std::exp(-2.0 * k * k * lambda * lambda);
+  return std::clamp(q, 0.0, 1.0);
+}
+
+double cramer_von_mises_p(double w2) {
+  if (!(w2 > 0.0)) return 1.0;
+  // P(W2 <= x) = 1/(pi sqrt x) sum_j Gamma(j + 1/2) / (Gamma(1/2) j!) sqrt(4j + 1)
+  //              exp(-(4j+1)^2 / 16x) K_{1/4}((4j+1)^2 / 16x).
+  double cdf = 0.0;
+  for (int j = 0; j < 200; ++j) {
+    const double u = (4.0 * j + 1.0) * (4.0 * j + 1.0) / (16.0 * w2);
+    if (u > 700.0) break;
+    const double coefficient = std::exp(boost::math::lgamma(j + 0.5) - boost::math::lgamma(0.5) -
+                                        boost::math::lgamma(j + 1.0));
+    cdf += coefficient * std::sqrt(4.0 * j + 1.0) * std::exp(-u) * boost::math::cyl_bessel_k(0.25, u);
+  }
+  cdf /= pi * std::sqrt(w2);
+  return std::clamp(1.0 - cdf, 0.0, 1.0);
+}
+
+double fitted_cdf(const DetectionFit& fit, TransectKind kind, double x) {
+  const double w = fit.function.truncation_m();
+  const double total = fit.function.integral(0.0, w, kind);
+  return std::clamp(fit.function.integral(0.0, std::min(x, w), kind) / total, 0.0, 1.0);
+}
+
+GoodnessOfFit goodness_of_fit(const DetectionFit& fit, const DistanceData& data) {
+  GoodnessOfFit gof;
+  const TransectKind kind = data.kind;
+  const double q = static_cast<double>(fit.parameter_count);
+  if (data.binned()) {
+    gof.bin_edges = data.bin_edges;
+    for (const auto c : data.bin_counts) gof.observed.push_back(static_cast<double>(c));
+  } else {
+    double top = fit.function.truncation_m();
+    if (!std::isfinite(top)) top = *std::max_element(data.exact.begin(), data.exact.end());
+    const auto bins = static_cast<std::size_t>(std::clamp(std::round(std::sqrt(static_cast<double>(data.exact.size()))), 3.0, 10.0));
+    for (std::size_t k = 0; k <= bins; ++k) gof.bin_edges.push_back(top * static_cast<double>(k) / static_cast<double>(bins));
+    gof.observed.assign(bins, 0.0);
+    for (const double x : data.exact) {
+      const auto k = std::min(bins - 1, static_cast<std::size_t>(x / top * static_cast<double>(bins)));
+      gof.observed[k] += 1.0;
+    }
+  }
+  const double n = std::accumulate(gof.observed.begin(), gof.observed.end(), 0.0);
+  const double lo = gof.bin_edges.front();
+  const double hi = gof.bin_edges.back();
+  const double total = fit.function.integral(lo, hi, kind);
+  for (std::size_t k = 0; k + 1 < gof.bin_edges.size(); ++k) {
+    const double e = n * fit.function.integral(gof.bin_edges[k], gof.bin_edges[k + 1], kind) / total;
+    gof.expected.push_back(e);
+    if (e > 0.0) gof.chi_square += (gof.observed[k] - e) * (gof.observed[k] - e) / e;
+  }
+  gof.chi_square_df = static_cast<double>(gof.expected.size()) - 1.0 - q;
+  if (gof.chi_square_df > 0.0) {
+    const boost::math::chi_squared law(gof.chi_square_df);
+    gof.chi_square_p = boost::math::cdf(boost::math::complement(law, gof.chi_square));
+  }
+  if (!data.binned() && !data.exact.empty()) {
+    std::vector<double> x = data.exact;
+    std::sort(x.begin(), x.end());
+    const double m = static_cast<double>(x.size());
+    double d = 0.0;
+    double w2 = 1.0 / (12.0 * m);
+    for (std::size_t i = 0; i < x.size(); ++i) {
+      const double f = fitted_cdf(fit, kind, x[i]);
+      const double id = static_cast<double>(i);
+      d = std::max({d, (id + 1.0) / m - f, f - id / m});
+      const double c = f - (2.0 * id + 1.0) / (2.0 * m);
+      w2 += c * c;
+    }
+    gof.ks_statistic = d;
+    gof.ks_p = kolmogorov_smirnov_p(d, x.size());
+    gof.cvm_statistic = w2;
+    gof.cvm_p = cramer_von_mises_p(w2);
+  }
+  return gof;
+}
+
+}  // namespace stipple
