@@ -302,8 +302,10 @@ DetectionFit fit_detection_function(const DistanceData& data, const DetectionMod
     upper.push_back(std::log(s0) + 8.0);
   }
   if (m.key == KeyFunction::hazard_rate) {
+    // Shape b >= 1: below it g falls in a spike at x = 0 and the untruncated strip width
+    // is infinite; small samples otherwise wander there (common practice, no source).
     theta.push_back(std::log(3.0));
-    lower.push_back(std::log(0.5));
+    lower.push_back(0.0);
     upper.push_back(std::log(60.0));
   }
   for (std::size_t j = 0; j < m.terms; ++j) {
@@ -331,6 +333,10 @@ DetectionFit fit_detection_function(const DistanceData& data, const DetectionMod
     try {
       const nlopt::result r = opt.optimize(theta, value);
       converged = r > 0 && value < 1e299;
+    } catch (const nlopt::roundoff_limited&) {
+      // The optimum is as good as floating point allows; theta holds it.
+      converged = std::isfinite(objective(dim, theta.data(), nullptr, &context)) &&
+                  objective(dim, theta.data(), nullptr, &context) < 1e299;
     } catch (const std::exception&) {
       converged = false;
     }
@@ -360,19 +366,21 @@ DetectionFit fit_detection_function(const DistanceData& data, const DetectionMod
   fit.aicc = nd - qd - 1.0 > 0.0 ? fit.aic + 2.0 * qd * (qd + 1.0) / (nd - qd - 1.0)
                                  : std::numeric_limits<double>::infinity();
 
-  // Observed information: numerical Hessian of -log L at the optimum.
+  // Observed information: numerical Hessian of -log L at the optimum, over the parameters
+  // not held at a bound (a parameter on its bound is treated as fixed; common practice).
   const auto nll = [&](const std::vector<double>& t) { return -log_likelihood(data, m, w, t); };
-  std::vector<std::vector<double>> hessian(q, std::vector<double>(q, 0.0));
-  std::vector<double> h(q);
-  for (std::size_t i = 0; i < q; ++i) h[i] = 1e-4 * std::max(1.0, std::abs(theta[i]));
+  std::vector<std::size_t> free;
+  for (std::size_t i = 0; i < theta.size(); ++i)
+    if (theta[i] > lower[i] + 1e-6 && theta[i] < upper[i] - 1e-6) free.push_back(i);
+  const std::size_t nf = free.size();
+  std::vector<double> h(theta.size());
+  for (std::size_t i = 0; i < theta.size(); ++i) h[i] = 1e-4 * std::max(1.0, std::abs(theta[i]));
+  std::vector<std::vector<double>> hessian(nf, std::vector<double>(nf, 0.0));
   const double f0 = nll(theta);
-  for (std::size_t i = 0; i < q; ++i) {
-    for (std::size_t j = i; j < q; ++j) {
-      std::vector<double> pp = theta, pm = theta, mp = theta, mm = theta;
-      pp[i] += h[i]; pp[j] += h[j];
-      pm[i] += h[i]; pm[j] -= h[j];
-      mp[i] -= h[i]; mp[j] += h[j];
-      mm[i] -= h[i]; mm[j] -= h[j];
+  for (std::size_t a = 0; a < nf; ++a) {
+    for (std::size_t b = a; b < nf; ++b) {
+      const std::size_t i = free[a];
+      const std::size_t j = free[b];
       double value = 0.0;
       if (i == j) {
         std::vector<double> p1 = theta, m1 = theta;
@@ -380,12 +388,21 @@ DetectionFit fit_detection_function(const DistanceData& data, const DetectionMod
         m1[i] -= h[i];
         value = (nll(p1) - 2.0 * f0 + nll(m1)) / (h[i] * h[i]);
       } else {
+        std::vector<double> pp = theta, pm = theta, mp = theta, mm = theta;
+        pp[i] += h[i]; pp[j] += h[j];
+        pm[i] += h[i]; pm[j] -= h[j];
+        mp[i] -= h[i]; mp[j] += h[j];
+        mm[i] -= h[i]; mm[j] -= h[j];
         value = (nll(pp) - nll(pm) - nll(mp) + nll(mm)) / (4.0 * h[i] * h[j]);
       }
-      hessian[i][j] = hessian[j][i] = value;
+      hessian[a][b] = hessian[b][a] = value;
     }
   }
-  fit.covariance = q > 0 ? inverse(hessian) : std::vector<std::vector<double>>{};
+  const std::vector<std::vector<double>> free_covariance =
+      nf > 0 ? inverse(hessian) : std::vector<std::vector<double>>{};
+  fit.covariance.assign(theta.size(), std::vector<double>(theta.size(), 0.0));
+  for (std::size_t a = 0; a < free_covariance.size(); ++a)
+    for (std::size_t b = 0; b < free_covariance.size(); ++b) fit.covariance[free[a]][free[b]] = free_covariance[a][b];
 
   const auto effective = [&](const std::vector<double>& t) {
     const DetectionFunction f(m, natural_from_working(m, t), w);
@@ -397,14 +414,14 @@ DetectionFit fit_detection_function(const DistanceData& data, const DetectionMod
   fit.detection_probability = std::isfinite(w)
                                   ? (data.kind == TransectKind::line ? value / w : value / (pi * w * w))
                                   : nan_value;
-  if (q == 0) {
+  if (nf == 0) {
     fit.effective_cv = 0.0;
-  } else if (fit.covariance.empty()) {
-    fit.effective_cv = nan_value;
+  } else if (free_covariance.empty()) {
+    fit.effective_cv = nan_value;  // information matrix singular: the fit is not identifiable
     fit.converged = false;
   } else {
-    std::vector<double> gradient(q);
-    for (std::size_t i = 0; i < q; ++i) {
+    std::vector<double> gradient(q, 0.0);
+    for (const std::size_t i : free) {
       std::vector<double> up = theta, down = theta;
       up[i] += h[i];
       down[i] -= h[i];

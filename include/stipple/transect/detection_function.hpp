@@ -87,7 +87,8 @@ struct DetectionFit {
   double aicc = 0.0;
   bool converged = true;
   bool monotone = true;              ///< g non-increasing and >= 0 on [0, w]
-  std::vector<std::vector<double>> covariance;  ///< of the working parameters (log sigma, log b, a_j)
+  /// Of the working parameters (log sigma, log b, a_j); rows of parameters held at a bound are 0.
+  std::vector<std::vector<double>> covariance;
   double detection_probability = 0.0;     ///< P_a = mu / w (lines), nu / (pi w^2) (points)
   double detection_probability_cv = 0.0;  ///< delta method from the observed information
   double effective_strip_width_m = 0.0;   ///< lines; 0 for points
