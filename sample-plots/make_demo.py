@@ -41,6 +41,16 @@ SPECIES = {
                  "nests at least 15 m apart)", "p": 0.8, "se": 0.04, "min_distance_m": 15.0},
 }
 
+# Line transects across the estate around the plots: 10 parallel lines, 300 m apart.
+TRANSECT_LINES = [(f"T{i + 1:02d}", -850.0 + 300.0 * i, -2400.0, -600.0) for i in range(10)]
+STUDY_AREA = (-1000.0, -2500.0, 2000.0, -500.0)  # 3 km x 2 km = 6 km2
+TRANSECT_SPECIES = {
+    "hare": {"density_km2": 45.0, "detection": "half-normal", "sigma_m": 30.0, "b": None,
+             "mean_cluster_size": 1.0, "simulated_to_m": 150.0},
+    "roe-deer": {"density_km2": 10.0, "detection": "hazard-rate", "sigma_m": 45.0, "b": 2.5,
+                 "mean_cluster_size": 2.2, "simulated_to_m": 250.0},
+}
+
 # Stray GPS waypoints recorded on the walk in, outside every plot (offsets in m).
 STRAYS = [(250.0, 250.0, "birch"), (-60.0, 300.0, "juniper"), (600.0, 200.0, "hazel")]
 
@@ -119,6 +129,30 @@ def simulate(rng, name, spec, polygons, area_m2):
     return uniform_points(rng, polygons, poisson(rng, lam * area_m2))
 
 
+def detect_probability(spec, x):
+    if spec["detection"] == "half-normal":
+        return math.exp(-x * x / (2 * spec["sigma_m"] ** 2))
+    return 1.0 - math.exp(-((x / spec["sigma_m"]) ** -spec["b"])) if x > 0 else 1.0
+
+
+def simulate_transects(rng):
+    """Animals (clusters) Poisson along each line within the simulated strip, kept with g(x)."""
+    rows = []
+    for name, spec in TRANSECT_SPECIES.items():
+        w = spec["simulated_to_m"]
+        for tid, x0, y0, y1 in TRANSECT_LINES:
+            length = y1 - y0
+            n = poisson(rng, spec["density_km2"] * 2 * w * length / 1e6)
+            for _ in range(n):
+                along = y0 + length * rng.random()
+                offset = w * rng.random()
+                side = 1 if rng.random() < 0.5 else -1
+                size = 1 + poisson(rng, spec["mean_cluster_size"] - 1.0)
+                if rng.random() < detect_probability(spec, offset):
+                    rows.append((E0 + x0 + side * offset, N0 + along, name, tid, round(offset, 1), size))
+    return rows
+
+
 def wkt(polygons):
     def ring_text(ring):
         return "(" + ", ".join(f"{E0 + x:.2f} {N0 + y:.2f}" for x, y in ring) + ")"
@@ -154,6 +188,19 @@ def main(work):
             f.write(f"{x:.2f},{y:.2f},{name}\n")
         for dx, dy, name in STRAYS:
             f.write(f"{E0 + dx:.2f},{N0 + dy:.2f},{name}\n")
+    transect_rows = simulate_transects(random.Random(SEED + 1))
+    with open(work / "transect-lines.csv", "w") as f:
+        f.write("wkt,transect\n")
+        for tid, x0, y0, y1 in TRANSECT_LINES:
+            f.write(f'"LINESTRING ({E0 + x0:.2f} {N0 + y0:.2f}, {E0 + x0:.2f} {N0 + y1:.2f})",{tid}\n')
+    with open(work / "transect-sightings.csv", "w") as f:
+        f.write("x,y,species,transect,distance,size\n")
+        for x, y, name, tid, d, size in transect_rows:
+            f.write(f"{x:.2f},{y:.2f},{name},{tid},{d},{size}\n")
+    x0, y0, x1, y1 = STUDY_AREA
+    with open(work / "study-area.csv", "w") as f:
+        f.write("wkt,name\n")
+        f.write(f'"POLYGON (({E0 + x0} {N0 + y0}, {E0 + x0} {N0 + y1}, {E0 + x1} {N0 + y1}, {E0 + x1} {N0 + y0}, {E0 + x0} {N0 + y0}))",estate\n')
     with open(work / "detection.csv", "w") as f:
         f.write("species,p,se\n")
         for name, spec in SPECIES.items():
@@ -167,6 +214,13 @@ def main(work):
         "true_counts": {f"{p}/{s}": n for (p, s), n in true_counts.items()},
         "recorded_sightings": len(sightings),
         "stray_gps_waypoints_outside_plots": len(STRAYS),
+        "transects": {
+            "lines": len(TRANSECT_LINES),
+            "line_length_km": (TRANSECT_LINES[0][3] - TRANSECT_LINES[0][2]) / 1000.0,
+            "study_area_km2": (STUDY_AREA[2] - STUDY_AREA[0]) * (STUDY_AREA[3] - STUDY_AREA[1]) / 1e6,
+            "species": TRANSECT_SPECIES,
+            "detected_clusters": {name: sum(1 for r in transect_rows if r[2] == name) for name in TRANSECT_SPECIES},
+        },
     }
     with open(work / "generating-values.json", "w") as f:
         json.dump(truth, f, indent=2)

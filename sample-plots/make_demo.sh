@@ -6,7 +6,7 @@ work=$(mktemp -d)
 trap 'rm -rf "$work"' EXIT
 python3 make_demo.py "$work"
 
-rm -rf reserve.gpkg shapefiles gps-sightings.csv
+rm -rf reserve.gpkg shapefiles gps-sightings.csv transects.gpkg
 ogr2ogr -f GPKG reserve.gpkg "$work/plots.csv" -nln plots -a_srs EPSG:32630 \
   -oo GEOM_POSSIBLE_NAMES=wkt -oo KEEP_GEOM_COLUMNS=NO -nlt MULTIPOLYGON
 ogr2ogr -f GPKG -update reserve.gpkg "$work/sightings.csv" -nln sightings -a_srs EPSG:32630 \
@@ -23,6 +23,15 @@ done
 ogr2ogr -f CSV "$work/gps-lonlat.csv" "$work/gps.csv" -s_srs EPSG:32630 -t_srs EPSG:4326 \
   -oo X_POSSIBLE_NAMES=x -oo Y_POSSIBLE_NAMES=y -oo KEEP_GEOM_COLUMNS=NO -lco GEOMETRY=AS_XY
 sed -E '1s/^X,Y,(.*[^,]),?$/lon,lat,\1/' "$work/gps-lonlat.csv" > gps-sightings.csv
+
+# Line transects over the estate: lines, sightings (location, recorded distance, cluster size)
+# and the study area, for `stipple transect`.
+ogr2ogr -f GPKG transects.gpkg "$work/transect-lines.csv" -nln lines -a_srs EPSG:32630 \
+  -oo GEOM_POSSIBLE_NAMES=wkt -oo KEEP_GEOM_COLUMNS=NO -nlt LINESTRING
+ogr2ogr -f GPKG -update transects.gpkg "$work/transect-sightings.csv" -nln sightings -a_srs EPSG:32630 \
+  -oo X_POSSIBLE_NAMES=x -oo Y_POSSIBLE_NAMES=y -oo KEEP_GEOM_COLUMNS=NO -oo AUTODETECT_TYPE=YES -nlt POINT
+ogr2ogr -f GPKG -update transects.gpkg "$work/study-area.csv" -nln study_area -a_srs EPSG:32630 \
+  -oo GEOM_POSSIBLE_NAMES=wkt -oo KEEP_GEOM_COLUMNS=NO -nlt POLYGON
 
 cp "$work/detection.csv" detection.csv
 cp "$work/generating-values.json" generating-values.json

@@ -13,6 +13,10 @@ using Action = std::function<int()>;
 Action add_density_command(CLI::App& app);
 /// `stipple randomness`: CSR tests per plot and species, and between species.
 Action add_randomness_command(CLI::App& app);
+/// `stipple transect`: distance sampling from line or point transects.
+Action add_transect_command(CLI::App& app);
+/// `stipple effort`: effort needed for a target CV.
+Action add_effort_command(CLI::App& app);
 /// `stipple inspect`: what a vector source holds.
 Action add_inspect_command(CLI::App& app);
 

@@ -14,17 +14,12 @@ std::optional<std::string> optional(const std::string& value) {
 
 }  // namespace
 
-void add_common_options(CLI::App& command, CommonOptions& o) {
+void add_sighting_options(CLI::App& command, CommonOptions& o) {
   command.add_option("SIGHTINGS", o.sightings,
                      "Sightings: any OGR vector source (GeoPackage, Shapefile, GeoJSON, GPX, "
                      "KML, CSV with coordinate columns)")
       ->required();
   command.add_option("--layer", o.layer, "Layer of SIGHTINGS to read (default: the only point layer)");
-  command.add_option("--plots", o.plots, "Plot polygons (survey windows): any OGR polygon source");
-  command.add_option("--plots-layer", o.plots_layer, "Layer of --plots to read");
-  o.plot_field_option =
-      command.add_option("--plot-field", o.plot_field, "Plot-id attribute of plots and sightings")
-          ->capture_default_str();
   command.add_option("--species-field", o.species_field, "Species attribute of the sightings")
       ->capture_default_str();
   command.add_option("--x-field", o.x_field,
@@ -36,6 +31,14 @@ void add_common_options(CLI::App& command, CommonOptions& o) {
                      "own, or the UTM zone of a geographic input)");
   command.add_option("--assume-crs", o.assume_crs,
                      "CRS of layers that carry none, e.g. EPSG:4326 for GPS longitude/latitude");
+}
+
+void add_window_options(CLI::App& command, CommonOptions& o) {
+  command.add_option("--plots", o.plots, "Plot polygons (survey windows): any OGR polygon source");
+  command.add_option("--plots-layer", o.plots_layer, "Layer of --plots to read");
+  o.plot_field_option =
+      command.add_option("--plot-field", o.plot_field, "Plot-id attribute of plots and sightings")
+          ->capture_default_str();
   command.add_option("--window", o.window,
                      "Survey windows: plots (from --plots) or convex-hull (Ripley-Rasson "
                      "estimate from the points; model-based)")
@@ -43,6 +46,9 @@ void add_common_options(CLI::App& command, CommonOptions& o) {
       ->capture_default_str();
   command.add_flag("--repair-geometry", o.repair_geometry,
                    "Repair invalid plot polygons with GDAL's MakeValid instead of refusing them");
+}
+
+void add_output_options(CLI::App& command, CommonOptions& o) {
   command.add_option("--unit", o.unit, "Area unit of intensities: m2, ha or km2")
       ->check(CLI::IsMember({"m2", "ha", "km2"}))
       ->capture_default_str();
@@ -50,6 +56,12 @@ void add_common_options(CLI::App& command, CommonOptions& o) {
       ->capture_default_str();
   command.add_option("--json", o.json, "Write JSON results to FILE ('-' = standard output)");
   command.add_option("--csv", o.csv, "Write CSV results to FILE ('-' = standard output)");
+}
+
+void add_common_options(CLI::App& command, CommonOptions& o) {
+  add_sighting_options(command, o);
+  add_window_options(command, o);
+  add_output_options(command, o);
 }
 
 SurveyReadOptions to_read_options(const CommonOptions& o) {

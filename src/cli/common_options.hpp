@@ -31,8 +31,14 @@ struct CommonOptions {
   CLI::Option* plot_field_option = nullptr;
 };
 
-/// Adds SIGHTINGS and the shared input, CRS and output options to a subcommand.
+/// Adds SIGHTINGS, the shared input, window, CRS and output options to a subcommand.
 void add_common_options(CLI::App& command, CommonOptions& options);
+/// The parts: SIGHTINGS, --layer, --species-field, --x-field, --y-field, --crs, --assume-crs.
+void add_sighting_options(CLI::App& command, CommonOptions& options);
+/// --plots, --plots-layer, --plot-field, --window, --repair-geometry.
+void add_window_options(CLI::App& command, CommonOptions& options);
+/// --unit, --confidence, --json, --csv.
+void add_output_options(CLI::App& command, CommonOptions& options);
 
 /// The library's read options from the parsed command line.
 [[nodiscard]] SurveyReadOptions to_read_options(const CommonOptions& options);

@@ -19,6 +19,8 @@ int main(int argc, char** argv) {
   app.require_subcommand(1);
   std::vector<stipple::cli::Action> actions{stipple::cli::add_density_command(app),
                                             stipple::cli::add_randomness_command(app),
+                                            stipple::cli::add_transect_command(app),
+                                            stipple::cli::add_effort_command(app),
                                             stipple::cli::add_inspect_command(app)};
   try {
     app.parse(argc, argv);

@@ -201,6 +201,42 @@ OGRSpatialReference utm_for(double longitude, double latitude, std::string& code
   return srs;
 }
 
+ChosenCrs choose_analysis_crs(const std::optional<std::string>& target,
+                              const std::vector<std::pair<const OGRSpatialReference*, std::string>>& candidates,
+                              const OGRSpatialReference& centre_crs, double cx, double cy,
+                              const std::string& label) {
+  ChosenCrs chosen;
+  if (target) {
+    chosen.srs = parse_crs(*target, "--crs");
+    if (!is_projected_metres(chosen.srs))
+      throw InputError("--crs " + *target + ": not a projected CRS in metres (analysis needs planar metres)");
+    chosen.reason = "given with --crs";
+  } else {
+    bool found = false;
+    for (const auto& [srs, role] : candidates) {
+      if (srs != nullptr && is_projected_metres(*srs)) {
+        chosen.srs = *srs;
+        chosen.reason = "the CRS of the " + role;
+        found = true;
+        break;
+      }
+    }
+    if (!found) {
+      const OGRSpatialReference wgs84 = parse_crs("EPSG:4326", "WGS 84");
+      const TransformPtr to_wgs84 = make_transform(centre_crs, wgs84, label);
+      if (to_wgs84 && !to_wgs84->Transform(1, &cx, &cy))
+        throw InputError(label + ": centre cannot be converted to longitude/latitude");
+      std::string code;
+      chosen.srs = utm_for(cx, cy, code);
+      chosen.reason = "chosen automatically: the UTM zone of the data's centre (input is " +
+                      crs_code(centre_crs) + ", not projected in metres); override with --crs";
+    }
+  }
+  chosen.code = crs_code(chosen.srs);
+  chosen.name = crs_name(chosen.srs);
+  return chosen;
+}
+
 TransformPtr make_transform(const OGRSpatialReference& from, const OGRSpatialReference& to,
                             const std::string& label) {
   if (from.IsSame(&to)) return nullptr;

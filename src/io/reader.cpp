@@ -265,42 +265,20 @@ PlotLayer read_plots(OGRLayer& layer, const std::string& label,
 AnalysisCrs choose_crs(const SurveyReadOptions& options, const SightingLayer& sightings,
                        const std::optional<OGRSpatialReference>& plots_crs,
                        OGRSpatialReference& target) {
-  AnalysisCrs crs;
-  if (options.target_crs) {
-    target = parse_crs(*options.target_crs, "--crs");
-    if (!is_projected_metres(target))
-      throw InputError("--crs " + *options.target_crs +
-                       ": not a projected CRS in metres (analysis needs planar metres)");
-    crs.reason = "given with --crs";
-  } else if (is_projected_metres(sightings.crs)) {
-    target = sightings.crs;
-    crs.reason = "the CRS of the sightings";
-  } else if (plots_crs && is_projected_metres(*plots_crs)) {
-    target = *plots_crs;
-    crs.reason = "the CRS of the plots (sightings reprojected to it)";
-  } else {
-    // Geographic (or non-metric) input: the UTM zone of the sightings' centroid.
-    double mx = 0.0;
-    double my = 0.0;
-    for (const auto& row : sightings.rows) {
-      mx += row.x;
-      my += row.y;
-    }
-    const double n = static_cast<double>(std::max<std::size_t>(1, sightings.rows.size()));
-    mx /= n;
-    my /= n;
-    OGRSpatialReference wgs84 = parse_crs("EPSG:4326", "WGS 84");
-    const TransformPtr to_wgs84 = make_transform(sightings.crs, wgs84, sightings.label);
-    if (to_wgs84 && !to_wgs84->Transform(1, &mx, &my))
-      throw InputError(sightings.label + ": centroid cannot be converted to longitude/latitude");
-    std::string code;
-    target = utm_for(mx, my, code);
-    crs.reason = "chosen automatically: the UTM zone of the sightings' centroid (input is " +
-                 crs_code(sightings.crs) + ", not projected in metres); override with --crs";
+  double mx = 0.0;
+  double my = 0.0;
+  for (const auto& row : sightings.rows) {
+    mx += row.x;
+    my += row.y;
   }
-  crs.code = crs_code(target);
-  crs.name = crs_name(target);
-  return crs;
+  const double n = static_cast<double>(std::max<std::size_t>(1, sightings.rows.size()));
+  ChosenCrs chosen = choose_analysis_crs(
+      options.target_crs,
+      {{&sightings.crs, "sightings"},
+       {plots_crs ? &*plots_crs : nullptr, "plots (sightings reprojected to it)"}},
+      sightings.crs, mx / n, my / n, sightings.label);
+  target = chosen.srs;
+  return AnalysisCrs{chosen.code, chosen.name, chosen.reason};
 }
 
 std::vector<Sighting> to_analysis_crs(const SightingLayer& layer,

@@ -288,8 +288,9 @@ std::vector<std::pair<std::string, std::string>> randomness_figures(const Random
                        const EnvelopeResult& e, const std::string& caption) {
     EnvelopeFigure f{title, y_label, e.r, e.observed, e.theoretical, e.pointwise_low,
                      e.pointwise_high, e.global_low, e.global_high, caption};
-    files.emplace_back(stem + ".svg", envelope_figure_svg(f));
-    files.emplace_back(stem + ".png", envelope_figure_png(f));
+    const Chart chart = envelope_chart(f);
+    files.emplace_back(stem + ".svg", chart_svg(chart));
+    files.emplace_back(stem + ".png", chart_png(chart));
   };
   for (const auto& g : result.results) {
     const EnvelopeResult* l = g.l_envelope();

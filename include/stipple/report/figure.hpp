@@ -1,14 +1,38 @@
 #pragma once
-/// Figures drawn with cairo: a summary function with its Monte Carlo envelopes.
+/// Figures drawn with cairo: bands, lines, bars and points on labelled axes, as SVG or PNG.
+/// Colours are the Okabe & Ito (2008) palette, readable by colour-blind readers.
 
 #include <string>
 #include <vector>
 
 namespace stipple {
 
+struct ChartSeries {
+  enum class Kind { line, dashed_line, band, bars, points };
+  Kind kind = Kind::line;
+  std::vector<double> x;       ///< bars: left edges
+  std::vector<double> y;       ///< band: lower; bars: heights
+  std::vector<double> y_upper; ///< band: upper; bars: right edges
+  int colour = 0;              ///< index into the palette (0 blue, 1 vermillion, 2 grey, 3 light grey, 4 green)
+  std::string label;           ///< legend text; empty = no legend entry
+};
+
+struct Chart {
+  std::string title;
+  std::string x_label;
+  std::string y_label;
+  std::string caption;   ///< one line under the plot
+  std::vector<ChartSeries> series;  ///< drawn in order
+};
+
+[[nodiscard]] std::string chart_svg(const Chart& chart);
+/// PNG bytes, 900 x 600 px.
+[[nodiscard]] std::string chart_png(const Chart& chart);
+
+/// A summary function with its Monte Carlo envelopes, as a chart.
 struct EnvelopeFigure {
-  std::string title;     ///< e.g. "glade - hazel"
-  std::string y_label;   ///< e.g. "L(r) (m)"
+  std::string title;
+  std::string y_label;
   std::vector<double> r;
   std::vector<double> observed;
   std::vector<double> theoretical;
@@ -16,12 +40,8 @@ struct EnvelopeFigure {
   std::vector<double> pointwise_high;
   std::vector<double> global_low;
   std::vector<double> global_high;
-  std::string caption;   ///< one line under the plot (test results)
+  std::string caption;
 };
-
-/// The figure as SVG text.
-[[nodiscard]] std::string envelope_figure_svg(const EnvelopeFigure& figure);
-/// The figure as PNG bytes (900 x 600 px).
-[[nodiscard]] std::string envelope_figure_png(const EnvelopeFigure& figure);
+[[nodiscard]] Chart envelope_chart(const EnvelopeFigure& figure);
 
 }  // namespace stipple

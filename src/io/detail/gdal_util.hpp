@@ -74,6 +74,20 @@ std::string crs_name(const OGRSpatialReference& srs);
 /// WGS 84 / UTM zone (north or south) containing the given longitude and latitude.
 OGRSpatialReference utm_for(double longitude, double latitude, std::string& code);
 
+/// The analysis CRS: `target` (--crs) when given, which must be projected in metres; else
+/// the first candidate CRS projected in metres; else the UTM zone of (cx, cy), a point in
+/// `centre_crs`. `reason` says which, for the output.
+struct ChosenCrs {
+  OGRSpatialReference srs;
+  std::string code;
+  std::string name;
+  std::string reason;
+};
+ChosenCrs choose_analysis_crs(const std::optional<std::string>& target,
+                              const std::vector<std::pair<const OGRSpatialReference*, std::string>>& candidates,
+                              const OGRSpatialReference& centre_crs, double cx, double cy,
+                              const std::string& label);
+
 /// A transformation between two CRSs, or null when they are the same.
 TransformPtr make_transform(const OGRSpatialReference& from, const OGRSpatialReference& to,
                             const std::string& label);
