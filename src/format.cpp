@@ -19,7 +19,11 @@ std::string format_fixed(double value, int decimals) {
 
 std::string format_significant(double value, int digits) {
   if (!std::isfinite(value) || value == 0.0) return format_fixed(value, 0);
-  const int magnitude = static_cast<int>(std::floor(std::log10(std::abs(value))));
+  int magnitude = static_cast<int>(std::floor(std::log10(std::abs(value))));
+  // Rounding can carry into the next power of ten (0.99996 -> 1.000): measure after it.
+  const double scale = std::pow(10.0, digits - 1 - magnitude);
+  const double rounded = std::round(value * scale) / scale;
+  if (rounded != 0.0) magnitude = static_cast<int>(std::floor(std::log10(std::abs(rounded))));
   const int decimals = std::clamp(digits - 1 - magnitude, 0, 12);
   return format_fixed(value, decimals);
 }

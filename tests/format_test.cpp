@@ -11,6 +11,7 @@ TEST(Format, IgnoresTheLocaleDecimalSeparator) {
   EXPECT_EQ(format_general(1.5), "1.5");
   EXPECT_EQ(format_significant(0.012345, 3), "0.0123");
   EXPECT_EQ(format_significant(123.456, 4), "123.5");
+  EXPECT_EQ(format_significant(0.99999999, 4), "1.000");
   EXPECT_EQ(format_p_value(0.00001), "<0.0001");
   EXPECT_EQ(format_p_value(0.3219583), "0.322");
 }

@@ -50,6 +50,22 @@ std::vector<double> curve_of(const SummaryCurves& c, std::size_t which) {
 
 const char* function_names[] = {"L", "K", "g", "G", "F", "J"};
 
+// The DCLF test on L when the envelope ran, else Clark-Evans, else the quadrat test.
+void decide_verdict(GroupResult& g, double alpha) {
+  if (const EnvelopeResult* l = g.l_envelope()) {
+    g.verdict_basis = "DCLF test on L";
+    if (l->dclf_p_value < alpha) g.verdict = l->mean_deviation > 0.0 ? "clustered" : "regular";
+  } else if (g.clark_evans) {
+    const double p = g.clark_evans->monte_carlo_p_value.value_or(g.clark_evans->p_value);
+    g.verdict_basis = "Clark-Evans test";
+    if (p < alpha) g.verdict = g.clark_evans->ratio < 1.0 ? "clustered" : "regular";
+  } else if (g.quadrat) {
+    g.verdict_basis = "quadrat test";
+    if (g.quadrat->p_value < alpha)
+      g.verdict = g.quadrat->chi_square.p_upper < g.quadrat->chi_square.p_lower ? "clustered" : "regular";
+  }
+}
+
 }  // namespace
 
 GroupResult analyse_pattern(const std::vector<Point>& points, const Window& window,
@@ -75,7 +91,11 @@ GroupResult analyse_pattern(const std::vector<Point>& points, const Window& wind
     }
   }
 
-  const bool need_simulations = options.simulations > 0 && (options.run_envelope || options.run_clark_evans);
+  if (!options.run_clark_evans && !options.run_envelope) {  // quadrat only
+    decide_verdict(g, options.alpha);
+    return g;
+  }
+  const bool need_simulations = options.simulations > 0;
   const double rmax = options.rmax_m.value_or(default_rmax(window, n));
   SummaryOptions so;
   so.rmax_m = rmax;
@@ -123,19 +143,7 @@ GroupResult analyse_pattern(const std::vector<Point>& points, const Window& wind
     }
   }
 
-  // Verdict.
-  if (const EnvelopeResult* l = g.l_envelope()) {
-    g.verdict_basis = "DCLF test on L";
-    if (l->dclf_p_value < options.alpha) g.verdict = l->mean_deviation > 0.0 ? "clustered" : "regular";
-  } else if (g.clark_evans) {
-    const double p = g.clark_evans->monte_carlo_p_value.value_or(g.clark_evans->p_value);
-    g.verdict_basis = "Clark-Evans test";
-    if (p < options.alpha) g.verdict = g.clark_evans->ratio < 1.0 ? "clustered" : "regular";
-  } else if (g.quadrat) {
-    g.verdict_basis = "quadrat test";
-    if (g.quadrat->p_value < options.alpha)
-      g.verdict = g.quadrat->chi_square.p_upper < g.quadrat->chi_square.p_lower ? "clustered" : "regular";
-  }
+  decide_verdict(g, options.alpha);
   return g;
 }
 
