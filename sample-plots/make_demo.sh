@@ -6,14 +6,17 @@ work=$(mktemp -d)
 trap 'rm -rf "$work"' EXIT
 python3 make_demo.py "$work"
 
-rm -rf reserve.gpkg shapefiles gps-sightings.csv transects.gpkg
+rm -rf reserve.gpkg shapefiles gps-sightings.csv transects.gpkg season
 ogr2ogr -f GPKG reserve.gpkg "$work/plots.csv" -nln plots -a_srs EPSG:32630 \
   -oo GEOM_POSSIBLE_NAMES=wkt -oo KEEP_GEOM_COLUMNS=NO -nlt MULTIPOLYGON
 ogr2ogr -f GPKG -update reserve.gpkg "$work/sightings.csv" -nln sightings -a_srs EPSG:32630 \
   -oo X_POSSIBLE_NAMES=x -oo Y_POSSIBLE_NAMES=y -oo KEEP_GEOM_COLUMNS=NO -nlt POINT
 
-mkdir -p shapefiles
+mkdir -p shapefiles season
 for plot in north glade ridge burn; do
+  # A season's field files: one GeoPackage per plot, holding its polygon and its sightings.
+  ogr2ogr -f GPKG "season/${plot}.gpkg" reserve.gpkg plots -where "plot = '${plot}'"
+  ogr2ogr -f GPKG -update "season/${plot}.gpkg" reserve.gpkg sightings -where "plot = '${plot}'"
   ogr2ogr -f "ESRI Shapefile" "shapefiles/${plot}-plot.shp" reserve.gpkg plots -where "plot = '${plot}'"
   ogr2ogr -f "ESRI Shapefile" "shapefiles/${plot}-sightings.shp" reserve.gpkg sightings \
     -where "plot = '${plot}'"

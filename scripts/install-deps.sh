@@ -11,6 +11,9 @@ packages=(
   libcairo2-dev fonts-dejavu-core  # figures (SVG, PNG) and their font
   pkg-config                       # finds cairo
   libnlopt-dev libnlopt-cxx-dev    # NLopt: maximum-likelihood fits of detection functions
+  libssl-dev                       # SHA-256 checksums of inputs in batch manifests
+  libtomlplusplus-dev              # run files for stipple batch (TOML)
+  chromium                         # headless rendering test of the HTML report
   libgtest-dev libgmock-dev        # GoogleTest
   libbenchmark-dev                 # Google Benchmark (bench/)
   python3                          # demo-data generator

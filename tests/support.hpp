@@ -71,7 +71,9 @@ inline RunResult run_cli(const std::string& args) {
   const std::string err_file = dir.file("stderr.txt");
   const bool subcommand = args.empty() || args[0] == '-' || args.rfind("inspect", 0) == 0 ||
                           args.rfind("randomness", 0) == 0 || args.rfind("transect", 0) == 0 ||
-                          args.rfind("effort", 0) == 0 ||
+                          args.rfind("effort", 0) == 0 || args.rfind("batch", 0) == 0 ||
+                          args.rfind("merge", 0) == 0 || args.rfind("report", 0) == 0 ||
+                          args.rfind("surface", 0) == 0 ||
                           args.rfind("density", 0) == 0;
   const std::string command = std::string(STIPPLE_CLI) + (subcommand ? " " : " density ") + args +
                               " 2>" + err_file + " </dev/null";

@@ -17,6 +17,12 @@ Action add_randomness_command(CLI::App& app);
 Action add_transect_command(CLI::App& app);
 /// `stipple effort`: effort needed for a target CV.
 Action add_effort_command(CLI::App& app);
+/// `stipple batch`, `stipple merge`, `stipple report`.
+Action add_batch_command(CLI::App& app);
+Action add_merge_command(CLI::App& app);
+Action add_report_command(CLI::App& app);
+/// `stipple surface`: kernel intensity surfaces as GeoTIFF.
+Action add_surface_command(CLI::App& app);
 /// `stipple inspect`: what a vector source holds.
 Action add_inspect_command(CLI::App& app);
 

@@ -21,6 +21,10 @@ int main(int argc, char** argv) {
                                             stipple::cli::add_randomness_command(app),
                                             stipple::cli::add_transect_command(app),
                                             stipple::cli::add_effort_command(app),
+                                            stipple::cli::add_batch_command(app),
+                                            stipple::cli::add_merge_command(app),
+                                            stipple::cli::add_report_command(app),
+                                            stipple::cli::add_surface_command(app),
                                             stipple::cli::add_inspect_command(app)};
   try {
     app.parse(argc, argv);

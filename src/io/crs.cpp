@@ -234,6 +234,10 @@ ChosenCrs choose_analysis_crs(const std::optional<std::string>& target,
   }
   chosen.code = crs_code(chosen.srs);
   chosen.name = crs_name(chosen.srs);
+  char* wkt = nullptr;
+  chosen.srs.exportToWkt(&wkt);
+  chosen.wkt = wkt ? wkt : "";
+  CPLFree(wkt);
   return chosen;
 }
 

@@ -5,6 +5,8 @@
 
 #include <unistd.h>
 
+#include <openssl/evp.h>
+
 #include "stipple/error.hpp"
 
 namespace fs = std::filesystem;
@@ -68,6 +70,35 @@ void write_file_safely(const std::string& path, const std::string& content,
     fs::remove(temporary, ec);
     throw InputError(path + ": cannot be replaced (" + ec.message() + ")");
   }
+}
+
+std::string sha256_file(const std::string& path) {
+  std::ifstream in(path, std::ios::binary);
+  if (!in) throw InputError(path + ": cannot be read for its checksum");
+  EVP_MD_CTX* context = EVP_MD_CTX_new();
+  EVP_DigestInit_ex(context, EVP_sha256(), nullptr);
+  char buffer[65536];
+  while (in) {
+    in.read(buffer, sizeof buffer);
+    if (in.gcount() > 0) EVP_DigestUpdate(context, buffer, static_cast<std::size_t>(in.gcount()));
+  }
+  unsigned char digest[EVP_MAX_MD_SIZE];
+  unsigned int length = 0;
+  EVP_DigestFinal_ex(context, digest, &length);
+  EVP_MD_CTX_free(context);
+  static const char* hex = "0123456789abcdef";
+  std::string out;
+  for (unsigned int i = 0; i < length; ++i) {
+    out += hex[digest[i] >> 4];
+    out += hex[digest[i] & 15];
+  }
+  return out;
+}
+
+void make_folder(const std::string& path) {
+  std::error_code ec;
+  fs::create_directories(path, ec);
+  if (ec || !fs::is_directory(path, ec)) throw InputError(path + ": cannot create folder");
 }
 
 }  // namespace stipple

@@ -278,7 +278,7 @@ AnalysisCrs choose_crs(const SurveyReadOptions& options, const SightingLayer& si
        {plots_crs ? &*plots_crs : nullptr, "plots (sightings reprojected to it)"}},
       sightings.crs, mx / n, my / n, sightings.label);
   target = chosen.srs;
-  return AnalysisCrs{chosen.code, chosen.name, chosen.reason};
+  return AnalysisCrs{chosen.code, chosen.name, chosen.reason, chosen.wkt};
 }
 
 std::vector<Sighting> to_analysis_crs(const SightingLayer& layer,

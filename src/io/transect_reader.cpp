@@ -135,7 +135,7 @@ LoadedTransects load_transects(const TransectReadOptions& options) {
        {sightings_crs ? &*sightings_crs : nullptr, "sightings"}},
       transect_crs, (extent.MinX + extent.MaxX) / 2.0, (extent.MinY + extent.MaxY) / 2.0,
       loaded.transects_label);
-  loaded.crs = AnalysisCrs{chosen.code, chosen.name, chosen.reason};
+  loaded.crs = AnalysisCrs{chosen.code, chosen.name, chosen.reason, chosen.wkt};
   const OGRSpatialReference& target = chosen.srs;
 
   // Transects.

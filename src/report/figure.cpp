@@ -3,6 +3,8 @@
 #include <algorithm>
 #include <cmath>
 #include <limits>
+#include <map>
+#include <regex>
 
 #include <cairo-svg.h>
 #include <cairo.h>
@@ -31,6 +33,25 @@ constexpr Rgb palette[] = {
 Rgb colour_of(int index) {
   const int n = static_cast<int>(sizeof palette / sizeof palette[0]);
   return palette[((index % n) + n) % n];
+}
+
+// cairo numbers SVG surfaces with a process-wide counter, so the same figure would get other
+// ids in another run or thread: renumber them per document for byte-identical re-runs.
+std::string stable_ids(const std::string& svg) {
+  static const std::regex id("surface([0-9]+)");
+  std::map<std::string, std::string> renamed;
+  std::string out;
+  auto last = svg.cbegin();
+  for (auto it = std::sregex_iterator(svg.begin(), svg.end(), id); it != std::sregex_iterator(); ++it) {
+    out.append(last, svg.cbegin() + it->position());
+    const std::string key = (*it)[1].str();
+    auto found = renamed.find(key);
+    if (found == renamed.end()) found = renamed.emplace(key, std::to_string(renamed.size() + 1)).first;
+    out += "surface" + found->second;
+    last = svg.cbegin() + it->position() + it->length();
+  }
+  out.append(last, svg.cend());
+  return out;
 }
 
 cairo_status_t append_to_string(void* closure, const unsigned char* data, unsigned int length) {
@@ -220,7 +241,7 @@ std::string chart_svg(const Chart& chart) {
   cairo_destroy(cr);
   cairo_surface_finish(surface);
   cairo_surface_destroy(surface);
-  return out;
+  return stable_ids(out);
 }
 
 std::string chart_png(const Chart& chart) {
@@ -233,6 +254,101 @@ std::string chart_png(const Chart& chart) {
   cairo_surface_write_to_png_stream(surface, append_to_string, &out);
   cairo_surface_destroy(surface);
   return out;
+}
+
+std::string plot_map_svg(const Plot& plot, const MarkedPattern& pattern, const std::vector<std::string>& species) {
+  std::string out;
+  const double width = 760.0;
+  const double height = 620.0;
+  cairo_surface_t* surface = cairo_svg_surface_create_for_stream(append_to_string, &out, width, height);
+  cairo_t* cr = cairo_create(surface);
+  cairo_set_source_rgb(cr, 1, 1, 1);
+  cairo_paint(cr);
+  const Bounds& b = plot.window.bounds();
+  const double left = 30.0, top = 50.0, map_w = 520.0, map_h = 520.0;
+  const double scale = std::min(map_w / b.width(), map_h / b.height());
+  const auto X = [&](double x) { return left + (x - b.xmin) * scale; };
+  const auto Y = [&](double y) { return top + map_h - (y - b.ymin) * scale; };
+  // Window: parts and holes, even-odd fill.
+  cairo_new_path(cr);
+  for (const auto& polygon : plot.window.shape()) {
+    const auto ring_path = [&](const BgPolygon::ring_type& ring) {
+      for (std::size_t i = 0; i < ring.size(); ++i) {
+        if (i == 0) cairo_move_to(cr, X(ring[i].x()), Y(ring[i].y()));
+        else cairo_line_to(cr, X(ring[i].x()), Y(ring[i].y()));
+      }
+      cairo_close_path(cr);
+    };
+    ring_path(polygon.outer());
+    for (const auto& inner : polygon.inners()) ring_path(inner);
+  }
+  cairo_set_fill_rule(cr, CAIRO_FILL_RULE_EVEN_ODD);
+  cairo_set_source_rgb(cr, 0.96, 0.96, 0.93);
+  cairo_fill_preserve(cr);
+  cairo_set_source_rgb(cr, 0.1, 0.1, 0.1);
+  cairo_set_line_width(cr, 1.5);
+  cairo_stroke(cr);
+  // Markers: shape and colour both vary by species.
+  const auto marker = [&](std::size_t s, double x, double y, double r) {
+    // Okabe & Ito: blue, vermillion, bluish green, reddish purple, orange, sky blue.
+    static constexpr Rgb marker_colours[] = {{0.0, 0.447, 0.698}, {0.835, 0.369, 0.0}, {0.0, 0.620, 0.451},
+                                             {0.8, 0.475, 0.655}, {0.902, 0.624, 0.0}, {0.337, 0.706, 0.914}};
+    const Rgb c = marker_colours[s % 6];
+    cairo_set_source_rgb(cr, c.r, c.g, c.b);
+    cairo_new_path(cr);
+    switch (s % 5) {
+      case 0: cairo_arc(cr, x, y, r, 0, 2 * 3.14159265358979323846); break;
+      case 1: cairo_rectangle(cr, x - r, y - r, 2 * r, 2 * r); break;
+      case 2: cairo_move_to(cr, x, y - r * 1.2); cairo_line_to(cr, x + r * 1.1, y + r * 0.8);
+              cairo_line_to(cr, x - r * 1.1, y + r * 0.8); cairo_close_path(cr); break;
+      case 3: cairo_move_to(cr, x, y - r * 1.3); cairo_line_to(cr, x + r * 1.1, y);
+              cairo_line_to(cr, x, y + r * 1.3); cairo_line_to(cr, x - r * 1.1, y); cairo_close_path(cr); break;
+      default:
+        cairo_set_line_width(cr, 2.0);
+        cairo_move_to(cr, x - r, y - r); cairo_line_to(cr, x + r, y + r);
+        cairo_move_to(cr, x - r, y + r); cairo_line_to(cr, x + r, y - r);
+        cairo_stroke(cr);
+        return;
+    }
+    cairo_fill(cr);
+  };
+  for (std::size_t i = 0; i < pattern.points.size(); ++i)
+    marker(pattern.marks[i], X(pattern.points[i].x), Y(pattern.points[i].y), 3.5);
+  cairo_select_font_face(cr, "DejaVu Sans", CAIRO_FONT_SLANT_NORMAL, CAIRO_FONT_WEIGHT_NORMAL);
+  cairo_set_font_size(cr, 18.0);
+  cairo_set_source_rgb(cr, 0, 0, 0);
+  cairo_move_to(cr, left, 32);
+  cairo_show_text(cr, ("Plot " + plot.id + " (" + format_significant(plot.window.area_m2() / 1e4, 3) + " ha, " +
+                       std::to_string(pattern.points.size()) + " sightings)").c_str());
+  // Legend.
+  cairo_set_font_size(cr, 14.0);
+  double ly = top + 20;
+  std::vector<std::size_t> counts(species.size(), 0);
+  for (const auto m : pattern.marks) ++counts[m];
+  for (std::size_t s = 0; s < species.size(); ++s) {
+    marker(s, left + map_w + 30, ly - 5, 5.0);
+    cairo_set_source_rgb(cr, 0, 0, 0);
+    cairo_move_to(cr, left + map_w + 45, ly);
+    cairo_show_text(cr, (species[s] + " (" + std::to_string(counts[s]) + ")").c_str());
+    ly += 24;
+  }
+  // Scale bar: a round length near a quarter of the map width.
+  const double target = 0.25 * map_w / scale;
+  const double magnitude = std::pow(10.0, std::floor(std::log10(target)));
+  double length = magnitude;
+  for (const double m : {1.0, 2.0, 5.0, 10.0})
+    if (m * magnitude <= target) length = m * magnitude;
+  const double bx = left;
+  const double by = top + map_h + 30;
+  cairo_set_source_rgb(cr, 0, 0, 0);
+  cairo_rectangle(cr, bx, by, length * scale, 6);
+  cairo_fill(cr);
+  cairo_move_to(cr, bx + length * scale + 8, by + 7);
+  cairo_show_text(cr, (format_general(length) + " m").c_str());
+  cairo_destroy(cr);
+  cairo_surface_finish(surface);
+  cairo_surface_destroy(surface);
+  return stable_ids(out);
 }
 
 Chart envelope_chart(const EnvelopeFigure& f) {

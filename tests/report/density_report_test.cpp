@@ -8,7 +8,7 @@ namespace {
 
 LoadedSurvey tiny_survey() {
   LoadedSurvey s;
-  s.crs = AnalysisCrs{"EPSG:32630", "WGS 84 / UTM zone 30N", "given with --crs"};
+  s.crs = AnalysisCrs{"EPSG:32630", "WGS 84 / UTM zone 30N", "given with --crs", ""};
   s.sightings_label = "s.gpkg: layer 'stems'";
   s.plots_label = "p.gpkg: layer 'plots'";
   std::vector<Sighting> sightings;

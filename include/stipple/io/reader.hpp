@@ -43,6 +43,7 @@ struct AnalysisCrs {
   std::string code;    ///< "EPSG:32630", or the CRS name when it has no authority code
   std::string name;    ///< "WGS 84 / UTM zone 30N"
   std::string reason;  ///< how it was chosen, for the output
+  std::string wkt;     ///< WKT, for GIS outputs
 };
 
 /// A survey read from its sources and assigned to plots.

@@ -5,6 +5,8 @@
 #include <string>
 #include <vector>
 
+#include "stipple/geometry/survey.hpp"
+
 namespace stipple {
 
 struct ChartSeries {
@@ -43,5 +45,10 @@ struct EnvelopeFigure {
   std::string caption;
 };
 [[nodiscard]] Chart envelope_chart(const EnvelopeFigure& figure);
+
+/// A map of one plot: its window outline (holes and parts), its sightings by species with a
+/// distinct colour and marker shape per species (colour-blind-safe), and a scale bar. SVG.
+[[nodiscard]] std::string plot_map_svg(const Plot& plot, const MarkedPattern& pattern,
+                                       const std::vector<std::string>& species);
 
 }  // namespace stipple

@@ -82,6 +82,7 @@ struct ChosenCrs {
   std::string code;
   std::string name;
   std::string reason;
+  std::string wkt;
 };
 ChosenCrs choose_analysis_crs(const std::optional<std::string>& target,
                               const std::vector<std::pair<const OGRSpatialReference*, std::string>>& candidates,

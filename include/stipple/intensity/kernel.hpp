@@ -1,0 +1,47 @@
+#pragma once
+/// Kernel-smoothed intensity surfaces with edge correction.
+
+#include <cstddef>
+#include <optional>
+#include <vector>
+
+#include "stipple/geometry/point.hpp"
+#include "stipple/geometry/survey.hpp"
+#include "stipple/geometry/window.hpp"
+
+namespace stipple {
+
+/// A north-up raster: values row by row from the top; NaN outside every window.
+struct IntensityRaster {
+  double x_min = 0.0;   ///< left edge, metres
+  double y_max = 0.0;   ///< top edge, metres
+  double pixel_m = 1.0;
+  std::size_t width = 0;
+  std::size_t height = 0;
+  std::vector<double> values;
+};
+
+/// Scott's rule for an isotropic Gaussian kernel: h = n^(-1/6) sqrt((s_x^2 + s_y^2) / 2)
+/// (Scott 1992, Multivariate Density Estimation, from memory: the 2-D form). 0 with < 2 points.
+[[nodiscard]] double scott_bandwidth(const std::vector<Point>& points);
+
+/// An empty raster covering `bounds` with square pixels of `pixel_m`.
+[[nodiscard]] IntensityRaster make_raster(const Bounds& bounds, double pixel_m);
+
+/// Adds the Gaussian-kernel intensity of `points` in `window` to the pixels whose centres
+/// lie in the window, with Diggle's (1985) uniform edge correction
+/// lambda(u) = sum_i k_h(u - x_i) / e_h(u), e_h(u) = integral over W of k_h(u - v) dv
+/// (computed on the raster's own pixels), scaled by `per_unit` (square metres per unit area).
+void add_kernel_intensity(IntensityRaster& raster, const std::vector<Point>& points, const Window& window,
+                          double bandwidth_m, double per_unit);
+
+/// The surface of one species (or all together) over every plot of a survey: one raster
+/// covering all plots, each plot smoothed in its own window with its own Scott bandwidth
+/// (or `bandwidth_m`); a plot with fewer than 2 such sightings uses the bandwidth of all its
+/// sightings, and one with none is 0. `pixel_m` defaults to 1/200 of the shorter side of
+/// the plots' extent. Values per unit area (`per_unit` square metres).
+[[nodiscard]] IntensityRaster intensity_surface(const Survey& survey, std::optional<std::size_t> species,
+                                                double per_unit, std::optional<double> pixel_m,
+                                                std::optional<double> bandwidth_m);
+
+}  // namespace stipple

@@ -1,0 +1,293 @@
+// `stipple batch`, `stipple merge` and `stipple report`: parse options, call the library,
+// show progress.
+
+#include <chrono>
+#include <filesystem>
+#include <iostream>
+#include <memory>
+#include <sstream>
+
+#include <toml++/toml.h>
+#include <unistd.h>
+
+#include "commands.hpp"
+#include "common_options.hpp"
+#include "stipple/batch/batch.hpp"
+#include "stipple/error.hpp"
+#include "stipple/format.hpp"
+#include "stipple/io/output.hpp"
+#include "stipple/report/batch_report.hpp"
+
+namespace stipple::cli {
+
+namespace {
+
+struct BatchCommandOptions {
+  CommonOptions common;  // common.sightings holds the input folder or list file
+  std::string out;
+  std::string pattern = "*.gpkg";
+  std::string plots_name;
+  std::vector<std::string> analyses{"density", "randomness"};
+  std::string shard_text;
+  unsigned threads = 0;
+  bool quiet = false;
+  std::string run_file;
+  bool report = false;
+  std::string detection_file;
+  double detection_prob = 1.0;
+  double detection_se = 0.0;
+  std::size_t simulations = 999;
+  std::uint64_t seed = default_seed;
+  std::string quadrats = "4x4";
+  std::string edge_correction;
+  double rmax = 0.0;
+  bool gis = false;
+  bool surfaces = false;
+  double pixel = 0.0;
+  double bandwidth = 0.0;
+};
+
+// Values of the run file, applied unless the command line names the same option.
+void apply_run_file(BatchCommandOptions& o, CLI::App& command) {
+  toml::table file;
+  try {
+    file = toml::parse_file(o.run_file);
+  } catch (const toml::parse_error& e) {
+    std::ostringstream message;
+    message << o.run_file << ": line " << e.source().begin.line << ": " << e.description();
+    throw InputError(message.str());
+  }
+  const auto given = [&](const char* option) { return command.get_option(option)->count() > 0; };
+  const auto text = [&](const toml::node_view<toml::node> node, std::string& target, const char* option) {
+    if (!node) return;
+    if (!node.is_string()) throw InputError(o.run_file + ": '" + std::string(option).substr(2) + "' must be a string");
+    if (!given(option)) target = *node.value<std::string>();
+  };
+  const auto real = [&](const toml::node_view<toml::node> node, double& target, const char* option) {
+    if (!node) return;
+    if (!node.is_number()) throw InputError(o.run_file + ": '" + std::string(option).substr(2) + "' must be a number");
+    if (!given(option)) target = *node.value<double>();
+  };
+  const auto whole = [&](const toml::node_view<toml::node> node, auto& target, const char* option) {
+    if (!node) return;
+    if (!node.is_integer() || *node.value<long long>() < 0)
+      throw InputError(o.run_file + ": '" + std::string(option).substr(2) + "' must be a whole number >= 0");
+    if (!given(option)) target = static_cast<std::decay_t<decltype(target)>>(*node.value<long long>());
+  };
+  if (auto list = file["analyses"]; list && !given("--analyses")) {
+    if (!list.is_array()) throw InputError(o.run_file + ": 'analyses' must be a list, e.g. [\"density\"]");
+    o.analyses.clear();
+    for (const auto& item : *list.as_array()) {
+      if (!item.is_string()) throw InputError(o.run_file + ": 'analyses' holds a value that is not a string");
+      o.analyses.push_back(*item.value<std::string>());
+    }
+  }
+  text(file["pattern"], o.pattern, "--pattern");
+  text(file["plots_name"], o.plots_name, "--plots-name");
+  text(file["species_field"], o.common.species_field, "--species-field");
+  text(file["plot_field"], o.common.plot_field, "--plot-field");
+  text(file["unit"], o.common.unit, "--unit");
+  text(file["crs"], o.common.crs, "--crs");
+  text(file["assume_crs"], o.common.assume_crs, "--assume-crs");
+  real(file["confidence"], o.common.confidence, "--confidence");
+  text(file["density"]["detection"], o.detection_file, "--detection");
+  real(file["density"]["detection_prob"], o.detection_prob, "--detection-prob");
+  real(file["density"]["detection_se"], o.detection_se, "--detection-se");
+  whole(file["randomness"]["simulations"], o.simulations, "--simulations");
+  whole(file["randomness"]["seed"], o.seed, "--seed");
+  text(file["randomness"]["quadrats"], o.quadrats, "--quadrats");
+  text(file["randomness"]["edge_correction"], o.edge_correction, "--edge-correction");
+  if (auto gis = file["gis"]; gis && !given("--gis")) o.gis = gis.value_or(false);
+  if (auto surfaces = file["surface"]; surfaces && !given("--surface")) o.surfaces = surfaces.value_or(false);
+  real(file["randomness"]["rmax"], o.rmax, "--rmax");
+}
+
+std::pair<std::size_t, std::size_t> grid(const std::string& text) {
+  const auto x = text.find_first_of("xX");
+  try {
+    if (x == std::string::npos) throw std::invalid_argument(text);
+    return {std::stoul(text.substr(0, x)), std::stoul(text.substr(x + 1))};
+  } catch (const std::exception&) {
+    throw InputError("--quadrats must look like 4x4 (got '" + text + "')");
+  }
+}
+
+std::string clock_text(double seconds) {
+  const auto s = static_cast<long>(seconds + 0.5);
+  std::ostringstream out;
+  out << s / 60 << ":" << (s % 60 < 10 ? "0" : "") << s % 60;
+  return out.str();
+}
+
+int run_batch_command(BatchCommandOptions& o, CLI::App& command) {
+  if (!o.run_file.empty()) apply_run_file(o, command);
+  BatchOptions options;
+  options.read = to_read_options(o.common);
+  options.run_density = options.run_randomness = false;
+  for (const auto& a : o.analyses) {
+    if (a == "density") options.run_density = true;
+    else if (a == "randomness") options.run_randomness = true;
+    else throw InputError("--analyses takes density, randomness (got '" + a + "')");
+  }
+  options.density.unit = parse_area_unit(o.common.unit);
+  options.density.confidence = o.common.confidence;
+  options.density.seed = o.seed;
+  std::optional<Detection> single;
+  if (command.get_option("--detection-prob")->count() > 0 || o.detection_prob != 1.0 || o.detection_se != 0.0)
+    single = make_detection(o.detection_prob, o.detection_se, "--detection-prob");
+  if (!o.detection_file.empty()) options.density.detection = read_detection_table(o.detection_file, single);
+  else if (single) options.density.detection = DetectionTable::uniform(*single);
+  options.randomness.simulations = o.simulations;
+  options.randomness.seed = o.seed;
+  options.randomness.alpha = alpha_from_confidence(o.common.confidence);
+  std::tie(options.randomness.quadrat.nx, options.randomness.quadrat.ny) = grid(o.quadrats);
+  if (!o.edge_correction.empty()) options.randomness.edge_correction = parse_edge_correction(o.edge_correction);
+  if (o.rmax > 0.0) options.randomness.rmax_m = o.rmax;
+  options.threads = o.threads;
+  options.gis = o.gis;
+  options.surfaces = o.surfaces;
+  if (o.pixel < 0.0 || o.bandwidth < 0.0) throw InputError("--pixel and --bandwidth must be positive");
+  if (o.pixel > 0.0) options.pixel_m = o.pixel;
+  if (o.bandwidth > 0.0) options.bandwidth_m = o.bandwidth;
+
+  std::vector<BatchInput> inputs = discover_inputs(o.common.sightings, o.pattern, o.plots_name);
+  const std::size_t all_inputs = inputs.size();
+  if (!o.shard_text.empty()) {
+    const auto [k, n] = parse_shard(o.shard_text);
+    inputs = shard(inputs, k, n);
+  }
+  std::vector<std::string> protect{o.common.sightings};
+  for (const auto& in : inputs) {
+    protect.push_back(in.path);
+    protect.push_back(in.plots_path);
+  }
+  const std::filesystem::path out(o.out);
+  for (const auto& in : inputs) {
+    std::error_code ec;
+    if (std::filesystem::equivalent(out, std::filesystem::path(in.path).parent_path(), ec))
+      throw InputError(o.out + ": the output folder holds inputs; choose another --out");
+  }
+
+  const bool terminal = ::isatty(STDERR_FILENO) != 0;
+  const auto start = std::chrono::steady_clock::now();
+  const auto progress = [&](std::size_t done, std::size_t total, const BatchFileResult& r) {
+    if (o.quiet) return;
+    const double elapsed = std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
+    const double eta = done > 0 ? elapsed / static_cast<double>(done) * static_cast<double>(total - done) : 0.0;
+    if (terminal) {
+      const std::size_t width = 30;
+      const std::size_t filled = total > 0 ? width * done / total : width;
+      std::cerr << "\r[" << std::string(filled, '#') << std::string(width - filled, ' ') << "] " << done << "/"
+                << total << " files, ETA " << clock_text(eta) << "   " << std::flush;
+      if (done == total) std::cerr << "\n";
+    } else {
+      std::cerr << "stipple batch: " << done << "/" << total << " " << r.input.name << " "
+                << (r.ok ? "ok" : "FAILED") << " (" << format_fixed(elapsed, 1) << " s)\n";
+    }
+  };
+  if (!o.quiet)
+    std::cerr << "stipple batch: " << inputs.size() << " of " << all_inputs << " input(s)"
+              << (o.shard_text.empty() ? "" : " (shard " + o.shard_text + ")") << "\n";
+  const std::vector<BatchFileResult> results = run_batch(inputs, options, progress);
+  std::ostringstream options_text;
+  for (const auto& arg : command.remaining_for_passthrough()) options_text << arg << " ";
+  std::string used = "analyses=";
+  for (const auto& a : o.analyses) used += a + ",";
+  used += " unit=" + o.common.unit + " confidence=" + format_general(o.common.confidence) +
+          " simulations=" + std::to_string(o.simulations) + " seed=" + std::to_string(o.seed) +
+          " quadrats=" + o.quadrats + (o.edge_correction.empty() ? "" : " edge-correction=" + o.edge_correction) +
+          (o.rmax > 0.0 ? " rmax=" + format_general(o.rmax) : "") +
+          (o.detection_file.empty() ? "" : " detection=" + std::filesystem::path(o.detection_file).filename().string()) +
+          " pattern=" + o.pattern + (o.plots_name.empty() ? "" : " plots-name=" + o.plots_name) +
+          (o.run_file.empty() ? "" : " run-file=" + std::filesystem::path(o.run_file).filename().string());
+  write_batch_outputs(o.out, results, options, used, protect);
+  if (o.report)
+    write_file_safely((out / "report.html").string(), batch_report_html(o.out), protect);
+
+  std::size_t failed = 0;
+  for (const auto& r : results) {
+    if (r.ok) continue;
+    ++failed;
+    std::cerr << "failed: " << r.input.name << ": " << r.failure << "\n";
+  }
+  if (!o.quiet)
+    std::cerr << "stipple batch: " << results.size() - failed << " ok, " << failed << " failed; tables in " << o.out
+              << (o.report ? ", report " + (out / "report.html").string() : std::string()) << "\n";
+  return failed > 0 ? static_cast<int>(ExitCode::some_inputs_failed) : 0;
+}
+
+}  // namespace
+
+Action add_batch_command(CLI::App& app) {
+  auto o = std::make_shared<BatchCommandOptions>();
+  CLI::App* c = app.add_subcommand(
+      "batch", "Run density and randomness over a folder (or list) of plot files: tidy tables, figures, a report");
+  c->add_option("INPUTS", o->common.sightings, "A folder searched recursively, or a file listing one input per line")
+      ->required();
+  c->add_option("--out", o->out, "Output folder")->required();
+  c->add_option("--pattern", o->pattern, "File-name pattern of the inputs (* and ?)")->capture_default_str();
+  c->add_option("--plots-name", o->plots_name,
+                "Plots file beside each input, {*} = what the pattern's * matched (default: the input itself)");
+  c->add_option("--analyses", o->analyses, "density, randomness")->delimiter(',')->capture_default_str();
+  c->add_option("--shard", o->shard_text, "Process only the K-th of N deterministic slices, K/N");
+  c->add_option("--threads", o->threads, "Files processed in parallel (0 = all cores)")->capture_default_str();
+  c->add_flag("--quiet", o->quiet, "No progress output");
+  c->add_option("--run-file", o->run_file, "TOML run file with the analyses and options (the command line wins)");
+  c->add_flag("--report", o->report, "Also write OUT/report.html");
+  c->add_flag("--gis", o->gis, "Also write OUT/plot-results.gpkg: plot polygons with density and test attributes");
+  c->add_flag("--surface", o->surfaces, "Also write kernel intensity surfaces per species: OUT/surfaces/*/*.tif");
+  c->add_option("--pixel", o->pixel, "Surface pixel size, metres (default: 1/200 of the plots' extent)");
+  c->add_option("--bandwidth", o->bandwidth, "Kernel bandwidth, metres (default: Scott's rule per plot)");
+  c->add_option("--layer", o->common.layer, "Sightings layer in each input");
+  c->add_option("--plots-layer", o->common.plots_layer, "Plots layer in each input");
+  c->add_option("--plot-field", o->common.plot_field, "Plot-id attribute")->capture_default_str();
+  c->add_option("--species-field", o->common.species_field, "Species attribute")->capture_default_str();
+  c->add_option("--crs", o->common.crs, "Analysis CRS, projected in metres");
+  c->add_option("--assume-crs", o->common.assume_crs, "CRS of layers that carry none");
+  c->add_option("--unit", o->common.unit, "Area unit: m2, ha or km2")->check(CLI::IsMember({"m2", "ha", "km2"}))
+      ->capture_default_str();
+  c->add_option("--confidence", o->common.confidence, "Two-sided confidence level")->capture_default_str();
+  c->add_option("--detection", o->detection_file, "CSV of detection probabilities: species, p, optional se");
+  c->add_option("--detection-prob", o->detection_prob, "One detection probability for every species");
+  c->add_option("--detection-se", o->detection_se, "Standard error of --detection-prob");
+  c->add_option("--simulations", o->simulations, "CSR simulations per group")->capture_default_str();
+  c->add_option("--seed", o->seed, "Seed; each plot's simulations derive their own from it")->capture_default_str();
+  c->add_option("--quadrats", o->quadrats, "Quadrat grid NxM")->capture_default_str();
+  c->add_option("--edge-correction", o->edge_correction, "Clark-Evans edge correction: none, donnelly, border")
+      ->check(CLI::IsMember({"none", "donnelly", "border"}));
+  c->add_option("--rmax", o->rmax, "Largest distance of the summary functions, metres");
+  return [c, o] {
+    if (!c->parsed()) return -1;
+    return run_batch_command(*o, *c);
+  };
+}
+
+Action add_merge_command(CLI::App& app) {
+  auto dirs = std::make_shared<std::vector<std::string>>();
+  auto out = std::make_shared<std::string>();
+  CLI::App* c = app.add_subcommand("merge", "Combine the output folders of batch shards into one run's tables");
+  c->add_option("SHARDS", *dirs, "Output folders of `stipple batch --shard K/N`")->required();
+  c->add_option("--out", *out, "Output folder")->required();
+  return [c, dirs, out] {
+    if (!c->parsed()) return -1;
+    merge_batch_outputs(*dirs, *out);
+    return 0;
+  };
+}
+
+Action add_report_command(CLI::App& app) {
+  auto dir = std::make_shared<std::string>();
+  auto output = std::make_shared<std::string>();
+  CLI::App* c = app.add_subcommand("report", "Write the self-contained HTML report of a batch output folder");
+  c->add_option("OUT", *dir, "A folder written by `stipple batch` or `stipple merge`")->required();
+  c->add_option("--output", *output, "HTML file (default OUT/report.html)");
+  return [c, dir, output] {
+    if (!c->parsed()) return -1;
+    const std::string target = output->empty() ? (std::filesystem::path(*dir) / "report.html").string() : *output;
+    write_file_safely(target, batch_report_html(*dir), {});
+    std::cout << "report written to " << target << "\n";
+    return 0;
+  };
+}
+
+}  // namespace stipple::cli

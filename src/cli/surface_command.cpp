@@ -1,0 +1,61 @@
+// `stipple surface`: kernel-smoothed intensity surfaces per species as GeoTIFF.
+
+#include <filesystem>
+#include <iostream>
+#include <memory>
+
+#include "commands.hpp"
+#include "common_options.hpp"
+#include "stipple/error.hpp"
+#include "stipple/intensity/kernel.hpp"
+#include "stipple/intensity/poisson.hpp"
+#include "stipple/io/gis_writer.hpp"
+#include "stipple/io/output.hpp"
+#include "stipple/io/reader.hpp"
+
+namespace stipple::cli {
+
+Action add_surface_command(CLI::App& app) {
+  struct Options {
+    CommonOptions common;
+    std::string out;
+    double pixel = 0.0;
+    double bandwidth = 0.0;
+  };
+  auto o = std::make_shared<Options>();
+  CLI::App* c = app.add_subcommand(
+      "surface", "Kernel-smoothed intensity surface per species (and all together) as GeoTIFF");
+  add_sighting_options(*c, o->common);
+  add_window_options(*c, o->common);
+  c->add_option("--unit", o->common.unit, "Area unit of the intensity: m2, ha or km2")
+      ->check(CLI::IsMember({"m2", "ha", "km2"}))
+      ->capture_default_str();
+  c->add_option("--out", o->out, "Output folder for <species>.tif")->required();
+  c->add_option("--pixel", o->pixel, "Pixel size, metres (default: 1/200 of the plots' extent)");
+  c->add_option("--bandwidth", o->bandwidth, "Gaussian kernel bandwidth, metres (default: Scott's rule per plot)");
+  return [c, o] {
+    if (!c->parsed()) return -1;
+    if (o->pixel < 0.0 || o->bandwidth < 0.0) throw InputError("--pixel and --bandwidth must be positive");
+    const LoadedSurvey survey = load_survey(to_read_options(o->common));
+    const double per_unit = square_metres_per(parse_area_unit(o->common.unit));
+    make_folder(o->out);
+    const Survey& s = survey.survey;
+    for (std::size_t k = 0; k <= s.species.size(); ++k) {
+      const std::optional<std::size_t> species = k < s.species.size() ? std::optional<std::size_t>(k) : std::nullopt;
+      const IntensityRaster raster =
+          intensity_surface(s, species, per_unit, o->pixel > 0.0 ? std::optional<double>(o->pixel) : std::nullopt,
+                            o->bandwidth > 0.0 ? std::optional<double>(o->bandwidth) : std::nullopt);
+      std::string name = species ? s.species[k] : "all-species";
+      for (char& ch : name)
+        if (!std::isalnum(static_cast<unsigned char>(ch)) && ch != '-' && ch != '_') ch = '_';
+      const std::string path = (std::filesystem::path(o->out) / (name + ".tif")).string();
+      write_geotiff(path, raster, survey.crs.wkt,
+                    "intensity per " + o->common.unit + ", Gaussian kernel, Scott bandwidth per plot, Diggle edge correction",
+                    input_paths(o->common));
+      std::cout << path << "\n";
+    }
+    return 0;
+  };
+}
+
+}  // namespace stipple::cli

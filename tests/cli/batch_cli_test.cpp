@@ -1,0 +1,229 @@
+// `stipple batch`, `merge`, `report` and `surface` as a user runs them on sample-plots/.
+
+#include <cairo.h>
+#include <filesystem>
+#include <fstream>
+#include <sstream>
+
+#include <gdal_priv.h>
+#include <gtest/gtest.h>
+#include <nlohmann/json.hpp>
+#include <ogrsf_frmts.h>
+
+#include "support.hpp"
+
+namespace fs = std::filesystem;
+
+namespace stipple {
+namespace {
+
+using test::run_cli;
+using test::sample;
+using test::TempDir;
+
+std::string read(const fs::path& p) {
+  std::ifstream in(p, std::ios::binary);
+  std::stringstream s;
+  s << in.rdbuf();
+  return s.str();
+}
+
+std::string batch(const std::string& input, const std::string& out, const std::string& extra = "") {
+  return "batch " + input + " --out " + out + " --simulations 49 --quiet " + extra;
+}
+
+TEST(BatchCli, EqualsThePerFileCommands) {
+  TempDir out;
+  const auto r = run_cli(batch(sample("season"), out.file("all")));
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  const auto density = nlohmann::json::parse(read(out.file("all/density.json")));
+  const auto randomness = nlohmann::json::parse(read(out.file("all/randomness.json")));
+  std::size_t density_seen = 0;
+  std::size_t randomness_seen = 0;
+  for (const char* name : {"burn.gpkg", "glade.gpkg", "north.gpkg", "ridge.gpkg"}) {
+    const std::string file = sample(std::string("season/") + name);
+    const auto d = nlohmann::json::parse(run_cli(file + " --plots " + file + " --json -").out);
+    const auto g = nlohmann::json::parse(
+        run_cli("randomness " + file + " --plots " + file + " --simulations 49 --json -").out);
+    std::vector<nlohmann::json> batch_d, batch_g;
+    for (auto rec : density)
+      if (rec["file"] == name) rec.erase("file"), batch_d.push_back(rec);
+    for (auto rec : randomness)
+      if (rec["file"] == name) rec.erase("file"), batch_g.push_back(rec);
+    ASSERT_EQ(batch_d.size(), d["estimates"].size()) << name;
+    for (std::size_t i = 0; i < batch_d.size(); ++i) EXPECT_EQ(batch_d[i], d["estimates"][i]) << name << " " << i;
+    ASSERT_EQ(batch_g.size(), g["results"].size()) << name;
+    for (std::size_t i = 0; i < batch_g.size(); ++i) EXPECT_EQ(batch_g[i], g["results"][i]) << name << " " << i;
+    density_seen += batch_d.size();
+    randomness_seen += batch_g.size();
+  }
+  EXPECT_EQ(density_seen, density.size());
+  EXPECT_EQ(randomness_seen, randomness.size());
+  std::ifstream csv(out.file("all/density.csv"));
+  std::string header;
+  std::getline(csv, header);
+  EXPECT_EQ(header.rfind("file,plot,species,count,area,intensity,ci_low,ci_high", 0), 0u);
+  std::ifstream rcsv(out.file("all/randomness.csv"));
+  std::getline(rcsv, header);
+  EXPECT_EQ(header, "file,plot,species,n,quadrat_p,clark_evans_ratio,clark_evans_p,mad_p,dclf_p,verdict");
+}
+
+TEST(BatchCli, ShardsMergeToTheSingleRun) {
+  TempDir out;
+  ASSERT_EQ(run_cli(batch(sample("season"), out.file("one"), "--gis")).exit_code, 0);
+  ASSERT_EQ(run_cli(batch(sample("season"), out.file("s1"), "--gis --shard 1/3")).exit_code, 0);
+  ASSERT_EQ(run_cli(batch(sample("season"), out.file("s2"), "--gis --shard 2/3")).exit_code, 0);
+  ASSERT_EQ(run_cli(batch(sample("season"), out.file("s3"), "--gis --shard 3/3")).exit_code, 0);
+  const auto m = run_cli("merge " + out.file("s3") + " " + out.file("s1") + " " + out.file("s2") + " --out " + out.file("merged"));
+  ASSERT_EQ(m.exit_code, 0) << m.err;
+  for (const char* f : {"density.csv", "density.json", "randomness.csv", "randomness.json", "failures.csv", "run.json"})
+    EXPECT_EQ(read(out.file(std::string("one/") + f)), read(out.file(std::string("merged/") + f))) << f;
+  // The GeoPackage: same features in the same order.
+  GDALDatasetUniquePtr a(GDALDataset::Open(out.file("one/plot-results.gpkg").c_str(), GDAL_OF_VECTOR));
+  GDALDatasetUniquePtr b(GDALDataset::Open(out.file("merged/plot-results.gpkg").c_str(), GDAL_OF_VECTOR));
+  ASSERT_TRUE(a && b);
+  OGRLayer* la = a->GetLayerByName("plot_results");
+  OGRLayer* lb = b->GetLayerByName("plot_results");
+  ASSERT_EQ(la->GetFeatureCount(), lb->GetFeatureCount());
+  for (GIntBig i = 1; i <= la->GetFeatureCount(); ++i) {
+    std::unique_ptr<OGRFeature> fa(la->GetFeature(i)), fb(lb->GetFeature(i));
+    EXPECT_STREQ(fa->GetFieldAsString("plot"), fb->GetFieldAsString("plot"));
+    EXPECT_EQ(fa->GetFieldAsDouble("intensity"), fb->GetFieldAsDouble("intensity"));
+  }
+}
+
+TEST(BatchCli, ACorruptFileIsReportedWhileOthersFinish) {
+  TempDir in;
+  for (const char* name : {"north.gpkg", "glade.gpkg"}) fs::copy_file(sample(std::string("season/") + name), in.path() / name);
+  (void)in.write("broken.gpkg", "not a GeoPackage at all");
+  TempDir out;
+  const auto r = run_cli(batch(in.path().string(), out.file("o")));
+  EXPECT_EQ(r.exit_code, 1) << r.err;
+  EXPECT_NE(r.err.find("failed: broken.gpkg"), std::string::npos) << r.err;
+  const std::string failures = read(out.file("o/failures.csv"));
+  EXPECT_EQ(failures.rfind("file,reason\nbroken.gpkg,", 0), 0u) << failures;
+  const std::string density = read(out.file("o/density.csv"));
+  EXPECT_NE(density.find("north.gpkg,north,birch"), std::string::npos);
+  EXPECT_NE(density.find("glade.gpkg,glade,birch"), std::string::npos);
+}
+
+TEST(BatchCli, GisOutputsReadBackThroughGdal) {
+  TempDir out;
+  ASSERT_EQ(run_cli(batch(sample("season"), out.file("o"), "--gis --surface --unit ha")).exit_code, 0);
+  GDALDatasetUniquePtr gpkg(GDALDataset::Open(out.file("o/plot-results.gpkg").c_str(), GDAL_OF_VECTOR));
+  ASSERT_TRUE(gpkg);
+  OGRLayer* layer = gpkg->GetLayerByName("plot_results");
+  ASSERT_NE(layer, nullptr);
+  EXPECT_STREQ(layer->GetSpatialRef()->GetAuthorityCode(nullptr), "32630");
+  EXPECT_EQ(layer->GetFeatureCount(), 20);  // 4 plots x (4 species + all)
+  for (const char* field : {"plot", "species", "count", "intensity", "ci_low", "ci_high", "dclf_p", "verdict"})
+    EXPECT_GE(layer->GetLayerDefn()->GetFieldIndex(field), 0) << field;
+  bool found = false;
+  for (auto& f : *layer) {
+    if (std::string(f->GetFieldAsString("plot")) == "north" && std::string(f->GetFieldAsString("species")) == "birch") {
+      EXPECT_EQ(f->GetFieldAsInteger64("count"), 81);
+      EXPECT_NEAR(f->GetFieldAsDouble("intensity"), 81.0, 1e-9);  // 81 in 1 ha
+      EXPECT_NEAR(f->GetGeometryRef()->toMultiPolygon()->get_Area(), 1e4, 1e-6);
+      found = true;
+    }
+  }
+  EXPECT_TRUE(found);
+  // The surface integrates over the window to about the observed count (Diggle's edge
+  // correction keeps the mass inside the window; tolerance 3%, common practice).
+  GDALDatasetUniquePtr tif(GDALDataset::Open(out.file("o/surfaces/north/birch.tif").c_str(), GDAL_OF_RASTER));
+  ASSERT_TRUE(tif);
+  EXPECT_STREQ(tif->GetSpatialRef()->GetAuthorityCode(nullptr), "32630");
+  double transform[6];
+  ASSERT_EQ(tif->GetGeoTransform(transform), CE_None);
+  const int w = tif->GetRasterXSize();
+  const int h = tif->GetRasterYSize();
+  std::vector<double> values(static_cast<std::size_t>(w) * static_cast<std::size_t>(h));
+  ASSERT_EQ(tif->GetRasterBand(1)->RasterIO(GF_Read, 0, 0, w, h, values.data(), w, h, GDT_Float64, 0, 0), CE_None);
+  double total = 0.0;
+  for (const double v : values)
+    if (std::isfinite(v)) total += v * transform[1] * -transform[5] / 1e4;  // per ha -> count
+  EXPECT_NEAR(total, 81.0, 0.03 * 81.0);
+}
+
+TEST(BatchCli, ReRunGivesIdenticalFiles) {
+  TempDir out;
+  ASSERT_EQ(run_cli(batch(sample("season"), out.file("a"), "--gis --surface --report")).exit_code, 0);
+  ASSERT_EQ(run_cli(batch(sample("season"), out.file("b"), "--gis --surface --report")).exit_code, 0);
+  std::size_t compared = 0;
+  for (auto it = fs::recursive_directory_iterator(out.file("a")); it != fs::recursive_directory_iterator(); ++it) {
+    if (!it->is_regular_file()) continue;
+    const fs::path rel = fs::relative(it->path(), out.file("a"));
+    EXPECT_EQ(read(it->path()), read(fs::path(out.file("b")) / rel)) << rel;
+    ++compared;
+  }
+  EXPECT_GT(compared, 30u);
+}
+
+TEST(BatchCli, ReportRendersInHeadlessChromium) {
+  if (!fs::exists("/usr/bin/chromium")) GTEST_SKIP() << "chromium not installed (scripts/install-deps.sh installs it)";
+  TempDir out;
+  ASSERT_EQ(run_cli(batch(sample("season"), out.file("o"), "--report")).exit_code, 0);
+  const std::string html = read(out.file("o/report.html"));
+  for (const char* part : {"SHA-256", "EPSG:32630", "Methods", "Garwood", "Plot maps", "L-function envelopes", "cautions"})
+    EXPECT_NE(html.find(part), std::string::npos) << part;
+  EXPECT_EQ(html.find("src=\"http"), std::string::npos);  // self-contained
+  const std::string png = out.file("shot.png");
+  const std::string command = "/usr/bin/chromium --headless --no-sandbox --disable-gpu --disable-quic --no-first-run "
+                              "--disable-background-networking --disable-component-update --disable-sync "
+                              "--user-data-dir=" + out.file("profile") + " --window-size=1200,1600 --screenshot=" + png +
+                              " file://" + out.file("o/report.html") + " > /dev/null 2>&1";
+  ASSERT_EQ(std::system(command.c_str()), 0);
+  cairo_surface_t* image = cairo_image_surface_create_from_png(png.c_str());
+  ASSERT_EQ(cairo_surface_status(image), CAIRO_STATUS_SUCCESS);
+  const int width = cairo_image_surface_get_width(image);
+  const int height = cairo_image_surface_get_height(image);
+  const int stride = cairo_image_surface_get_stride(image);
+  const unsigned char* data = cairo_image_surface_get_data(image);
+  std::size_t ink = 0;
+  for (int y = 0; y < height; ++y)
+    for (int x = 0; x < width; ++x) {
+      const unsigned char* px = data + y * stride + 4 * x;
+      if (px[0] < 200 || px[1] < 200 || px[2] < 200) ++ink;
+    }
+  cairo_surface_destroy(image);
+  // A blank page has no dark pixels; the report's text and tables cover several percent.
+  EXPECT_GT(static_cast<double>(ink) / (static_cast<double>(width) * height), 0.02);
+}
+
+TEST(BatchCli, RunFileSetsAnalysesAndOptions) {
+  TempDir dir;
+  const auto run = dir.write("run.toml", "analyses = [\"density\"]\nunit = \"km2\"\n[randomness]\nsimulations = 19\n");
+  const auto r = run_cli(batch(sample("season"), dir.file("o"), "--run-file " + run));
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  EXPECT_TRUE(fs::exists(dir.file("o/density.csv")));
+  EXPECT_FALSE(fs::exists(dir.file("o/randomness.csv")));
+  EXPECT_NE(read(dir.file("o/density.csv")).find(",km2\n"), std::string::npos);
+  const auto bad = dir.write("bad.toml", "analyses = [\"density\"\nunit = 3\n");
+  const auto b = run_cli(batch(sample("season"), dir.file("p"), "--run-file " + bad));
+  EXPECT_EQ(b.exit_code, 2);
+  EXPECT_NE(b.err.find("bad.toml: line"), std::string::npos) << b.err;
+}
+
+TEST(BatchCli, ShapefilePairsAndBadInputs) {
+  TempDir out;
+  const auto r = run_cli(batch(sample("shapefiles"), out.file("o"), "--pattern '*-sightings.shp' --plots-name '{*}-plot.shp' --analyses density"));
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  EXPECT_NE(read(out.file("o/density.csv")).find("north-sightings.shp,north,birch,81"), std::string::npos);
+  EXPECT_EQ(run_cli(batch(sample("season"), out.file("x"), "--shard 4/3")).exit_code, 2);
+  EXPECT_EQ(run_cli(batch(sample("season"), out.file("x"), "--pattern '*.nothing'")).exit_code, 2);
+  EXPECT_EQ(run_cli(batch("/no/such/folder", out.file("x"))).exit_code, 2);
+  const auto over = run_cli(batch(sample("season"), sample("season")));
+  EXPECT_EQ(over.exit_code, 2);
+  EXPECT_NE(over.err.find("the output folder holds inputs"), std::string::npos) << over.err;
+}
+
+TEST(SurfaceCli, WritesOneGeoTiffPerSpecies) {
+  TempDir out;
+  const auto r = run_cli("surface " + sample("reserve.gpkg") + " --plots " + sample("reserve.gpkg") + " --out " + out.file("s"));
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  for (const char* name : {"birch.tif", "hazel.tif", "juniper.tif", "wood-ant.tif", "all-species.tif"})
+    EXPECT_TRUE(fs::exists(out.file(std::string("s/") + name))) << name;
+}
+
+}  // namespace
+}  // namespace stipple
