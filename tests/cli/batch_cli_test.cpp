@@ -227,3 +227,25 @@ TEST(SurfaceCli, WritesOneGeoTiffPerSpecies) {
 
 }  // namespace
 }  // namespace stipple
+
+namespace stipple {
+namespace {
+
+TEST(BatchCli, SlurmArrayScriptShardsMergeToTheSingleRun) {
+  // Runs scripts/cluster/slurm-batch.sh as Slurm would: one process per array task.
+  test::TempDir out;
+  const std::string script = std::string(STIPPLE_SAMPLE_DIR) + "/../scripts/cluster/slurm-batch.sh";
+  for (int task = 1; task <= 2; ++task) {
+    const std::string command = "SLURM_ARRAY_TASK_ID=" + std::to_string(task) +
+                                " SLURM_ARRAY_TASK_COUNT=2 SLURM_CPUS_PER_TASK=1 STIPPLE=" + std::string(STIPPLE_CLI) +
+                                " bash " + script + " " + test::sample("season") + " " + out.file("r") + " --simulations 49 --quiet > /dev/null 2>&1";
+    ASSERT_EQ(std::system(command.c_str()), 0) << command;
+  }
+  ASSERT_EQ(test::run_cli("merge " + out.file("r/shard-1") + " " + out.file("r/shard-2") + " --out " + out.file("m")).exit_code, 0);
+  ASSERT_EQ(test::run_cli("batch " + test::sample("season") + " --out " + out.file("one") + " --gis --quiet --simulations 49").exit_code, 0);
+  for (const char* f : {"density.csv", "randomness.csv", "density.json", "randomness.json"})
+    EXPECT_EQ(read(out.file(std::string("one/") + f)), read(out.file(std::string("m/") + f))) << f;
+}
+
+}  // namespace
+}  // namespace stipple
