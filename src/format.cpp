@@ -1,6 +1,7 @@
 #include "stipple/format.hpp"
 
 #include <algorithm>
+#include <cctype>
 #include <cmath>
 #include <locale>
 #include <sstream>
@@ -69,6 +70,15 @@ std::string TextTable::render(const std::string& indent) const {
   emit(header_);
   for (const auto& row : rows_) emit(row);
   return out.str();
+}
+
+std::string file_name_safe(const std::string& text) {
+  std::string out;
+  for (const char c : text) {
+    const auto u = static_cast<unsigned char>(c);
+    out += (std::isalnum(u) || c == '-' || c == '_' || c == '.') ? c : '_';
+  }
+  return out;
 }
 
 std::string csv_field(const std::string& text) {

@@ -1,6 +1,7 @@
 #pragma once
 // Test helpers: temporary folders, small input files, and running the stipple binary.
 
+#include <algorithm>
 #include <cstdio>
 #include <filesystem>
 #include <fstream>
@@ -8,6 +9,8 @@
 #include <sstream>
 #include <string>
 #include <sys/wait.h>
+
+#include <gtest/gtest.h>
 
 namespace stipple::test {
 
@@ -90,6 +93,14 @@ inline RunResult run_cli(const std::string& args) {
   text << err.rdbuf();
   result.err = text.str();
   return result;
+}
+
+/// A refused input: exit code 2 and a one-line `error: ...` message containing `message`.
+inline void expect_refused(const RunResult& r, const std::string& message) {
+  EXPECT_EQ(r.exit_code, 2) << r.err;
+  EXPECT_NE(r.err.find(message), std::string::npos) << "stderr: " << r.err;
+  EXPECT_EQ(r.err.rfind("error: ", 0), 0u) << r.err;
+  EXPECT_EQ(std::count(r.err.begin(), r.err.end(), '\n'), 1) << "one line: " << r.err;
 }
 
 inline std::string sample(const std::string& name) {

@@ -29,6 +29,10 @@ class TextTable {
   std::size_t left_aligned_;
 };
 
+/// `text` with every character other than letters, digits, '-', '_' and '.' replaced by '_',
+/// for file names made from plot and species names.
+[[nodiscard]] std::string file_name_safe(const std::string& text);
+
 /// RFC 4180 quoting of one CSV field.
 [[nodiscard]] std::string csv_field(const std::string& text);
 

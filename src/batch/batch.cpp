@@ -66,13 +66,6 @@ std::string stem_of(const std::string& name) {
   return dot == std::string::npos ? s : s.substr(0, dot);
 }
 
-std::string file_safe(const std::string& text) {
-  std::string out;
-  for (const char c : text)
-    out += (std::isalnum(static_cast<unsigned char>(c)) || c == '-' || c == '_' || c == '.') ? c : '_';
-  return out;
-}
-
 std::string first_csv_field(const std::string& line) {
   if (line.empty() || line[0] != '"') return line.substr(0, line.find(','));
   std::string out;
@@ -192,7 +185,7 @@ BatchFileResult run_one(const BatchInput& input, const BatchOptions& options) {
     const double per_unit = square_metres_per(options.density.unit);
     for (std::size_t k = 0; k <= s.species.size(); ++k) {
       const std::optional<std::size_t> species = k < s.species.size() ? std::optional<std::size_t>(k) : std::nullopt;
-      const std::string name = species ? file_safe(s.species[k]) : std::string("all-species");
+      const std::string name = species ? file_name_safe(s.species[k]) : std::string("all-species");
       r.surfaces.emplace_back("surfaces/" + stem + "/" + name + ".tif",
                               intensity_surface(s, species, per_unit, options.pixel_m, options.bandwidth_m));
     }
@@ -200,7 +193,7 @@ BatchFileResult run_one(const BatchInput& input, const BatchOptions& options) {
   if (options.figures) {
     const Survey& s = r.survey.survey;
     for (std::size_t p = 0; p < s.plots.size(); ++p)
-      r.figures.emplace_back("maps/" + stem + "/" + file_safe(s.plots[p].id) + ".svg",
+      r.figures.emplace_back("maps/" + stem + "/" + file_name_safe(s.plots[p].id) + ".svg",
                              plot_map_svg(s.plots[p], s.patterns[p], s.species));
   }
   r.ok = true;

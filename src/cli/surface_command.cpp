@@ -7,6 +7,7 @@
 #include "commands.hpp"
 #include "common_options.hpp"
 #include "stipple/error.hpp"
+#include "stipple/format.hpp"
 #include "stipple/intensity/kernel.hpp"
 #include "stipple/intensity/poisson.hpp"
 #include "stipple/io/gis_writer.hpp"
@@ -45,9 +46,7 @@ Action add_surface_command(CLI::App& app) {
       const IntensityRaster raster =
           intensity_surface(s, species, per_unit, o->pixel > 0.0 ? std::optional<double>(o->pixel) : std::nullopt,
                             o->bandwidth > 0.0 ? std::optional<double>(o->bandwidth) : std::nullopt);
-      std::string name = species ? s.species[k] : "all-species";
-      for (char& ch : name)
-        if (!std::isalnum(static_cast<unsigned char>(ch)) && ch != '-' && ch != '_') ch = '_';
+      const std::string name = species ? file_name_safe(s.species[k]) : "all-species";
       const std::string path = (std::filesystem::path(o->out) / (name + ".tif")).string();
       write_geotiff(path, raster, survey.crs.wkt,
                     "intensity per " + o->common.unit + ", Gaussian kernel, Scott bandwidth per plot, Diggle edge correction",

@@ -6,6 +6,7 @@
 #include <numeric>
 
 #include "stipple/error.hpp"
+#include "stipple/quantile.hpp"
 
 namespace stipple {
 
@@ -16,13 +17,8 @@ bool at_least(double simulated, double observed) {
 }
 
 double quantile(std::vector<double> values, double q) {
-  if (values.empty()) return std::numeric_limits<double>::quiet_NaN();
   std::sort(values.begin(), values.end());
-  // Type-7 quantile (linear interpolation between order statistics).
-  const double h = q * static_cast<double>(values.size() - 1);
-  const auto lo = static_cast<std::size_t>(std::floor(h));
-  const std::size_t hi = std::min(lo + 1, values.size() - 1);
-  return values[lo] + (h - static_cast<double>(lo)) * (values[hi] - values[lo]);
+  return quantile_of_sorted(values, q);
 }
 
 }  // namespace

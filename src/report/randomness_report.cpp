@@ -22,16 +22,6 @@ std::string species_text(const std::optional<std::string>& species) {
   return species ? *species : "(all)";
 }
 
-std::string file_safe(const std::string& text) {
-  std::string out;
-  for (const char c : text) {
-    const bool ok = (c >= 'a' && c <= 'z') || (c >= 'A' && c <= 'Z') || (c >= '0' && c <= '9') ||
-                    c == '-' || c == '_' || c == '.';
-    out += ok ? c : '_';
-  }
-  return out;
-}
-
 Json quadrat_json(const QuadratResult& q) {
   Json j;
   j["nx"] = q.nx;
@@ -296,13 +286,13 @@ std::vector<std::pair<std::string, std::string>> randomness_figures(const Random
     const EnvelopeResult* l = g.l_envelope();
     if (!l) continue;
     const std::string species = g.species.value_or("all-species");
-    add("L-" + file_safe(g.plot) + "-" + file_safe(species), g.plot + " - " + species_text(g.species),
+    add("L-" + file_name_safe(g.plot) + "-" + file_name_safe(species), g.plot + " - " + species_text(g.species),
         "L(r) (m)", *l,
         std::to_string(l->simulations) + " CSR simulations; MAD p = " + format_p_value(l->mad_p_value) +
             ", DCLF p = " + format_p_value(l->dclf_p_value) + "; verdict: " + g.verdict);
   }
   for (const auto& i : result.interactions) {
-    add("cross-L-" + file_safe(i.plot) + "-" + file_safe(i.species_a) + "-" + file_safe(i.species_b),
+    add("cross-L-" + file_name_safe(i.plot) + "-" + file_name_safe(i.species_a) + "-" + file_name_safe(i.species_b),
         i.plot + " - " + i.species_b + " around " + i.species_a, "cross-L(r) (m)", i.cross_l,
         std::to_string(i.cross_l.simulations) + " random labellings; p = " + format_p_value(i.p_value) +
             "; " + i.direction);

@@ -40,13 +40,6 @@ Json adjustments_json(const DetectionModel& m) {
 
 std::string label(const std::optional<std::string>& s, const char* all) { return s ? *s : all; }
 
-std::string file_safe(const std::string& text) {
-  std::string out;
-  for (const char c : text)
-    out += (std::isalnum(static_cast<unsigned char>(c)) || c == '-' || c == '_') ? c : '_';
-  return out;
-}
-
 }  // namespace
 
 const std::vector<std::string>& transect_cautions() {
@@ -260,7 +253,7 @@ std::vector<std::pair<std::string, std::string>> transect_figures(const LoadedTr
                         format_fixed(fit.detection_probability, 3) +
                         (gof.chi_square_p ? "; chi-square p = " + format_p_value(*gof.chi_square_p) : std::string());
     detection.series = {bars, curve};
-    const std::string stem = "detection-" + file_safe(name);
+    const std::string stem = "detection-" + file_name_safe(name);
     files.emplace_back(stem + ".svg", chart_svg(detection));
     files.emplace_back(stem + ".png", chart_png(detection));
 
@@ -283,8 +276,8 @@ std::vector<std::pair<std::string, std::string>> transect_figures(const LoadedTr
                                 format_p_value(gof.cvm_p.value_or(1.0))
                           : std::string();
     qq.series = {ChartSeries{ChartSeries::Kind::dashed_line, {0.0, 1.0}, {0.0, 1.0}, {}, 1, "1:1"}, points};
-    files.emplace_back("qq-" + file_safe(name) + ".svg", chart_svg(qq));
-    files.emplace_back("qq-" + file_safe(name) + ".png", chart_png(qq));
+    files.emplace_back("qq-" + file_name_safe(name) + ".svg", chart_svg(qq));
+    files.emplace_back("qq-" + file_name_safe(name) + ".png", chart_png(qq));
   }
   return files;
 }

@@ -10,6 +10,7 @@
 
 #include "stipple/error.hpp"
 #include "stipple/parallel.hpp"
+#include "stipple/quantile.hpp"
 
 namespace stipple {
 
@@ -331,14 +332,8 @@ TransectResult analyse_transects(const TransectSurvey& survey, const TransectOpt
       if (values.size() < 10) continue;
       std::sort(values.begin(), values.end());
       const double a = (1.0 - options.confidence) / 2.0;
-      const auto at = [&](double q) {
-        const double h = q * static_cast<double>(values.size() - 1);
-        const auto lo = static_cast<std::size_t>(std::floor(h));
-        const std::size_t hi = std::min(lo + 1, values.size() - 1);
-        return values[lo] + (h - static_cast<double>(lo)) * (values[hi] - values[lo]);
-      };
       auto& e = result.results[r];
-      e.bootstrap_ci = Interval{at(a), at(1.0 - a)};
+      e.bootstrap_ci = Interval{quantile_of_sorted(values, a), quantile_of_sorted(values, 1.0 - a)};
       const double mean = std::accumulate(values.begin(), values.end(), 0.0) / static_cast<double>(values.size());
       double ss = 0.0;
       for (const double v : values) ss += (v - mean) * (v - mean);

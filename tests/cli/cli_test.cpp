@@ -11,6 +11,7 @@
 namespace stipple {
 namespace {
 
+using test::expect_refused;
 using test::run_cli;
 using test::sample;
 using test::TempDir;
@@ -39,13 +40,6 @@ struct Fixture {
 };
 
 nlohmann::json parse(const std::string& text) { return nlohmann::json::parse(text); }
-
-void expect_refused(const test::RunResult& r, const std::string& message) {
-  EXPECT_EQ(r.exit_code, 2) << r.err;
-  EXPECT_NE(r.err.find(message), std::string::npos) << "stderr: " << r.err;
-  EXPECT_EQ(r.err.rfind("error: ", 0), 0u) << r.err;
-  EXPECT_EQ(std::count(r.err.begin(), r.err.end(), '\n'), 1) << "one line: " << r.err;
-}
 
 TEST(Cli, HelpAndVersion) {
   EXPECT_EQ(run_cli("--help").exit_code, 0);

@@ -11,6 +11,7 @@
 namespace stipple {
 namespace {
 
+using test::expect_refused;
 using test::run_cli;
 using test::sample;
 using test::TempDir;
@@ -113,11 +114,6 @@ TEST(RandomnessCli, TableShowsVerdictsAndCautions) {
   ASSERT_EQ(r.exit_code, 0) << r.err;
   EXPECT_NE(r.out.find("verdict"), std::string::npos);
   EXPECT_NE(r.out.find("Cautions"), std::string::npos);
-}
-
-void expect_refused(const test::RunResult& r, const std::string& message) {
-  EXPECT_EQ(r.exit_code, 2) << r.err;
-  EXPECT_NE(r.err.find(message), std::string::npos) << r.err;
 }
 
 TEST(RandomnessCliBadInput, BadOptions) {

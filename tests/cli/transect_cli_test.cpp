@@ -11,6 +11,7 @@
 namespace stipple {
 namespace {
 
+using test::expect_refused;
 using test::run_cli;
 using test::sample;
 using test::TempDir;
@@ -18,11 +19,6 @@ using test::TempDir;
 std::string demo(const std::string& extra) {
   return "transect " + sample("transects.gpkg") + " --lines " + sample("transects.gpkg") +
          " --distance-field distance --size-field size " + extra;
-}
-
-void expect_refused(const test::RunResult& r, const std::string& message) {
-  EXPECT_EQ(r.exit_code, 2) << r.err;
-  EXPECT_NE(r.err.find(message), std::string::npos) << "stderr: " << r.err;
 }
 
 TEST(TransectCli, DemoRecoversGeneratingDensity) {
