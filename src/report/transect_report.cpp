@@ -142,7 +142,7 @@ std::string transect_table(const LoadedTransects& input, const TransectResult& r
   out << "  truncation " << format_significant(result.truncation_m, 4) << " m (" << result.truncated
       << " detections beyond it); density per " << unit << "; "
       << format_general(100.0 * result.confidence) << "% log-normal intervals, Satterthwaite df\n\n";
-  TextTable table({"species", "stratum", "model", "n", lines ? "effort_km" : "visits", "n/L",
+  TextTable table({"species", "stratum", "model", "n", lines ? "effort_km" : "visits", lines ? "n/L" : "n/visit",
                    lines ? "ESW_m" : "rho_m", "P_a", "E(s)", "density", "CV", "interval", "abundance"},
                   3);
   for (const auto& e : result.results) {

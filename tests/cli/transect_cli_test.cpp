@@ -177,3 +177,33 @@ TEST(TransectCliBadInput, UnknownTransectAndBadOptions) {
 
 }  // namespace
 }  // namespace stipple
+
+namespace stipple {
+namespace {
+
+TEST(TransectCli, PointStationsCountVisits) {
+  // Point transects: effort is the number of visits; D = n E(s) / (k nu) (REFERENCES.md §8).
+  test::TempDir dir;
+  std::string stations;
+  for (int i = 0; i < 10; ++i)
+    stations += std::string(i ? "," : "") + "{\"type\":\"Feature\",\"properties\":{\"transect\":\"S" + std::to_string(i) +
+                "\",\"visits\":2},\"geometry\":{\"type\":\"Point\",\"coordinates\":[" + std::to_string(512000 + 200 * i) +
+                ",6290000]}}";
+  const auto stations_path = dir.write("stations.geojson", test::geojson_utm(stations));
+  std::string rows = "species,transect,distance\n";
+  for (int i = 0; i < 80; ++i)
+    rows += "wren,S" + std::to_string(i % 10) + "," + std::to_string(2 + (i * 37) % 45) + "\n";
+  const auto birds = dir.write("birds.csv", rows);
+  const auto r = test::run_cli("transect " + birds + " --stations " + stations_path +
+                               " --distance-field distance --unit ha --models half-normal --adjustments none --json -");
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  const auto doc = nlohmann::json::parse(r.out);
+  const auto& e = doc["results"][0];
+  EXPECT_EQ(doc["survey"], "point");
+  EXPECT_NEAR(e["effort"].get<double>(), 20.0, 1e-12);  // 10 stations x 2 visits
+  EXPECT_TRUE(e["esw"].is_null());
+  EXPECT_NEAR(e["density"].get<double>(), 80.0 / (20.0 * e["effective_area"].get<double>()) * 1e4, 1e-6);
+}
+
+}  // namespace
+}  // namespace stipple
