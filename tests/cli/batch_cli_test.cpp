@@ -249,3 +249,21 @@ TEST(BatchCli, SlurmArrayScriptShardsMergeToTheSingleRun) {
 
 }  // namespace
 }  // namespace stipple
+
+namespace stipple {
+namespace {
+
+TEST(BatchCli, ListFileInputs) {
+  test::TempDir dir;
+  const auto list = dir.write("inputs.txt", "# this season's plots\n" + test::sample("season/north.gpkg") + "\n\n" +
+                                                test::sample("season/burn.gpkg") + "\n");
+  const auto r = test::run_cli("batch " + list + " --out " + dir.file("o") + " --analyses density --quiet");
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  const std::string density = read(dir.file("o/density.csv"));
+  EXPECT_NE(density.find(",north,birch,81,"), std::string::npos) << density;
+  EXPECT_NE(density.find(",burn,birch,89,"), std::string::npos) << density;
+  EXPECT_EQ(density.find(",glade,"), std::string::npos);
+}
+
+}  // namespace
+}  // namespace stipple

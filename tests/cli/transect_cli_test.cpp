@@ -2,6 +2,7 @@
 
 #include <filesystem>
 #include <fstream>
+#include <map>
 
 #include <gtest/gtest.h>
 #include <nlohmann/json.hpp>
@@ -203,6 +204,41 @@ TEST(TransectCli, PointStationsCountVisits) {
   EXPECT_NEAR(e["effort"].get<double>(), 20.0, 1e-12);  // 10 stations x 2 visits
   EXPECT_TRUE(e["esw"].is_null());
   EXPECT_NEAR(e["density"].get<double>(), 80.0 / (20.0 * e["effective_area"].get<double>()) * 1e4, 1e-6);
+}
+
+}  // namespace
+}  // namespace stipple
+
+namespace stipple {
+namespace {
+
+TEST(TransectCli, StrataGetTheirOwnEncounterRates) {
+  test::TempDir dir;
+  std::string lines;
+  for (int i = 0; i < 6; ++i)
+    lines += std::string(i ? "," : "") + "{\"type\":\"Feature\",\"properties\":{\"transect\":\"L" + std::to_string(i) +
+             "\",\"habitat\":\"" + (i < 3 ? "heath" : "wood") + "\"},\"geometry\":{\"type\":\"LineString\",\"coordinates\":[[" +
+             std::to_string(512000 + 500 * i) + ",6290000],[" + std::to_string(512000 + 500 * i) + ",6291000]]}}";
+  const auto lines_path = dir.write("lines.geojson", test::geojson_utm(lines));
+  std::string rows = "species,transect,distance\n";
+  for (int i = 0; i < 90; ++i)
+    rows += "hare,L" + std::to_string(i % 6 < 3 ? i % 3 : 3 + i % 3) + "," + std::to_string((i * 13) % 50) + "\n";
+  for (int i = 0; i < 30; ++i) rows += "hare,L" + std::to_string(i % 3) + "," + std::to_string((i * 7) % 40) + "\n";
+  const auto path = dir.write("s.csv", rows);
+  const auto r = test::run_cli("transect " + path + " --lines " + lines_path + " --distance-field distance --stratum-field habitat "
+                               "--models half-normal --adjustments none --study-area 12 --json -");
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  const auto doc = nlohmann::json::parse(r.out);
+  std::map<std::string, nlohmann::json> by;
+  for (const auto& e : doc["results"])
+    if (e["species"] == "hare") by[e["stratum"].is_null() ? "(all)" : e["stratum"].get<std::string>()] = e;
+  ASSERT_EQ(by.size(), 3u);
+  EXPECT_NEAR(by["heath"]["effort"].get<double>(), 3.0, 1e-9);
+  EXPECT_EQ(by["heath"]["n"], 75);
+  EXPECT_EQ(by["wood"]["n"], 45);
+  EXPECT_GT(by["heath"]["density"].get<double>(), by["wood"]["density"].get<double>());
+  EXPECT_EQ(by["heath"]["esw"], by["wood"]["esw"]);  // one detection function per species
+  EXPECT_NEAR(by["(all)"]["abundance"].get<double>(), by["(all)"]["density"].get<double>() * 12.0, 1e-6);
 }
 
 }  // namespace
