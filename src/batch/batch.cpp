@@ -17,6 +17,7 @@
 #include "stipple/report/density_report.hpp"
 #include "stipple/report/figure.hpp"
 #include "stipple/report/randomness_report.hpp"
+#include "stipple/report/transect_report.hpp"
 
 namespace fs = std::filesystem;
 
@@ -98,10 +99,38 @@ BatchFileResult run_one(const BatchInput& input, const BatchOptions& options) {
   read.sightings = SourceSpec{input.path, options.read.sightings.layer};
   read.plots = SourceSpec{input.plots_path, options.read.plots ? options.read.plots->layer : std::nullopt};
   read.window = WindowMode::plots;
+  const std::string stem = stem_of(input.name);
+  if (options.run_transect) {
+    TransectReadOptions tr = options.transect_read;
+    tr.sightings = SourceSpec{input.path, options.transect_read.sightings.layer};
+    tr.lines = SourceSpec{input.path, options.transect_read.lines ? options.transect_read.lines->layer : std::nullopt};
+    const LoadedTransects loaded = load_transects(tr);
+    const TransectResult result = analyse_transects(loaded.survey, options.transect);
+    const Json doc = Json::parse(transect_json(loaded, result));
+    r.crs = loaded.crs.code;
+    for (const auto& e : doc["results"]) {
+      r.transect_records.push_back(with_file(input.name, e).dump());
+      const auto v = [](const Json& x) { return x.is_null() ? std::string() : number(x.get<double>()); };
+      std::ostringstream row;
+      row << csv_field(input.name) << "," << csv_field(e["species"].is_null() ? "" : e["species"].get<std::string>()) << ","
+          << csv_field(e["stratum"].is_null() ? "" : e["stratum"].get<std::string>()) << "," << e["model"].get<std::string>()
+          << "," << e["n"].get<std::size_t>() << "," << v(e["effort"]) << "," << v(e["esw"]) << "," << v(e["effective_area"])
+          << "," << v(e["detection_probability"]) << "," << v(e["encounter_rate"]) << "," << v(e["density"]) << ","
+          << v(e["density_cv"]) << "," << v(e["density_ci"][0]) << "," << v(e["density_ci"][1]) << "," << v(e["abundance"])
+          << "," << doc["unit"].get<std::string>();
+      r.transect_rows.push_back(row.str());
+    }
+    if (options.figures)
+      for (const auto& [file, content] : transect_figures(loaded, result))
+        if (file.size() > 4 && file.substr(file.size() - 4) == ".svg") r.figures.emplace_back("figures/" + stem + "/" + file, content);
+    if (!options.run_density && !options.run_randomness) {
+      r.ok = true;
+      return r;
+    }
+  }
   r.survey = load_survey(read);
   r.crs = r.survey.crs.code;
   r.warnings = r.survey.warnings;
-  const std::string stem = stem_of(input.name);
   if (options.run_density) {
     const DensityResult d = estimate_density(r.survey.survey, options.density);
     const Json doc = Json::parse(density_json(r.survey, d));
@@ -316,6 +345,11 @@ std::string density_table_header() {
          "corrected_ci_low,corrected_ci_high,unit";
 }
 
+std::string transect_table_header() {
+  return "file,species,stratum,model,n,effort,esw,effective_area,detection_probability,encounter_rate,density,"
+         "density_cv,density_ci_low,density_ci_high,abundance,unit";
+}
+
 std::string randomness_table_header() {
   return "file,plot,species,n,quadrat_p,clark_evans_ratio,clark_evans_p,mad_p,dclf_p,verdict";
 }
@@ -325,12 +359,15 @@ void write_batch_outputs(const std::string& out_dir, const std::vector<BatchFile
                          const std::vector<std::string>& protected_paths) {
   make_folder(out_dir);
   std::vector<std::string> density_rows, density_records, randomness_rows, randomness_records, failures;
+  std::vector<std::string> transect_rows, transect_records;
   Json inputs = Json::array();
   for (const auto& r : results) {
     density_rows.insert(density_rows.end(), r.density_rows.begin(), r.density_rows.end());
     density_records.insert(density_records.end(), r.density_records.begin(), r.density_records.end());
     randomness_rows.insert(randomness_rows.end(), r.randomness_rows.begin(), r.randomness_rows.end());
     randomness_records.insert(randomness_records.end(), r.randomness_records.begin(), r.randomness_records.end());
+    transect_rows.insert(transect_rows.end(), r.transect_rows.begin(), r.transect_rows.end());
+    transect_records.insert(transect_records.end(), r.transect_records.begin(), r.transect_records.end());
     if (!r.ok) failures.push_back(csv_field(r.input.name) + "," + csv_field(r.failure));
     Json in;
     in["name"] = r.input.name;
@@ -377,6 +414,10 @@ void write_batch_outputs(const std::string& out_dir, const std::vector<BatchFile
     write_lines((fs::path(out_dir) / "randomness.csv").string(), randomness_table_header(), randomness_rows, protected_paths);
     write_records((fs::path(out_dir) / "randomness.json").string(), randomness_records, protected_paths);
   }
+  if (options.run_transect) {
+    write_lines((fs::path(out_dir) / "transect.csv").string(), transect_table_header(), transect_rows, protected_paths);
+    write_records((fs::path(out_dir) / "transect.json").string(), transect_records, protected_paths);
+  }
   write_lines((fs::path(out_dir) / "failures.csv").string(), "file,reason", failures, protected_paths);
   Json run;
   run["stipple_version"] = STIPPLE_VERSION;
@@ -384,6 +425,7 @@ void write_batch_outputs(const std::string& out_dir, const std::vector<BatchFile
   run["analyses"] = Json::array();
   if (options.run_density) run["analyses"].push_back("density");
   if (options.run_randomness) run["analyses"].push_back("randomness");
+  if (options.run_transect) run["analyses"].push_back("transect");
   run["seed"] = options.randomness.seed;
   run["simulations"] = options.randomness.simulations;
   run["unit"] = std::string(unit_name(options.density.unit));
@@ -397,7 +439,7 @@ void merge_batch_outputs(const std::vector<std::string>& shard_dirs, const std::
   make_folder(out_dir);
   std::vector<std::string> protect = shard_dirs;
   // Tables: rows of all shards, stably ordered by input name (the first column).
-  for (const char* table : {"density.csv", "randomness.csv", "failures.csv"}) {
+  for (const char* table : {"density.csv", "randomness.csv", "transect.csv", "failures.csv"}) {
     std::string header;
     std::vector<std::string> rows;
     bool present = false;
@@ -418,7 +460,7 @@ void merge_batch_outputs(const std::vector<std::string>& shard_dirs, const std::
     });
     write_lines((fs::path(out_dir) / table).string(), header, rows, protect);
   }
-  for (const char* twin : {"density.json", "randomness.json"}) {
+  for (const char* twin : {"density.json", "randomness.json", "transect.json"}) {
     std::vector<Json> records;
     bool present = false;
     for (const auto& dir : shard_dirs) {

@@ -43,6 +43,10 @@ struct BatchCommandOptions {
   double rmax = 0.0;
   bool gis = false;
   bool surfaces = false;
+  std::string distance_field;
+  std::string size_field;
+  std::string transect_field = "transect";
+  std::string truncate;
   double pixel = 0.0;
   double bandwidth = 0.0;
 };
@@ -127,7 +131,8 @@ int run_batch_command(BatchCommandOptions& o, CLI::App& command) {
   for (const auto& a : o.analyses) {
     if (a == "density") options.run_density = true;
     else if (a == "randomness") options.run_randomness = true;
-    else throw InputError("--analyses takes density, randomness (got '" + a + "')");
+    else if (a == "transect") options.run_transect = true;
+    else throw InputError("--analyses takes density, randomness, transect (got '" + a + "')");
   }
   options.density.unit = parse_area_unit(o.common.unit);
   options.density.confidence = o.common.confidence;
@@ -144,6 +149,20 @@ int run_batch_command(BatchCommandOptions& o, CLI::App& command) {
   if (!o.edge_correction.empty()) options.randomness.edge_correction = parse_edge_correction(o.edge_correction);
   if (o.rmax > 0.0) options.randomness.rmax_m = o.rmax;
   options.threads = o.threads;
+  if (options.run_transect) {
+    options.transect_read.transect_field = o.transect_field;
+    options.transect_read.species_field = o.common.species_field;
+    if (!o.distance_field.empty()) options.transect_read.distance_field = o.distance_field;
+    if (!o.size_field.empty()) options.transect_read.size_field = o.size_field;
+    if (!o.common.assume_crs.empty()) options.transect_read.assume_crs = o.common.assume_crs;
+    if (!o.common.crs.empty()) options.transect_read.target_crs = o.common.crs;
+    options.transect.confidence = o.common.confidence;
+    if (command.get_option("--unit")->count() > 0) options.transect.unit = parse_area_unit(o.common.unit);
+    if (!o.truncate.empty()) {
+      if (o.truncate.back() == '%') options.transect.truncation.largest_share = std::stod(o.truncate) / 100.0;
+      else options.transect.truncation.distance_m = std::stod(o.truncate);
+    }
+  }
   options.gis = o.gis;
   options.surfaces = o.surfaces;
   if (o.pixel < 0.0 || o.bandwidth < 0.0) throw InputError("--pixel and --bandwidth must be positive");
@@ -228,7 +247,13 @@ Action add_batch_command(CLI::App& app) {
   c->add_option("--pattern", o->pattern, "File-name pattern of the inputs (* and ?)")->capture_default_str();
   c->add_option("--plots-name", o->plots_name,
                 "Plots file beside each input, {*} = what the pattern's * matched (default: the input itself)");
-  c->add_option("--analyses", o->analyses, "density, randomness")->delimiter(',')->capture_default_str();
+  c->add_option("--analyses", o->analyses, "density, randomness, transect (inputs holding transect lines)")
+      ->delimiter(',')
+      ->capture_default_str();
+  c->add_option("--distance-field", o->distance_field, "transect: recorded distance field (else from locations)");
+  c->add_option("--size-field", o->size_field, "transect: cluster size field");
+  c->add_option("--transect-field", o->transect_field, "transect: transect id field")->capture_default_str();
+  c->add_option("--truncate", o->truncate, "transect: truncation distance (m) or percentage (5%)");
   c->add_option("--shard", o->shard_text, "Process only the K-th of N deterministic slices, K/N");
   c->add_option("--threads", o->threads, "Files processed in parallel (0 = all cores)")->capture_default_str();
   c->add_flag("--quiet", o->quiet, "No progress output");

@@ -13,6 +13,7 @@
 #include "stipple/format.hpp"
 #include "stipple/report/density_report.hpp"
 #include "stipple/report/randomness_report.hpp"
+#include "stipple/report/transect_report.hpp"
 
 namespace fs = std::filesystem;
 
@@ -74,6 +75,7 @@ std::string batch_report_html(const std::string& out_dir) {
   if (!run) throw InputError(out_dir + ": no run.json; is this a stipple batch output folder?");
   const auto density = read_json(dir / "density.json");
   const auto randomness = read_json(dir / "randomness.json");
+  const auto transect = read_json(dir / "transect.json");
   std::ostringstream h;
   h << "<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\"><title>stipple report</title>\n"
        "<style>body{font-family:'DejaVu Sans',sans-serif;margin:2em auto;max-width:1100px;color:#222;line-height:1.4}"
@@ -118,6 +120,11 @@ std::string batch_report_html(const std::string& out_dir) {
          "(maximum absolute deviation and Diggle-Cressie-Loosmore-Ford tests, Loosmore &amp; Ford 2006; extreme "
          "rank length envelope, Myllym&auml;ki et al. 2017), with p = (1 + #more extreme)/(N + 1) (Hope 1968). "
          "Pairs of species were tested by random labelling of cross-L (Diggle 2003). ";
+  if (analyses.count("transect"))
+    h << "Density from line transects was estimated by distance sampling (Buckland et al. 2001): half-normal, "
+         "hazard-rate (Hayes &amp; Buckland 1983) and uniform detection functions with adjustment terms, fitted by "
+         "maximum likelihood and chosen by AIC; encounter-rate variance by estimator R2 of Fewster et al. (2009); "
+         "log-normal intervals with Satterthwaite degrees of freedom. ";
   h << "Every simulation's seed derives from seed " << (*run)["seed"]
     << " and the plot and species, so each number above can be reproduced with the same version and options.</p>\n";
 
@@ -151,26 +158,46 @@ std::string batch_report_html(const std::string& out_dir) {
     }
     h << "</table>\n";
   }
-  const auto section = [&](const char* sub, const char* title, const char* intro) {
+  if (transect) {
+    h << "<h2>Transect densities</h2>\n<table><tr><th>file</th><th>species</th><th>stratum</th><th>model</th><th>n</th>"
+         "<th>effort</th><th>ESW (m)</th><th>P_a</th><th>density</th><th>CV</th><th>interval</th><th>GOF chi2 p</th></tr>\n";
+    for (const auto& e : *transect) {
+      h << "<tr><td class=t>" << cell(e["file"]) << "</td><td class=t>"
+        << (e["species"].is_null() ? std::string("(all)") : cell(e["species"])) << "</td><td class=t>"
+        << (e["stratum"].is_null() ? std::string("(all)") : cell(e["stratum"])) << "</td><td class=t>" << cell(e["model"])
+        << "</td><td>" << cell(e["n"]) << "</td><td>" << cell(e["effort"]) << "</td><td>" << cell(e["esw"]) << "</td><td>"
+        << cell(e["detection_probability"], 3) << "</td><td>" << cell(e["density"]) << "</td><td>" << cell(e["density_cv"], 3)
+        << "</td><td>[" << cell(e["density_ci"][0]) << ", " << cell(e["density_ci"][1]) << "]</td><td>"
+        << p_cell(e["gof"]["chi_square_p"]) << "</td></tr>\n";
+    }
+    h << "</table>\n";
+  }
+  const auto section = [&](const char* sub, const char* prefix, const char* title, const char* intro) {
     std::error_code ec;
     const fs::path root = dir / sub;
     if (!fs::is_directory(root, ec)) return;
     std::vector<fs::path> files;
     for (auto it = fs::recursive_directory_iterator(root, ec); it != fs::recursive_directory_iterator(); ++it)
-      if (it->is_regular_file(ec) && it->path().extension() == ".svg") files.push_back(it->path());
+      if (it->is_regular_file(ec) && it->path().extension() == ".svg" &&
+          it->path().filename().string().rfind(prefix, 0) == 0)
+        files.push_back(it->path());
     std::sort(files.begin(), files.end());
     if (files.empty()) return;
     h << "<h2>" << title << "</h2>\n<p>" << intro << "</p>\n<div class=figs>\n";
     for (const auto& f : files) h << svg_inline(f) << "\n";
     h << "</div>\n";
   };
-  section("maps", "Plot maps",
+  section("maps", "", "Plot maps",
           "Each plot's window (holes excluded) with its sightings; species differ in both colour and marker shape.");
-  section("figures", "L-function envelopes",
+  section("figures", "detection-", "Detection functions",
+          "Distance histograms scaled to the fitted detection function g(x).");
+  section("figures", "L-", "L-function envelopes",
           "Observed L(r) (blue) against CSR (dashed) with pointwise and global envelopes; above the envelope = clustered, below = regular.");
   h << "<h2>Assumptions and cautions</h2>\n<div class=caution><ul>\n";
   for (const auto& c : density_cautions()) h << "<li>" << escape(c) << "</li>\n";
   for (const auto& c : randomness_cautions()) h << "<li>" << escape(c) << "</li>\n";
+  if (transect)
+    for (const auto& c : transect_cautions()) h << "<li>" << escape(c) << "</li>\n";
   h << "</ul></div>\n<h2>References</h2>\n<p>Baddeley &amp; Gill (1997) Ann. Statist. 25:263-292. Clark &amp; Evans (1954) Ecology "
        "35:445-453. Diggle (2003) Statistical Analysis of Spatial Point Patterns. Donnelly (1978) in Simulation Methods in "
        "Archaeology. Garwood (1936) Biometrika 28:437-442. Hope (1968) JRSS B 30:582-598. Kingman (1993) Poisson Processes. "

@@ -267,3 +267,30 @@ TEST(BatchCli, ListFileInputs) {
 
 }  // namespace
 }  // namespace stipple
+
+namespace stipple {
+namespace {
+
+TEST(BatchCli, TransectAnalysisEqualsTheSingleCommand) {
+  test::TempDir dir;
+  const auto r = test::run_cli("batch " + std::string(STIPPLE_SAMPLE_DIR) + " --pattern transects.gpkg --analyses transect "
+                               "--distance-field distance --size-field size --report --quiet --out " + dir.file("o"));
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  const auto single = nlohmann::json::parse(
+      test::run_cli("transect " + test::sample("transects.gpkg") + " --lines " + test::sample("transects.gpkg") +
+                    " --distance-field distance --size-field size --json -").out);
+  const auto records = nlohmann::json::parse(read(dir.file("o/transect.json")));
+  ASSERT_EQ(records.size(), single["results"].size());
+  for (std::size_t i = 0; i < records.size(); ++i) {
+    auto rec = records[i];
+    EXPECT_EQ(rec["file"], "transects.gpkg");
+    rec.erase("file");
+    EXPECT_EQ(rec, single["results"][i]) << i;
+  }
+  const std::string html = read(dir.file("o/report.html"));
+  EXPECT_NE(html.find("Transect densities"), std::string::npos);
+  EXPECT_NE(html.find("Detection functions"), std::string::npos);
+}
+
+}  // namespace
+}  // namespace stipple

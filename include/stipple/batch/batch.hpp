@@ -11,6 +11,8 @@
 #include "stipple/intensity/kernel.hpp"
 #include "stipple/io/gis_writer.hpp"
 #include "stipple/io/reader.hpp"
+#include "stipple/io/transect_reader.hpp"
+#include "stipple/transect/estimate.hpp"
 #include "stipple/randomness/analysis.hpp"
 
 namespace stipple {
@@ -40,6 +42,9 @@ struct BatchOptions {
   SurveyReadOptions read;          ///< field names, CRS options; paths are set per input
   bool run_density = true;
   bool run_randomness = true;
+  bool run_transect = false;       ///< each input also holds transect lines and their sightings
+  TransectReadOptions transect_read;  ///< field names; paths are set per input
+  TransectOptions transect;
   DensityOptions density;
   RandomnessOptions randomness;    ///< threads are forced to 1 inside a file
   unsigned threads = 0;            ///< files in parallel (0 = all cores)
@@ -59,6 +64,8 @@ struct BatchFileResult {
   std::vector<std::string> density_records;     ///< JSON objects, as in `stipple density --json`
   std::vector<std::string> randomness_rows;
   std::vector<std::string> randomness_records;  ///< JSON objects, as in `stipple randomness --json`
+  std::vector<std::string> transect_rows;
+  std::vector<std::string> transect_records;    ///< JSON objects, as in `stipple transect --json`
   std::vector<std::pair<std::string, std::string>> figures;  ///< (relative path, SVG)
   std::string crs;
   std::vector<std::string> warnings;
@@ -79,6 +86,7 @@ using BatchProgress = std::function<void(std::size_t, std::size_t, const BatchFi
 /// Column headers of the batch tables.
 [[nodiscard]] std::string density_table_header();
 [[nodiscard]] std::string randomness_table_header();
+[[nodiscard]] std::string transect_table_header();
 
 /// Writes OUT/density.csv|json, OUT/randomness.csv|json, OUT/failures.csv, OUT/run.json,
 /// OUT/figures/*.svg, through temporary files, never over an input.
