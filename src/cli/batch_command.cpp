@@ -158,10 +158,7 @@ int run_batch_command(BatchCommandOptions& o, CLI::App& command) {
     if (!o.common.crs.empty()) options.transect_read.target_crs = o.common.crs;
     options.transect.confidence = o.common.confidence;
     if (command.get_option("--unit")->count() > 0) options.transect.unit = parse_area_unit(o.common.unit);
-    if (!o.truncate.empty()) {
-      if (o.truncate.back() == '%') options.transect.truncation.largest_share = std::stod(o.truncate) / 100.0;
-      else options.transect.truncation.distance_m = std::stod(o.truncate);
-    }
+    options.transect.truncation = parse_truncation(o.truncate);
   }
   options.gis = o.gis;
   options.surfaces = o.surfaces;
@@ -208,8 +205,6 @@ int run_batch_command(BatchCommandOptions& o, CLI::App& command) {
     std::cerr << "stipple batch: " << inputs.size() << " of " << all_inputs << " input(s)"
               << (o.shard_text.empty() ? "" : " (shard " + o.shard_text + ")") << "\n";
   const std::vector<BatchFileResult> results = run_batch(inputs, options, progress);
-  std::ostringstream options_text;
-  for (const auto& arg : command.remaining_for_passthrough()) options_text << arg << " ";
   std::string used = "analyses=";
   for (const auto& a : o.analyses) used += a + ",";
   used += " unit=" + o.common.unit + " confidence=" + format_general(o.common.confidence) +

@@ -55,26 +55,6 @@ std::optional<double> parse_number(const std::string& text) {
   return value;
 }
 
-Truncation parse_truncation(const std::string& text) {
-  Truncation t;
-  if (text.empty()) return t;
-  if (text.back() == '%') {
-    const auto share = parse_number(text.substr(0, text.size() - 1));
-    if (!share || !(*share >= 0.0 && *share < 100.0))
-      throw InputError("--truncate " + text + ": a percentage must lie in [0, 100)");
-    t.largest_share = *share / 100.0;
-    return t;
-  }
-  if (text == "none") {
-    t.distance_m = std::numeric_limits<double>::infinity();
-    return t;
-  }
-  const auto w = parse_number(text);
-  if (!w || !(*w > 0.0)) throw InputError("--truncate " + text + ": give a distance in metres, a percentage like 5%, or none");
-  t.distance_m = *w;
-  return t;
-}
-
 int run_transect(const TransectCommandOptions& o) {
   TransectReadOptions read;
   read.sightings = SourceSpec{o.common.sightings, opt(o.common.layer)};

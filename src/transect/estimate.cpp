@@ -1,6 +1,7 @@
 #include "stipple/transect/estimate.hpp"
 
 #include <algorithm>
+#include <charconv>
 #include <cmath>
 #include <numeric>
 #include <set>
@@ -115,6 +116,37 @@ double choose_truncation(const TransectSurvey& survey, const TransectOptions& op
 }
 
 }  // namespace
+
+namespace {
+
+std::optional<double> parse_double(const std::string& text) {
+  double value = 0.0;
+  const auto r = std::from_chars(text.data(), text.data() + text.size(), value);
+  if (r.ec != std::errc() || r.ptr != text.data() + text.size()) return std::nullopt;
+  return value;
+}
+
+}  // namespace
+
+Truncation parse_truncation(const std::string& text) {
+  Truncation t;
+  if (text.empty()) return t;
+  if (text.back() == '%') {
+    const auto share = parse_double(text.substr(0, text.size() - 1));
+    if (!share || !(*share >= 0.0 && *share < 100.0))
+      throw InputError("--truncate " + text + ": a percentage must lie in [0, 100)");
+    t.largest_share = *share / 100.0;
+    return t;
+  }
+  if (text == "none") {
+    t.distance_m = std::numeric_limits<double>::infinity();
+    return t;
+  }
+  const auto w = parse_double(text);
+  if (!w || !(*w > 0.0)) throw InputError("--truncate " + text + ": give a distance in metres, a percentage like 5%, or none");
+  t.distance_m = *w;
+  return t;
+}
 
 EncounterRate encounter_rate(const std::vector<double>& effort, const std::vector<double>& counts) {
   EncounterRate e;

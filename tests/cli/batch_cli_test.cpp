@@ -212,6 +212,10 @@ TEST(BatchCli, ShapefilePairsAndBadInputs) {
   EXPECT_EQ(run_cli(batch(sample("season"), out.file("x"), "--shard 4/3")).exit_code, 2);
   EXPECT_EQ(run_cli(batch(sample("season"), out.file("x"), "--pattern '*.nothing'")).exit_code, 2);
   EXPECT_EQ(run_cli(batch("/no/such/folder", out.file("x"))).exit_code, 2);
+  test::expect_refused(run_cli(batch(sample("season"), out.file("x"), "--analyses transect --truncate abc")),
+                       "--truncate abc: give a distance in metres");
+  test::expect_refused(run_cli(batch(sample("season"), out.file("x"), "--analyses counts")),
+                       "--analyses takes density, randomness, transect");
   const auto over = run_cli(batch(sample("season"), sample("season")));
   EXPECT_EQ(over.exit_code, 2);
   EXPECT_NE(over.err.find("the output folder holds inputs"), std::string::npos) << over.err;

@@ -69,6 +69,10 @@ struct Truncation {
   std::optional<double> largest_share;
 };
 
+/// Parses --truncate: a distance in metres, a percentage of the largest distances ("5%"),
+/// or "none" (infinite). Throws InputError otherwise.
+[[nodiscard]] Truncation parse_truncation(const std::string& text);
+
 struct TransectOptions {
   std::vector<KeyFunction> keys{KeyFunction::half_normal, KeyFunction::hazard_rate, KeyFunction::uniform};
   std::vector<Adjustment> adjustments{Adjustment::cosine};
