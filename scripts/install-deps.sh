@@ -1,6 +1,6 @@
 #!/usr/bin/env bash
 # Installs everything stipple needs to build, test and regenerate its demo data, from
-# Debian's packages (Debian 12 / Ubuntu 22.04 or later). Run as root or with sudo.
+# Debian's packages (Debian 12 bookworm or later). Run as root or with sudo.
 set -euo pipefail
 packages=(
   build-essential cmake            # compiler and build system
