@@ -64,8 +64,16 @@ double Window::boundary_distance(const Point& p) const {
 
 double Window::circle_fraction_inside(const Point& c, double r) const {
   constexpr double two_pi = 6.283185307179586;
+  constexpr double pi = 3.141592653589793;
   if (!(r > 0.0)) return contains_almost_surely(c) ? 1.0 : 0.0;
-  std::vector<double> angles;
+  // Crossings of the circle with every edge: angle and unit direction from the centre.
+  struct Crossing {
+    double angle;
+    double ux;
+    double uy;
+  };
+  std::vector<Crossing> crossings;
+  crossings.reserve(8);
   for (const auto& e : edges_) {
     // |a + t (b - a) - c|^2 = r^2, t in [0, 1]
     const double dx = e.b.x - e.a.x;
@@ -81,22 +89,37 @@ double Window::circle_fraction_inside(const Point& c, double r) const {
     const double root = std::sqrt(disc);
     for (const double t : {(-qb - root) / (2.0 * qa), (-qb + root) / (2.0 * qa)}) {
       if (t < 0.0 || t > 1.0) continue;
-      double angle = std::atan2(fy + t * dy, fx + t * dx);
+      const double ux = (fx + t * dx) / r;
+      const double uy = (fy + t * dy) / r;
+      double angle = std::atan2(uy, ux);
       if (angle < 0.0) angle += two_pi;
-      angles.push_back(angle);
+      crossings.push_back({angle, ux, uy});
     }
   }
-  const auto on_circle = [&](double angle) {
-    return Point{c.x + r * std::cos(angle), c.y + r * std::sin(angle)};
-  };
-  if (angles.empty()) return contains_almost_surely(on_circle(0.0)) ? 1.0 : 0.0;
-  std::sort(angles.begin(), angles.end());
-  angles.push_back(angles.front() + two_pi);
+  if (crossings.empty()) return contains_almost_surely({c.x + r, c.y}) ? 1.0 : 0.0;
+  std::sort(crossings.begin(), crossings.end(),
+            [](const Crossing& a, const Crossing& b) { return a.angle < b.angle; });
   double inside = 0.0;
-  for (std::size_t k = 0; k + 1 < angles.size(); ++k) {
-    const double arc = angles[k + 1] - angles[k];
+  const std::size_t m = crossings.size();
+  for (std::size_t k = 0; k < m; ++k) {
+    const Crossing& from = crossings[k];
+    const Crossing& to = crossings[(k + 1) % m];
+    const double arc = k + 1 < m ? to.angle - from.angle : to.angle + two_pi - from.angle;
     if (arc <= 1e-12) continue;
-    if (contains_almost_surely(on_circle(angles[k] + arc / 2.0))) inside += arc;
+    // The arc's midpoint without trigonometry: the bisector of its end directions
+    // (reversed for arcs over a half turn; a quarter turn on from `from` at exactly pi).
+    double mx = from.ux + to.ux;
+    double my = from.uy + to.uy;
+    double norm = std::sqrt(mx * mx + my * my);
+    if (norm < 1e-9 || std::abs(arc - pi) < 1e-9) {
+      mx = -from.uy;
+      my = from.ux;
+      norm = 1.0;
+    } else if (arc > pi) {
+      mx = -mx;
+      my = -my;
+    }
+    if (contains_almost_surely({c.x + r * mx / norm, c.y + r * my / norm})) inside += arc;
   }
   return inside / two_pi;
 }
