@@ -16,6 +16,7 @@
 #include "stipple/error.hpp"
 #include "stipple/format.hpp"
 #include "stipple/io/output.hpp"
+#include "stipple/randomness/quadrat.hpp"
 #include "stipple/report/batch_report.hpp"
 
 namespace stipple::cli {
@@ -106,16 +107,6 @@ void apply_run_file(BatchCommandOptions& o, CLI::App& command) {
   real(file["randomness"]["rmax"], o.rmax, "--rmax");
 }
 
-std::pair<std::size_t, std::size_t> grid(const std::string& text) {
-  const auto x = text.find_first_of("xX");
-  try {
-    if (x == std::string::npos) throw std::invalid_argument(text);
-    return {std::stoul(text.substr(0, x)), std::stoul(text.substr(x + 1))};
-  } catch (const std::exception&) {
-    throw InputError("--quadrats must look like 4x4 (got '" + text + "')");
-  }
-}
-
 std::string clock_text(double seconds) {
   const auto s = static_cast<long>(seconds + 0.5);
   std::ostringstream out;
@@ -145,7 +136,7 @@ int run_batch_command(BatchCommandOptions& o, CLI::App& command) {
   options.randomness.simulations = o.simulations;
   options.randomness.seed = o.seed;
   options.randomness.alpha = alpha_from_confidence(o.common.confidence);
-  std::tie(options.randomness.quadrat.nx, options.randomness.quadrat.ny) = grid(o.quadrats);
+  std::tie(options.randomness.quadrat.nx, options.randomness.quadrat.ny) = parse_quadrat_grid(o.quadrats);
   if (!o.edge_correction.empty()) options.randomness.edge_correction = parse_edge_correction(o.edge_correction);
   if (o.rmax > 0.0) options.randomness.rmax_m = o.rmax;
   options.threads = o.threads;

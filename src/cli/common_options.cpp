@@ -1,5 +1,6 @@
 #include "common_options.hpp"
 
+#include <filesystem>
 #include <iostream>
 
 #include "stipple/io/output.hpp"
@@ -93,6 +94,13 @@ void write_output(const std::string& path, const std::string& content,
     return;
   }
   write_file_safely(path, content, inputs);
+}
+
+void write_folder(const std::string& folder, const std::vector<std::pair<std::string, std::string>>& files,
+                  const std::vector<std::string>& inputs) {
+  make_folder(folder);
+  for (const auto& [name, content] : files)
+    write_file_safely((std::filesystem::path(folder) / name).string(), content, inputs);
 }
 
 }  // namespace stipple::cli

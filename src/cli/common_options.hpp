@@ -3,6 +3,7 @@
 
 #include <optional>
 #include <string>
+#include <utility>
 #include <vector>
 
 #include <CLI/CLI.hpp>
@@ -48,6 +49,10 @@ void add_output_options(CLI::App& command, CommonOptions& options);
 
 /// Writes `content` to `path` ("-" = standard output) safely.
 void write_output(const std::string& path, const std::string& content,
+                  const std::vector<std::string>& inputs);
+
+/// Writes (file name, content) pairs into `folder`, creating it, safely.
+void write_folder(const std::string& folder, const std::vector<std::pair<std::string, std::string>>& files,
                   const std::vector<std::string>& inputs);
 
 }  // namespace stipple::cli

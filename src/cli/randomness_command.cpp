@@ -32,28 +32,9 @@ struct RandomnessCommandOptions {
   std::string distance_correction = "kaplan-meier";
 };
 
-std::pair<std::size_t, std::size_t> parse_grid(const std::string& text) {
-  const auto x = text.find_first_of("xX");
-  std::size_t nx = 0;
-  std::size_t ny = 0;
-  try {
-    if (x == std::string::npos) throw std::invalid_argument(text);
-    std::size_t used = 0;
-    nx = std::stoul(text.substr(0, x), &used);
-    if (used != x) throw std::invalid_argument(text);
-    ny = std::stoul(text.substr(x + 1), &used);
-    if (used != text.size() - x - 1) throw std::invalid_argument(text);
-  } catch (const std::exception&) {
-    throw InputError("--quadrats must look like 4x4 (got '" + text + "')");
-  }
-  if (nx < 1 || ny < 1 || nx * ny < 2 || nx * ny > 10000)
-    throw InputError("--quadrats needs between 2 and 10000 cells (got '" + text + "')");
-  return {nx, ny};
-}
-
 int run_randomness(const RandomnessCommandOptions& o) {
   RandomnessOptions options;
-  std::tie(options.quadrat.nx, options.quadrat.ny) = parse_grid(o.quadrats);
+  std::tie(options.quadrat.nx, options.quadrat.ny) = parse_quadrat_grid(o.quadrats);
   options.quadrat.force_monte_carlo = o.quadrat_monte_carlo;
   if (!o.edge_correction.empty()) options.edge_correction = parse_edge_correction(o.edge_correction);
   options.pair_correction =
@@ -87,13 +68,7 @@ int run_randomness(const RandomnessCommandOptions& o) {
   if (!o.common.json.empty()) write_output(o.common.json, randomness_json(survey, result), inputs);
   if (!o.curves.empty()) write_output(o.curves, randomness_curves_csv(result), inputs);
   if (!o.common.csv.empty()) write_output(o.common.csv, randomness_curves_csv(result), inputs);
-  if (!o.figures.empty()) {
-    std::error_code ec;
-    std::filesystem::create_directories(o.figures, ec);
-    if (ec) throw InputError(o.figures + ": cannot create folder (" + ec.message() + ")");
-    for (const auto& [name, content] : randomness_figures(result))
-      write_output((std::filesystem::path(o.figures) / name).string(), content, inputs);
-  }
+  if (!o.figures.empty()) write_folder(o.figures, randomness_figures(result), inputs);
   if (!stdout_taken) {
     std::cout << randomness_table(survey, result);
   } else {

@@ -123,13 +123,7 @@ int run_transect(const TransectCommandOptions& o) {
   const bool stdout_taken = o.common.json == "-" || o.common.csv == "-";
   if (!o.common.json.empty()) write_output(o.common.json, transect_json(input, result), inputs);
   if (!o.common.csv.empty()) write_output(o.common.csv, transect_csv(result), inputs);
-  if (!o.figures.empty()) {
-    std::error_code ec;
-    std::filesystem::create_directories(o.figures, ec);
-    if (ec) throw InputError(o.figures + ": cannot create folder (" + ec.message() + ")");
-    for (const auto& [name, content] : transect_figures(input, result))
-      write_output((std::filesystem::path(o.figures) / name).string(), content, inputs);
-  }
+  if (!o.figures.empty()) write_folder(o.figures, transect_figures(input, result), inputs);
   if (!stdout_taken) std::cout << transect_table(input, result);
   return 0;
 }

@@ -12,6 +12,25 @@ namespace bg = boost::geometry;
 
 namespace stipple {
 
+std::pair<std::size_t, std::size_t> parse_quadrat_grid(const std::string& text) {
+  const auto x = text.find_first_of("xX");
+  std::size_t nx = 0;
+  std::size_t ny = 0;
+  try {
+    if (x == std::string::npos) throw std::invalid_argument(text);
+    std::size_t used = 0;
+    nx = std::stoul(text.substr(0, x), &used);
+    if (used != x) throw std::invalid_argument(text);
+    ny = std::stoul(text.substr(x + 1), &used);
+    if (used != text.size() - x - 1) throw std::invalid_argument(text);
+  } catch (const std::exception&) {
+    throw InputError("--quadrats must look like 4x4 (got '" + text + "')");
+  }
+  if (nx < 1 || ny < 1 || nx * ny < 2 || nx * ny > 10000)
+    throw InputError("--quadrats needs between 2 and 10000 cells (got '" + text + "')");
+  return {nx, ny};
+}
+
 QuadratResult quadrat_test(const std::vector<Point>& points, const Window& window,
                            const QuadratOptions& options, Engine& engine) {
   if (options.nx < 1 || options.ny < 1 || options.nx * options.ny < 2)

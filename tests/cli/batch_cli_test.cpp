@@ -214,6 +214,8 @@ TEST(BatchCli, ShapefilePairsAndBadInputs) {
   EXPECT_EQ(run_cli(batch("/no/such/folder", out.file("x"))).exit_code, 2);
   test::expect_refused(run_cli(batch(sample("season"), out.file("x"), "--analyses transect --truncate abc")),
                        "--truncate abc: give a distance in metres");
+  test::expect_refused(run_cli(batch(sample("season"), out.file("x"), "--quadrats 0x4")),
+                       "--quadrats needs between 2 and 10000 cells");
   test::expect_refused(run_cli(batch(sample("season"), out.file("x"), "--analyses counts")),
                        "--analyses takes density, randomness, transect");
   const auto over = run_cli(batch(sample("season"), sample("season")));

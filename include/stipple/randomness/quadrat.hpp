@@ -4,6 +4,8 @@
 #include <cstddef>
 #include <cstdint>
 #include <optional>
+#include <string>
+#include <utility>
 #include <vector>
 
 #include "stipple/geometry/point.hpp"
@@ -32,6 +34,9 @@ struct QuadratResult {
   std::optional<double> dispersion_index;      ///< variance / mean, when all cells have equal area
   bool cells_too_small = false;           ///< some expected count below 5
 };
+
+/// Parses a quadrat grid "NxM" (2 to 10000 cells); throws InputError naming --quadrats.
+[[nodiscard]] std::pair<std::size_t, std::size_t> parse_quadrat_grid(const std::string& text);
 
 /// Counts points in an nx x ny grid over the window's bounding box, each cell clipped to
 /// the window, against expectations proportional to clipped area; Pearson X2 with
