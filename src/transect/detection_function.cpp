@@ -278,7 +278,171 @@ double DetectionFunction::effective_area() const {
   return integral(0.0, truncation_m_, TransectKind::point);
 }
 
-DetectionFit fit_detection_function(const DistanceData& data, const DetectionModel& model) {
+namespace {
+
+struct Bounds {
+  std::vector<double> lower;
+  std::vector<double> upper;
+};
+
+struct Optimum {
+  std::vector<double> theta;
+  double value = std::numeric_limits<double>::infinity();  ///< -log L; 1e300 when infeasible
+  bool converged = false;
+};
+
+// Working-scale box for the model's parameters around the data's scale s0.
+Bounds parameter_bounds(const DetectionModel& m, double s0) {
+  Bounds b;
+  if (m.key != KeyFunction::uniform) {
+    b.lower.push_back(std::log(s0) - 8.0);
+    b.upper.push_back(std::log(s0) + 8.0);
+  }
+  if (m.key == KeyFunction::hazard_rate) {
+    // Shape b >= 1: below it g falls in a spike at x = 0 and the untruncated strip width
+    // is infinite; small samples otherwise wander there (common practice, no source).
+    b.lower.push_back(0.0);
+    b.upper.push_back(std::log(60.0));
+  }
+  for (std::size_t j = 0; j < m.terms; ++j) {
+    b.lower.push_back(-10.0);
+    b.upper.push_back(10.0);
+  }
+  return b;
+}
+
+// One run of an NLopt algorithm from `theta`; a round-off stop keeps the point reached.
+Optimum run_optimiser(nlopt::opt& opt, Objective& context, std::vector<double> theta) {
+  Optimum o;
+  double value = 0.0;
+  try {
+    const nlopt::result r = opt.optimize(theta, value);
+    o.converged = r > 0 && value < 1e299;
+  } catch (const nlopt::roundoff_limited&) {
+    value = objective(static_cast<unsigned>(theta.size()), theta.data(), nullptr, &context);
+    o.converged = std::isfinite(value) && value < 1e299;
+  } catch (const std::exception&) {
+    value = objective(static_cast<unsigned>(theta.size()), theta.data(), nullptr, &context);
+    o.converged = false;
+  }
+  o.theta = std::move(theta);
+  o.value = value;
+  return o;
+}
+
+// Key-only models: subplex from the moment start, then a second subplex from its optimum.
+Optimum maximise_key(Objective& context, std::vector<double> start, const Bounds& b) {
+  const auto dim = static_cast<unsigned>(start.size());
+  nlopt::opt opt(nlopt::LN_SBPLX, dim);
+  opt.set_min_objective(objective, &context);
+  opt.set_lower_bounds(b.lower);
+  opt.set_upper_bounds(b.upper);
+  opt.set_xtol_rel(1e-10);
+  opt.set_ftol_abs(1e-12);
+  opt.set_maxeval(5000);
+  Optimum o = run_optimiser(opt, context, std::move(start));
+  if (!o.converged) return o;
+  nlopt::opt polish(nlopt::LN_SBPLX, dim);
+  polish.set_min_objective(objective, &context);
+  polish.set_lower_bounds(b.lower);
+  polish.set_upper_bounds(b.upper);
+  polish.set_xtol_rel(1e-12);
+  polish.set_maxeval(5000);
+  Optimum p = run_optimiser(polish, context, o.theta);
+  if (p.value <= o.value) o.theta = std::move(p.theta), o.value = p.value;
+  return o;
+}
+
+// Adjusted models: one COBYLA run under the monotonicity constraints. The initial step is
+// explicit: NLopt's default, a quarter of the box, leaps from a zero coefficient far
+// outside the feasible set and stops there. An infeasible end point counts as not converged.
+Optimum constrained_search(Objective& context, std::vector<double> start, const Bounds& b, double step_scale,
+                           int max_evaluations) {
+  const auto dim = static_cast<unsigned>(start.size());
+  const std::size_t key_count = key_parameter_count(context.model.key);
+  std::vector<double> step(dim);
+  for (std::size_t i = 0; i < dim; ++i) step[i] = step_scale * (i < key_count ? 0.25 : 0.1);
+  for (std::size_t i = 0; i < dim; ++i) start[i] = std::clamp(start[i], b.lower[i], b.upper[i]);
+  nlopt::opt opt(nlopt::LN_COBYLA, dim);
+  opt.set_min_objective(objective, &context);
+  opt.set_lower_bounds(b.lower);
+  opt.set_upper_bounds(b.upper);
+  opt.set_initial_step(step);
+  opt.set_xtol_rel(1e-8);
+  opt.set_ftol_abs(1e-9);
+  opt.set_maxeval(max_evaluations);
+  const std::vector<double> tolerances(2 * (monotone_grid - 1), 1e-9);
+  opt.add_inequality_mconstraint(monotone_constraints, &context, tolerances);
+  Optimum o = run_optimiser(opt, context, std::move(start));
+  const DetectionFunction f(context.model, natural_from_working(context.model, o.theta), context.truncation);
+  if (!is_monotone(f)) o.converged = false;
+  return o;
+}
+
+bool better(const Optimum& candidate, const Optimum& incumbent) {
+  if (incumbent.theta.empty()) return true;
+  if (candidate.converged != incumbent.converged) return candidate.converged;
+  return candidate.value < incumbent.value;
+}
+
+// One COBYLA search, restarted from its end point with smaller steps until a pass gains
+// nothing: the trust region shrinks early along the curved ridges of these likelihoods.
+Optimum search_and_refine(Objective& context, std::vector<double> start, const Bounds& bounds) {
+  Optimum o = constrained_search(context, std::move(start), bounds, 1.0, 20000);
+  for (const double scale : {0.1, 0.01}) {
+    if (!o.converged) break;
+    Optimum refined = constrained_search(context, o.theta, bounds, scale, 20000);
+    if (!refined.converged || !(refined.value < o.value - 1e-9)) break;
+    o = std::move(refined);
+  }
+  return o;
+}
+
+// Maximum-likelihood working parameters of `m`. Adjusted models are multi-start: COBYLA
+// from the optimum with one term fewer (ultimately the key's own optimum) with the new
+// coefficient at zero and at small values of either sign; the best feasible optimum wins.
+// With `warm_start` (working parameters of a nearby fit, e.g. the original data when
+// refitting a bootstrap resample) a single search starts there.
+Optimum maximise_likelihood(const DistanceData& data, const DetectionModel& m, double w,
+                            const std::vector<double>* warm_start = nullptr) {
+  const double s0 = scale_start(data);
+  const Bounds bounds = parameter_bounds(m, s0);
+  Objective context{&data, m, w};
+  if (warm_start && warm_start->size() == bounds.lower.size() && !warm_start->empty()) {
+    std::vector<double> start = *warm_start;
+    for (std::size_t i = 0; i < start.size(); ++i) start[i] = std::clamp(start[i], bounds.lower[i], bounds.upper[i]);
+    if (m.terms == 0) return maximise_key(context, std::move(start), bounds);
+    Optimum o = search_and_refine(context, std::move(start), bounds);
+    if (o.converged) return o;  // otherwise fall back to the full multi-start search
+  }
+  if (m.terms == 0) {
+    std::vector<double> start;
+    if (m.key != KeyFunction::uniform) start.push_back(std::log(s0));
+    if (m.key == KeyFunction::hazard_rate) start.push_back(std::log(3.0));
+    if (start.empty()) return {start, objective(0, nullptr, nullptr, &context), true};
+    return maximise_key(context, std::move(start), bounds);
+  }
+  DetectionModel shorter = m;
+  shorter.terms = m.terms - 1;
+  const Optimum previous = maximise_likelihood(data, shorter, w);
+  std::vector<std::vector<double>> starts;
+  for (const double a : {0.0, 0.2, -0.2, 0.6, -0.6}) {
+    if (m.terms > 1 && std::abs(a) > 0.5) continue;  // later terms: small corrections
+    starts.push_back(previous.theta);
+    starts.back().push_back(a);
+  }
+  Optimum best;
+  for (auto& start : starts) {
+    Optimum o = search_and_refine(context, std::move(start), bounds);
+    if (better(o, best)) best = std::move(o);
+  }
+  return best;
+}
+
+}  // namespace
+
+DetectionFit fit_detection_function(const DistanceData& data, const DetectionModel& model,
+                                    const DetectionFunction* warm_start) {
   const double w = data.binned() ? data.bin_edges.back() : data.truncation_m;
   const std::size_t q = key_parameter_count(model.key) + (model.adjustment == Adjustment::none ? 0 : model.terms);
   const std::size_t n = data.size();
@@ -292,68 +456,18 @@ DetectionFit fit_detection_function(const DistanceData& data, const DetectionMod
                         std::string(key_function_name(m.key)) + " model with " + std::to_string(q) +
                         " parameters");
 
-  const double s0 = scale_start(data);
-  std::vector<double> theta;
-  std::vector<double> lower;
-  std::vector<double> upper;
-  if (m.key != KeyFunction::uniform) {
-    theta.push_back(std::log(s0));
-    lower.push_back(std::log(s0) - 8.0);
-    upper.push_back(std::log(s0) + 8.0);
+  std::vector<double> warm;
+  if (warm_start && warm_start->model().key == m.key && warm_start->model().adjustment == m.adjustment &&
+      warm_start->model().terms == m.terms) {
+    warm = warm_start->parameters();
+    for (std::size_t i = 0; i < key_parameter_count(m.key) && i < warm.size(); ++i) warm[i] = std::log(warm[i]);
   }
-  if (m.key == KeyFunction::hazard_rate) {
-    // Shape b >= 1: below it g falls in a spike at x = 0 and the untruncated strip width
-    // is infinite; small samples otherwise wander there (common practice, no source).
-    theta.push_back(std::log(3.0));
-    lower.push_back(0.0);
-    upper.push_back(std::log(60.0));
-  }
-  for (std::size_t j = 0; j < m.terms; ++j) {
-    theta.push_back(0.0);
-    lower.push_back(-10.0);
-    upper.push_back(10.0);
-  }
-  Objective context{&data, m, w};
-  bool converged = true;
-  if (!theta.empty()) {
-    const auto dim = static_cast<unsigned>(theta.size());
-    const bool constrained = m.terms > 0;
-    nlopt::opt opt(constrained ? nlopt::LN_COBYLA : nlopt::LN_SBPLX, dim);
-    opt.set_min_objective(objective, &context);
-    opt.set_lower_bounds(lower);
-    opt.set_upper_bounds(upper);
-    opt.set_xtol_rel(1e-10);
-    opt.set_ftol_abs(1e-12);
-    opt.set_maxeval(constrained ? 20000 : 5000);
-    if (constrained) {
-      const std::vector<double> tolerances(2 * (monotone_grid - 1), 1e-9);
-      opt.add_inequality_mconstraint(monotone_constraints, &context, tolerances);
-    }
-    double value = 0.0;
-    try {
-      const nlopt::result r = opt.optimize(theta, value);
-      converged = r > 0 && value < 1e299;
-    } catch (const nlopt::roundoff_limited&) {
-      // The optimum is as good as floating point allows; theta holds it.
-      converged = std::isfinite(objective(dim, theta.data(), nullptr, &context)) &&
-                  objective(dim, theta.data(), nullptr, &context) < 1e299;
-    } catch (const std::exception&) {
-      converged = false;
-    }
-    if (!constrained && converged) {
-      // A second start from the optimum tightens the simplex search.
-      nlopt::opt polish(nlopt::LN_SBPLX, dim);
-      polish.set_min_objective(objective, &context);
-      polish.set_lower_bounds(lower);
-      polish.set_upper_bounds(upper);
-      polish.set_xtol_rel(1e-12);
-      polish.set_maxeval(5000);
-      try {
-        polish.optimize(theta, value);
-      } catch (const std::exception&) {
-      }
-    }
-  }
+  const Optimum optimum = maximise_likelihood(data, m, w, warm.empty() ? nullptr : &warm);
+  const std::vector<double>& theta = optimum.theta;
+  const bool converged = optimum.converged;
+  const Bounds bounds = parameter_bounds(m, scale_start(data));
+  const std::vector<double>& lower = bounds.lower;
+  const std::vector<double>& upper = bounds.upper;
   DetectionFit fit(DetectionFunction(m, natural_from_working(m, theta), w));
   fit.n = n;
   fit.parameter_count = q;
@@ -462,9 +576,11 @@ std::vector<DetectionFit> fit_candidates(const DistanceData& data, const std::ve
       double best_aic = base ? base->aic : std::numeric_limits<double>::infinity();
       for (std::size_t t = 1; t <= max_terms; ++t) {
         auto fit = attempt({key, adjustment, t});
-        if (!fit || !(fit->aic < best_aic)) break;
-        best_aic = fit->aic;
-        fits.push_back(*fit);
+        if (!fit) break;
+        const bool improves = fit->aic < best_aic;
+        best_aic = std::min(best_aic, fit->aic);
+        fits.push_back(std::move(*fit));
+        if (!improves) break;
       }
     }
   }

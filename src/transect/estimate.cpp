@@ -347,7 +347,8 @@ TransectResult analyse_transects(const TransectSurvey& survey, const TransectOpt
         if (!refits.count(fit_key)) {
           try {
             const DistanceData data = distances_of(replicate, fit_key, w, options.bin_edges);
-            refits.emplace(fit_key, fit_detection_function(data, fits.at(fit_key).function.model()));
+            const DetectionFunction& original = fits.at(fit_key).function;
+            refits.emplace(fit_key, fit_detection_function(data, original.model(), &original));
           } catch (const AnalysisError&) {
             refits.emplace(fit_key, std::nullopt);
           }

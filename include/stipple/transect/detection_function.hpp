@@ -96,16 +96,24 @@ struct DetectionFit {
   double effective_cv = 0.0;              ///< CV of mu (lines) or nu (points)
 };
 
-/// Maximum-likelihood fit: NLopt (BOBYQA for key-only models; COBYLA with g kept
-/// non-increasing and non-negative on a 50-point grid for adjusted models); the covariance
-/// is the inverse of the observed information (numerical Hessian of the log-likelihood).
+/// Maximum-likelihood fit: NLopt subplex for key-only models; for adjusted models COBYLA
+/// with g kept non-increasing and non-negative on a 50-point grid, from several starts (the
+/// optimum with one term fewer, the new coefficient at 0, +-0.2 and +-0.6), each restarted
+/// with smaller steps until it gains nothing; the best feasible optimum wins. `warm_start`
+/// (a fit of the same model to similar data, e.g. before a bootstrap resample) replaces the
+/// starts by one search from its parameters. The covariance is the inverse of the observed
+/// information (numerical Hessian of the log-likelihood).
 /// Throws AnalysisError when there are fewer detections than parameters + 2, or the
 /// model needs a finite truncation distance that the data lack.
-[[nodiscard]] DetectionFit fit_detection_function(const DistanceData& data, const DetectionModel& model);
+[[nodiscard]] DetectionFit fit_detection_function(const DistanceData& data, const DetectionModel& model,
+                                                  const DetectionFunction* warm_start = nullptr);
 
-/// Fits each key with 0..max_terms terms of each adjustment series, stepping forward while
-/// AIC improves (Buckland et al. 2001, §3.5, from memory); returns every converged,
-/// monotone fit sorted by AIC (best first). Throws AnalysisError when none fits.
+/// Every fit tried, sorted by AIC (best first). Each key is fitted alone and then, for
+/// each adjustment series, with 1..max_terms terms, stepping forward while AIC improves
+/// (Buckland et al. 2001, section 3.5, from memory); the fit that stopped the stepping is
+/// listed too, so every candidate appears with its AIC. Only converged, monotone fits are
+/// kept; the first is always one that forward selection accepted. Throws AnalysisError
+/// when none fits.
 [[nodiscard]] std::vector<DetectionFit> fit_candidates(const DistanceData& data,
                                                        const std::vector<KeyFunction>& keys,
                                                        const std::vector<Adjustment>& adjustments,
