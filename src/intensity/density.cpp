@@ -2,8 +2,10 @@
 
 #include <algorithm>
 #include <cmath>
+#include <limits>
 #include <numeric>
 
+#include <boost/math/distributions/normal.hpp>
 #include <boost/math/distributions/students_t.hpp>
 
 #include "stipple/error.hpp"
@@ -53,6 +55,47 @@ HomogeneityTest test_homogeneity(const std::vector<std::uint64_t>& counts,
   test.between_plot_ci = {std::max(0.0, ratio - t * test.between_plot_se),
                           ratio + t * test.between_plot_se};
   return test;
+}
+
+// Ratio estimator of the detection-corrected plot counts with the delta-method variance
+// of the detection probabilities added; see HomogeneityTest.
+void correct_between_plot(HomogeneityTest& test, const std::vector<std::vector<std::uint64_t>>& counts,
+                          const std::vector<double>& areas, const std::vector<std::size_t>& species,
+                          const std::vector<Detection>& detections, double alpha) {
+  const std::size_t n_plots = areas.size();
+  const double total_area = std::accumulate(areas.begin(), areas.end(), 0.0);
+  std::vector<double> corrected(n_plots, 0.0);
+  double p_variance = 0.0;  // sum_s (N_s se_s / p_s^2)^2, divided by A^2 below
+  for (const std::size_t s : species) {
+    const Detection& d = detections[s];
+    double pooled = 0.0;
+    for (std::size_t i = 0; i < n_plots; ++i) {
+      corrected[i] += static_cast<double>(counts[i][s]) / d.probability;
+      pooled += static_cast<double>(counts[i][s]);
+    }
+    const double term = pooled * d.standard_error / (d.probability * d.probability);
+    p_variance += term * term;
+  }
+  const double k = static_cast<double>(n_plots);
+  const double ratio = std::accumulate(corrected.begin(), corrected.end(), 0.0) / total_area;
+  double sum_sq = 0.0;
+  for (std::size_t i = 0; i < n_plots; ++i) {
+    const double residual = corrected[i] - ratio * areas[i];
+    sum_sq += residual * residual;
+  }
+  const double between_variance = k / (k - 1.0) * sum_sq / (total_area * total_area);
+  const double variance = between_variance + p_variance / (total_area * total_area);
+  test.corrected_between_plot_se = std::sqrt(variance);
+  // Satterthwaite (1946): df = var^2 / (var_between^2 / (k - 1)); infinite when the plots agree.
+  test.corrected_between_plot_df = between_variance > 0.0
+                                       ? variance * variance / (between_variance * between_variance / (k - 1.0))
+                                       : std::numeric_limits<double>::infinity();
+  const double t = std::isfinite(test.corrected_between_plot_df)
+                       ? boost::math::quantile(boost::math::students_t(test.corrected_between_plot_df),
+                                               1.0 - alpha / 2.0)
+                       : boost::math::quantile(boost::math::normal(), 1.0 - alpha / 2.0);
+  test.corrected_between_plot_ci = {std::max(0.0, ratio - t * test.corrected_between_plot_se),
+                                    ratio + t * test.corrected_between_plot_se};
 }
 
 }  // namespace
@@ -138,6 +181,10 @@ DensityResult estimate_density(const Survey& survey, const DensityOptions& optio
     if (n_plots >= 2 && pooled.count > 0) {
       const std::string key = "homogeneity/" + (pooled.species ? *pooled.species : std::string());
       pooled.homogeneity = test_homogeneity(plot_counts, areas, options, result.alpha, key);
+      std::vector<std::size_t> used_species;
+      for (std::size_t s = 0; s < n_species; ++s)
+        if (!species || *species == s) used_species.push_back(s);
+      correct_between_plot(*pooled.homogeneity, counts, areas, used_species, detections, result.alpha);
     }
     return pooled;
   };

@@ -75,7 +75,12 @@ std::vector<std::string> density_warnings(const DensityResult& result) {
         ": plots differ in intensity (homogeneity p = " + format_p_value(h.p_value) +
         ", dispersion ratio " + format_fixed(h.dispersion_ratio, 2) +
         "); the pooled Poisson interval assumes one shared intensity and is too narrow: use "
-        "the between-plot interval " + interval_text(h.between_plot_ci) + " per " + unit);
+        "the between-plot interval " +
+        (p.corrected.method == CorrectionMethod::none
+             ? interval_text(h.between_plot_ci) + " per " + unit
+             : interval_text(h.corrected_between_plot_ci) + " per " + unit +
+                   " (detection-corrected: ratio estimator of the plot counts divided by p, with "
+                   "the uncertainty of p added by the delta method)"));
   }
   if (result.composition && result.composition->significant) {
     warnings.push_back(
@@ -156,6 +161,14 @@ std::string density_json(const LoadedSurvey& survey, const DensityResult& result
       t["significant"] = h.significant;
       t["between_plot_se"] = h.between_plot_se;
       t["between_plot_ci"] = interval_json(h.between_plot_ci);
+      t["corrected_between_plot_se"] = h.corrected_between_plot_se;
+      t["corrected_between_plot_ci"] = interval_json(h.corrected_between_plot_ci);
+      t["corrected_between_plot_df"] = std::isfinite(h.corrected_between_plot_df)
+                                           ? Json(h.corrected_between_plot_df)
+                                           : Json(nullptr);
+      t["between_plot_method"] =
+          "ratio estimator (Cochran 1977), t interval with k - 1 df; corrected: plot counts "
+          "divided by p, delta-method variance of p added, Satterthwaite df";
       j["homogeneity"] = std::move(t);
     } else {
       j["homogeneity"] = nullptr;

@@ -104,6 +104,41 @@ TEST(EstimateDensity, HeterogeneousPlotsReportBetweenPlotError) {
             r.pooled.front().ci.upper - r.pooled.front().ci.lower);
 }
 
+TEST(EstimateDensity, BetweenPlotIntervalIsOnTheCorrectedScale) {
+  // Ratio estimator (Cochran 1977, ch. 6, from memory) of the corrected plot counts
+  // y_i = sum_s n_is / p_s, plus the delta-method variance of p (Kingman 1993 thinning;
+  // the same propagation as the Poisson rows), df by Satterthwaite (1946).
+  // Source: numbers recomputed with NumPy 1.24 / SciPy 1.10 (stats.t.ppf) from those
+  // formulas: areas [1, 0.5, 1.5] ha; species a counts [12, 2, 30], p = 0.8, se 0.05;
+  // species b counts [3, 9, 4], p = 0.5, se 0.1.
+  const Survey survey = make_survey({1e4, 0.5e4, 1.5e4}, {{12, 3}, {2, 9}, {30, 4}});
+  DensityOptions options;
+  options.detection = DetectionTable::by_species({{"a", {0.8, 0.05}}, {"b", {0.5, 0.1}}}, std::nullopt, "test");
+  const DensityResult r = estimate_density(survey, options);
+  ASSERT_EQ(r.pooled.size(), 3u);
+  const auto& all = *r.pooled.back().homogeneity;
+  EXPECT_NEAR(r.pooled.back().corrected.intensity, 29.0, 1e-9);
+  EXPECT_NEAR(all.corrected_between_plot_se, 4.816365691, 1e-8);
+  EXPECT_NEAR(all.corrected_between_plot_df, 3.582148899, 1e-8);
+  EXPECT_NEAR(all.corrected_between_plot_ci.lower, 14.989399476, 1e-7);
+  EXPECT_NEAR(all.corrected_between_plot_ci.upper, 43.010600524, 1e-7);
+  // The interval is centred on the corrected estimate it is printed beside.
+  EXPECT_NEAR(0.5 * (all.corrected_between_plot_ci.lower + all.corrected_between_plot_ci.upper),
+              r.pooled.back().corrected.intensity, 1e-9);
+  const auto& a = *r.pooled.front().homogeneity;
+  EXPECT_NEAR(a.corrected_between_plot_se, 5.219086122, 1e-8);
+  EXPECT_NEAR(a.corrected_between_plot_ci.upper, 38.881431164, 1e-7);
+
+  // With p known exactly the corrected interval is the observed one divided by p.
+  options.detection = DetectionTable::uniform({0.8, 0.0});
+  const DensityResult exact = estimate_density(survey, options);
+  const auto& e = *exact.pooled.front().homogeneity;
+  EXPECT_NEAR(e.corrected_between_plot_df, 2.0, 1e-12);
+  EXPECT_NEAR(e.corrected_between_plot_se, e.between_plot_se / 0.8, 1e-12);
+  EXPECT_NEAR(e.corrected_between_plot_ci.upper, e.between_plot_ci.upper / 0.8, 1e-12);
+  EXPECT_NEAR(e.corrected_between_plot_ci.upper, 40.241368693, 1e-7);
+}
+
 TEST(EstimateDensity, AllSpeciesRowIsTheSuperposition) {
   const Survey survey = make_survey({1e4}, {{12, 8}});
   DensityOptions options;

@@ -46,7 +46,17 @@ struct HomogeneityTest {
   /// var = k / (k - 1) * sum (n_i - R a_i)^2 / A^2, R = sum n / sum a
   /// (Cochran W.G. 1977, Sampling Techniques, 3rd ed., ch. 6, from memory: chapter).
   double between_plot_se = 0.0;
-  Interval between_plot_ci;     ///< R +- t_{k-1} se, lower limit clipped at 0
+  Interval between_plot_ci;     ///< R +- t_{k-1} se, lower limit clipped at 0 (observed scale)
+  /// The same on the detection-corrected scale, to be read beside the corrected intensity:
+  /// the ratio estimator of the corrected plot counts y_i = sum_s n_is / p_s, plus the
+  /// uncertainty of each p by the delta method, var(p part) = sum_s (N_s se_s / p_s^2)^2 / A^2
+  /// (N_s the pooled count of species s), as for the Poisson rows; interval
+  /// R_c +- t_df se, df by Satterthwaite (1946) from the k - 1 of the between-plot part
+  /// (the p part is taken as known to infinite df). With p = 1 it equals the observed one;
+  /// with one p known exactly it is the observed interval divided by p.
+  double corrected_between_plot_se = 0.0;
+  Interval corrected_between_plot_ci;
+  double corrected_between_plot_df = 0.0;
   bool significant = false;     ///< p_value < alpha
 };
 
