@@ -56,7 +56,17 @@ EnvelopeResult envelope_test(const std::vector<double>& r, const std::vector<dou
     e.pointwise_high[k] = quantile(column, 1.0 - alpha / 2.0);
   }
 
-  // MAD and DCLF statistics of every curve against the simulation mean.
+  // MAD and DCLF statistics of every curve against the mean of the other s curves
+  // (leave-one-out over all s + 1 curves, observed included). Every curve is then treated
+  // alike, so under the null hypothesis the s + 1 statistics are exchangeable and the rank
+  // p-value is exact at any s; a reference mean that holds the simulation being compared
+  // but not the observed curve pulls simulated statistics down (Myllymaki et al. 2017,
+  // section 3, and Baddeley et al. 2014, Ecol. Monogr. 84:477-489, from memory).
+  std::vector<double> all_mean(m, 0.0);  // mean of all s + 1 curves
+  for (std::size_t k = 0; k < m; ++k) {
+    if (!usable[k]) continue;
+    all_mean[k] = (e.simulation_mean[k] * static_cast<double>(s) + observed[k]) / static_cast<double>(s + 1);
+  }
   const auto statistics = [&](const std::vector<double>& curve, double& mad, double& dclf,
                               double& mean_dev) {
     mad = 0.0;
@@ -65,7 +75,9 @@ EnvelopeResult envelope_test(const std::vector<double>& r, const std::vector<dou
     std::size_t used = 0;
     for (std::size_t k = 0; k < m; ++k) {
       if (!usable[k]) continue;
-      const double d = curve[k] - e.simulation_mean[k];
+      // mean of the other s curves = ((s + 1) all_mean - curve) / s, so
+      // curve - that mean = (s + 1) / s (curve - all_mean).
+      const double d = static_cast<double>(s + 1) / static_cast<double>(s) * (curve[k] - all_mean[k]);
       mad = std::max(mad, std::abs(d));
       dclf += d * d * dr;
       mean_dev += d;
@@ -121,16 +133,27 @@ EnvelopeResult envelope_test(const std::vector<double>& r, const std::vector<dou
   for (std::size_t c = 0; c < curves; ++c) as_extreme += ranks[c] <= ranks[0] ? 1u : 0u;
   e.erl_p_value = static_cast<double>(as_extreme) / static_cast<double>(curves);
 
-  // Envelope: simulated curves not among the floor(alpha (s + 1)) most extreme.
-  const auto excluded = static_cast<std::size_t>(std::floor(alpha * static_cast<double>(curves)));
-  std::vector<bool> keep(curves, true);
-  keep[0] = false;  // the envelope is built from simulations only
-  for (std::size_t t = 0; t < excluded && t < curves; ++t) keep[by_extremeness[t]] = false;
+  // Global envelope (Myllymaki et al. 2017, section 4): the pointwise range of every curve,
+  // the observed one included, whose own extreme-rank-length p-value,
+  // #{j : R_j <= R_i} / (s + 1), does not reject at alpha (reject: p < alpha). A curve
+  // outside it at some r is one the test rejects, and the other way round: every curve
+  // more extreme than the observed one where its rank is smallest is excluded too, so a
+  // rejected observed curve leaves the envelope there (exact ties apart).
+  std::vector<std::vector<double>> sorted_ranks(curves);
+  for (std::size_t t = 0; t < curves; ++t) sorted_ranks[t] = ranks[by_extremeness[t]];
+  std::vector<bool> keep(curves, false);
+  for (std::size_t c = 0; c < curves; ++c) {
+    const auto at_most =
+        static_cast<std::size_t>(std::upper_bound(sorted_ranks.begin(), sorted_ranks.end(), ranks[c]) -
+                                 sorted_ranks.begin());
+    keep[c] = !(static_cast<double>(at_most) / static_cast<double>(curves) < alpha);
+  }
+  e.erl_rejects = !keep[0];
   for (std::size_t k = 0; k < m; ++k) {
     if (!usable[k]) continue;
     double lo = std::numeric_limits<double>::infinity();
     double hi = -lo;
-    for (std::size_t c = 1; c < curves; ++c) {
+    for (std::size_t c = 0; c < curves; ++c) {
       if (!keep[c]) continue;
       lo = std::min(lo, curve(c)[k]);
       hi = std::max(hi, curve(c)[k]);

@@ -31,7 +31,7 @@ RandomnessOptions quick_options() {
 }
 
 struct Rejections {
-  int quadrat = 0, clark_evans = 0, clark_evans_mc = 0, mad = 0, dclf = 0, erl = 0;
+  int quadrat = 0, clark_evans = 0, clark_evans_mc = 0, mad = 0, dclf = 0, erl = 0, departures = 0;
 };
 
 template <typename Generate>
@@ -48,6 +48,9 @@ Rejections count_rejections(const Window& w, int patterns, const std::string& ke
     r.mad += g.l_envelope()->mad_p_value < o.alpha ? 1 : 0;
     r.dclf += g.l_envelope()->dclf_p_value < o.alpha ? 1 : 0;
     r.erl += g.l_envelope()->erl_p_value < o.alpha ? 1 : 0;
+    // Myllymaki et al. (2017): L leaves the global envelope exactly when the ERL test rejects.
+    r.departures += g.l_envelope()->departures.empty() ? 0 : 1;
+    EXPECT_EQ(!g.l_envelope()->departures.empty(), g.l_envelope()->erl_rejects) << key << p;
   }
   return r;
 }
@@ -55,7 +58,8 @@ Rejections count_rejections(const Window& w, int patterns, const std::string& ke
 void expect_calibrated(const Rejections& r) {
   for (const auto& [name, count] : {std::pair{"quadrat", r.quadrat}, {"Clark-Evans", r.clark_evans},
                                     {"Clark-Evans MC", r.clark_evans_mc}, {"MAD", r.mad},
-                                    {"DCLF", r.dclf}, {"ERL", r.erl}}) {
+                                    {"DCLF", r.dclf}, {"ERL", r.erl},
+                                    {"departures from the global envelope", r.departures}}) {
     EXPECT_GE(count, 3) << name;
     EXPECT_LE(count, 19) << name;
   }
