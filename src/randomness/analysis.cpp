@@ -58,7 +58,8 @@ void decide_verdict(GroupResult& g, double alpha) {
   } else if (g.clark_evans) {
     const double p = g.clark_evans->monte_carlo_p_value.value_or(g.clark_evans->p_value);
     g.verdict_basis = "Clark-Evans test";
-    if (p < alpha) g.verdict = g.clark_evans->ratio < 1.0 ? "clustered" : "regular";
+    if (std::isnan(p)) g.verdict = "undetermined";
+    else if (p < alpha) g.verdict = g.clark_evans->ratio < 1.0 ? "clustered" : "regular";
   } else if (g.quadrat) {
     g.verdict_basis = "quadrat test";
     if (g.quadrat->p_value < alpha)
@@ -115,6 +116,9 @@ GroupResult analyse_pattern(const std::vector<Point>& points, const Window& wind
       g.notes.push_back(std::string("Clark-Evans test not run: ") + e.what());
     }
   }
+  if (g.clark_evans && g.clark_evans->edge_correction == NeighbourEdgeCorrection::border && !need_simulations)
+    g.notes.push_back("Clark-Evans with the border method has no p-value without simulations: its normal "
+                      "approximation rejects too often (6-11% at nominal 5%); run simulations");
   if (need_simulations) {
     std::vector<SummaryCurves> simulated(options.simulations);
     std::vector<double> simulated_ce(options.simulations, std::nan(""));
@@ -128,7 +132,13 @@ GroupResult analyse_pattern(const std::vector<Point>& points, const Window& wind
       simulated[s].nearest.clear();
       simulated[s].boundary.clear();
     });
-    if (g.clark_evans) g.clark_evans->monte_carlo_p_value = two_sided_monte_carlo(g.clark_evans->mean_distance, simulated_ce);
+    if (g.clark_evans) {
+      g.clark_evans->monte_carlo_p_value = two_sided_monte_carlo(g.clark_evans->mean_distance, simulated_ce);
+      if (g.clark_evans->edge_correction == NeighbourEdgeCorrection::border) {
+        g.clark_evans->p_value = *g.clark_evans->monte_carlo_p_value;
+        g.clark_evans->p_value_method = "monte-carlo";
+      }
+    }
     if (options.run_envelope) {
       g.rmax_m = rmax;
       const SummaryCurves theory = csr_curves(context.r(), lambda);

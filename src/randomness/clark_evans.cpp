@@ -110,7 +110,12 @@ ClarkEvansResult clark_evans(const std::vector<double>& nearest, const std::vect
   r.ratio = r.mean_distance / r.expected_distance;
   r.z = (r.mean_distance - r.expected_distance) / r.standard_error;
   const boost::math::normal standard;
-  r.p_value = 2.0 * boost::math::cdf(boost::math::complement(standard, std::abs(r.z)));
+  r.normal_p_value = 2.0 * boost::math::cdf(boost::math::complement(standard, std::abs(r.z)));
+  r.p_value = r.normal_p_value;
+  if (r.edge_correction == NeighbourEdgeCorrection::border) {
+    r.p_value = std::numeric_limits<double>::quiet_NaN();
+    r.p_value_method = "none";
+  }
   return r;
 }
 

@@ -45,7 +45,9 @@ Json clark_evans_json(const ClarkEvansResult& c) {
   j["expected_distance"] = c.expected_distance;
   j["ratio"] = c.ratio;
   j["z"] = c.z;
-  j["p_value"] = c.p_value;
+  j["p_value"] = std::isnan(c.p_value) ? Json(nullptr) : Json(c.p_value);
+  j["p_value_method"] = c.p_value_method;
+  j["normal_p_value"] = c.normal_p_value;
   j["edge_correction"] = std::string(edge_correction_name(c.edge_correction));
   j["monte_carlo_p_value"] = optional_json(c.monte_carlo_p_value);
   j["standard_error"] = c.standard_error;
@@ -174,7 +176,8 @@ std::string randomness_table(const LoadedSurvey& survey, const RandomnessResult&
     row.push_back(g.quadrat ? format_p_value(g.quadrat->p_value) + (g.quadrat->monte_carlo_p_value ? " (MC)" : "") : "-");
     if (g.clark_evans) {
       row.push_back(format_fixed(g.clark_evans->ratio, 3));
-      row.push_back(format_p_value(g.clark_evans->monte_carlo_p_value.value_or(g.clark_evans->p_value)));
+      const double ce_p = g.clark_evans->monte_carlo_p_value.value_or(g.clark_evans->p_value);
+      row.push_back(std::isnan(ce_p) ? "-" : format_p_value(ce_p));
       row.push_back(std::string(edge_correction_name(g.clark_evans->edge_correction)));
     } else {
       row.insert(row.end(), {"-", "-", "-"});

@@ -2,6 +2,8 @@
 // Calibration band: 200 CSR patterns at alpha = 0.05 must give 3..19 rejections, the
 // binomial 99% band (REFERENCES.md section 5, common practice).
 
+#include <cmath>
+
 #include <boost/geometry.hpp>
 #include <gtest/gtest.h>
 
@@ -80,6 +82,37 @@ TEST(Calibration, CsrRejectsAtNominalRateInRectangle) {
     return simulate_binomial(w, 40, e);
   }, quick_options());
   expect_calibrated(r);
+}
+
+TEST(Calibration, ClarkEvansBorderReportsACalibratedPValue) {
+  // The border method's normal approximation rejected 11.1% of CSR patterns at nominal 5%
+  // for n = 10 in 100 x 60 m (independent audit), so its reported p-value is the Monte
+  // Carlo one: two-sided, p = 2 min(#{T_i >= T}, #{T_i <= T}) + 1) / (N + 1) (Hope 1968),
+  // which with N = 99 rejects at p < 0.05 with probability 0.04 under CSR. Band: binomial
+  // 99.9% for 600 patterns at 0.04 (SciPy 1.10 binom.ppf): [10, 41]; 11.1% would give
+  // at most 40 rejections with probability 0.00015.
+  const Window w = Window::rectangle(0, 0, 100, 60);
+  RandomnessOptions o = quick_options();
+  o.run_quadrat = false;
+  o.run_envelope = false;
+  o.edge_correction = NeighbourEdgeCorrection::border;
+  int rejected = 0;
+  for (int p = 0; p < 600; ++p) {
+    Engine engine(derive_seed(2024, "ce-border/" + std::to_string(p)));
+    const GroupResult g = analyse_pattern(simulate_binomial(w, 10, engine), w, o, "ce-border/" + std::to_string(p));
+    ASSERT_TRUE(g.clark_evans);
+    ASSERT_EQ(g.clark_evans->p_value_method, "monte-carlo");
+    rejected += g.clark_evans->p_value < o.alpha ? 1 : 0;
+  }
+  EXPECT_GE(rejected, 10);
+  EXPECT_LE(rejected, 41);
+
+  // Without simulations there is no p-value to report, and the verdict says so.
+  o.simulations = 0;
+  Engine engine(derive_seed(2024, "ce-border/none"));
+  const GroupResult g = analyse_pattern(simulate_binomial(w, 10, engine), w, o, "ce-border/none");
+  EXPECT_TRUE(std::isnan(g.clark_evans->p_value));
+  EXPECT_EQ(g.verdict, "undetermined");
 }
 
 TEST(Power, ThomasClustersAreDetected) {

@@ -51,7 +51,7 @@ struct GroupResult {
   PairCorrection pair_correction = PairCorrection::isotropic;
   DistanceCorrection distance_correction = DistanceCorrection::kaplan_meier;
   std::vector<FunctionEnvelope> functions;  ///< L first; empty when the envelope did not run
-  std::string verdict = "random";           ///< clustered | regular | random, at alpha
+  std::string verdict = "random";           ///< clustered | regular | random | undetermined, at alpha
   std::string verdict_basis;                ///< which test decided
   std::vector<std::string> notes;
   /// The L envelope, when it ran.
