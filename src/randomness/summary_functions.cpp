@@ -142,26 +142,24 @@ SummaryCurves summary_functions(const std::vector<Point>& points, const SummaryC
   for (std::size_t i = 0; i < n; ++i) boundary[i] = window.boundary_distance(points[i]);
   const PointGrid grid(points);
 
-  // Weighted pair distances: K histogram, border-K difference arrays, fine pcf histogram.
+  // Weighted pair distances: K histogram, border-K difference arrays, and the exact
+  // Epanechnikov kernel sums of g at every r (no binning of the distances).
   std::vector<double> k_hist(steps + 2, 0.0);
   std::vector<double> border_diff(steps + 2, 0.0);
-  const std::size_t fine_factor = 4;
-  const double fine_dr = dr / static_cast<double>(fine_factor);
   const double pcf_reach = o.rmax_m + bandwidth;
-  const std::size_t fine_bins = static_cast<std::size_t>(std::ceil(pcf_reach / fine_dr)) + 1;
-  std::vector<double> fine(fine_bins, 0.0);
   const bool isotropic = o.pair_correction == PairCorrection::isotropic;
-  // Border-corrected g: kernel sums per distance from centres with b_i >= r only.
-  std::vector<double> border_g(steps, 0.0);
-  const auto add_border_g = [&](std::size_t centre, double d) {
+  std::vector<double> kernel_g(steps, 0.0);  // sum of weight x kernel(r_k - d)
+  // Adds `weight` x kernel(r_k - d) at every r_k = k dr within the kernel's reach and not
+  // beyond `limit` (the centre's boundary distance for the border correction).
+  const auto add_kernel = [&](double d, double weight, double limit) {
     const double lo = std::max(dr, d - bandwidth);
-    const double hi = std::min({o.rmax_m, d + bandwidth, boundary[centre]});
+    const double hi = std::min({o.rmax_m, d + bandwidth, limit});
     if (lo > hi) return;
     for (auto k = static_cast<std::size_t>(std::ceil(lo / dr - 1e-12));
          k <= steps && static_cast<double>(k) * dr <= hi + 1e-12; ++k) {
       if (k == 0) continue;
       const double u = (r[k - 1] - d) / bandwidth;
-      if (std::abs(u) < 1.0) border_g[k - 1] += 0.75 * (1.0 - u * u) / bandwidth;
+      if (std::abs(u) < 1.0) kernel_g[k - 1] += weight * 0.75 * (1.0 - u * u) / bandwidth;
     }
   };
   const auto add_border = [&](std::size_t centre, double d) {
@@ -186,11 +184,12 @@ SummaryCurves summary_functions(const std::vector<Point>& points, const SummaryC
         add_border(j, d);
       }
     }
-    if (!isotropic) {
-      add_border_g(i, d);
-      add_border_g(j, d);
+    if (isotropic) {
+      add_kernel(d, w, std::numeric_limits<double>::infinity());
+    } else {
+      add_kernel(d, 1.0, boundary[i]);
+      add_kernel(d, 1.0, boundary[j]);
     }
-    fine[std::min(fine_bins - 1, static_cast<std::size_t>(d / fine_dr))] += w;
   });
 
   SummaryCurves c;
@@ -219,23 +218,17 @@ SummaryCurves summary_functions(const std::vector<Point>& points, const SummaryC
   }
   for (const double kv : c.k) c.l.push_back(std::isnan(kv) ? nan_value : std::sqrt(std::max(0.0, kv) / pi));
 
-  // Pair correlation: Epanechnikov kernel over the (isotropically weighted) fine histogram,
-  // or, with border correction, the kernel sums of centres at least r from the boundary.
+  // Pair correlation: exact Epanechnikov kernel sums over the isotropically weighted pairs,
+  // or, with border correction, over the pairs whose centre lies at least r from the boundary.
   c.g.resize(steps);
-  for (std::size_t k = 0; k < steps && !isotropic; ++k) {
-    const std::size_t centres = centres_beyond(k);
-    c.g[k] = centres > 0 ? area / (nd - 1.0) * border_g[k] / (2.0 * pi * r[k] * static_cast<double>(centres))
-                         : nan_value;
-  }
-  for (std::size_t k = 0; k < steps && isotropic; ++k) {
-    double sum = 0.0;
-    for (std::size_t b = 0; b < fine_bins; ++b) {
-      const double mid = (static_cast<double>(b) + 0.5) * fine_dr;
-      const double u = (r[k] - mid) / bandwidth;
-      if (std::abs(u) >= 1.0) continue;
-      sum += fine[b] * 0.75 * (1.0 - u * u) / bandwidth;
+  for (std::size_t k = 0; k < steps; ++k) {
+    if (isotropic) {
+      c.g[k] = area / (nd * (nd - 1.0)) * kernel_g[k] / (2.0 * pi * r[k]);
+      continue;
     }
-    c.g[k] = area / (nd * (nd - 1.0)) * sum / (2.0 * pi * r[k]);
+    const std::size_t centres = centres_beyond(k);
+    c.g[k] = centres > 0 ? area / (nd - 1.0) * kernel_g[k] / (2.0 * pi * r[k] * static_cast<double>(centres))
+                         : nan_value;
   }
 
   // G from nearest-neighbour distances; F from the test locations.

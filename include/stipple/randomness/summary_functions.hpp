@@ -75,8 +75,9 @@ class SummaryContext {
 /// All summary functions of the pattern (points must lie in the window; n >= 2).
 /// K: |W| / (n (n - 1)) sum_{i != j} w_ij 1(d_ij <= r) (isotropic) or the border estimator;
 /// L = sqrt(K / pi); g by an Epanechnikov kernel of bandwidth 0.15 / sqrt(lambda)
-/// (Stoyan & Stoyan 1994, from memory) on the same weighted pair distances, or from centres
-/// at least r from the boundary with border correction;
+/// (Stoyan & Stoyan 1994, from memory), summed exactly over the same weighted pair
+/// distances at every r (no histogram), or from centres at least r from the boundary with
+/// border correction;
 /// G, F by Kaplan-Meier or border; J = (1 - G) / (1 - F) (van Lieshout & Baddeley 1996).
 [[nodiscard]] SummaryCurves summary_functions(const std::vector<Point>& points,
                                               const SummaryContext& context);
