@@ -1,11 +1,18 @@
 #include "stipple/intensity/kernel.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <limits>
+
+#include <boost/math/quadrature/gauss_kronrod.hpp>
 
 #include "stipple/error.hpp"
 
 namespace stipple {
+
+namespace {
+constexpr double pi = 3.14159265358979323846;
+}  // namespace
 
 double scott_bandwidth(const std::vector<Point>& points) {
   const std::size_t n = points.size();
@@ -24,6 +31,46 @@ double scott_bandwidth(const std::vector<Point>& points) {
   }
   const double variance = (sx + sy) / (2.0 * static_cast<double>(n - 1));
   return std::pow(static_cast<double>(n), -1.0 / 6.0) * std::sqrt(variance);
+}
+
+double gaussian_window_mass(const Window& window, const Point& u, double bandwidth_m) {
+  // Each directed edge (a, b) and the centre u span a signed triangle; summed over every
+  // ring the signed triangles cover the window once (outer rings and holes with opposite
+  // orientations). In polar coordinates about u the Gaussian mass of a triangle is
+  // (1 / 2 pi) integral over its angle of 1 - exp(-rho(theta)^2 / 2 h^2), rho(theta) =
+  // p / cos(theta - theta_n) the distance to the edge's line at perpendicular distance p.
+  const double two_h2 = 2.0 * bandwidth_m * bandwidth_m;
+  const auto edge_mass = [&](const BgPoint& a, const BgPoint& b) {
+    const double ax = a.x() - u.x, ay = a.y() - u.y, bx = b.x() - u.x, by = b.y() - u.y;
+    const double cross = ax * by - ay * bx;
+    const double span = std::atan2(cross, ax * bx + ay * by);  // signed angle a -> b
+    const double length = std::hypot(bx - ax, by - ay);
+    if (length == 0.0 || span == 0.0) return 0.0;
+    const double p = std::abs(cross) / length;
+    if (p * p > 40.0 * two_h2) return span / (2.0 * pi);  // the Gaussian is all inside: e^-40
+    // Angles measured from the foot of the perpendicular: theta_a = angle of a from it.
+    const double foot_x = ax + (bx - ax) * (-(ax * (bx - ax) + ay * (by - ay)) / (length * length));
+    const double foot_y = ay + (by - ay) * (-(ax * (bx - ax) + ay * (by - ay)) / (length * length));
+    const double theta_n = std::atan2(foot_y, foot_x);
+    double start = std::atan2(ay, ax) - theta_n;
+    start = std::remainder(start, 2.0 * pi);
+    const auto integrand = [&](double t) {
+      const double c = std::cos(t);
+      return 1.0 - std::exp(-(p * p) / (c * c * two_h2));
+    };
+    const double value = boost::math::quadrature::gauss_kronrod<double, 21>::integrate(
+        integrand, std::min(start, start + span), std::max(start, start + span), 8, 1e-9);
+    return (span > 0.0 ? value : -value) / (2.0 * pi);
+  };
+  double total = 0.0;
+  const auto ring_mass = [&](const auto& ring) {
+    for (std::size_t k = 0; k + 1 < ring.size(); ++k) total += edge_mass(ring[k], ring[k + 1]);
+  };
+  for (const auto& polygon : window.shape()) {
+    ring_mass(polygon.outer());
+    for (const auto& hole : polygon.inners()) ring_mass(hole);
+  }
+  return std::clamp(std::abs(total), 0.0, 1.0);
 }
 
 IntensityRaster make_raster(const Bounds& bounds, double pixel_m) {
@@ -82,36 +129,11 @@ void add_kernel_intensity(IntensityRaster& raster, const std::vector<Point>& poi
       }
     }
   }
-  // Edge correction: the kernel mass inside the window around each pixel, on the same
-  // pixels. The Gaussian is separable, so the window mask is convolved row by row, then
-  // column by column.
-  std::vector<double> kernel_1d(static_cast<std::size_t>(2 * span + 1));
-  for (long d = -span; d <= span; ++d)
-    kernel_1d[static_cast<std::size_t>(d + span)] =
-        std::exp(-static_cast<double>(d * d) * px * px / (2.0 * h2)) * px / std::sqrt(2.0 * 3.14159265358979323846 * h2);
-  const auto w = static_cast<long>(raster.width);
-  const auto hgt = static_cast<long>(raster.height);
-  std::vector<double> rows_pass(raster.values.size(), 0.0);
-  for (long row = std::max(0L, r0 - span); row <= std::min(hgt - 1, r1 + span); ++row) {
-    for (long col = std::max(0L, c0 - span); col <= std::min(w - 1, c1 + span); ++col) {
-      double acc = 0.0;
-      for (long d = -span; d <= span; ++d) {
-        const long cc = col + d;
-        if (cc < c0 || cc > c1) continue;
-        if (in_window[static_cast<std::size_t>(row * w + cc)]) acc += kernel_1d[static_cast<std::size_t>(d + span)];
-      }
-      rows_pass[static_cast<std::size_t>(row * w + col)] = acc;
-    }
-  }
+  // Edge correction: the kernel mass inside the window around each pixel centre, from the
+  // window's own edges (see gaussian_window_mass), not from the pixel mask.
   for (const auto idx : inside) {
-    const long row = static_cast<long>(idx / raster.width);
-    const long col = static_cast<long>(idx % raster.width);
-    double mass = 0.0;
-    for (long d = -span; d <= span; ++d) {
-      const long rr = row + d;
-      if (rr < 0 || rr >= hgt) continue;
-      mass += kernel_1d[static_cast<std::size_t>(d + span)] * rows_pass[static_cast<std::size_t>(rr * w + col)];
-    }
+    const Point u = centre(idx % raster.width, idx / raster.width);
+    const double mass = gaussian_window_mass(window, u, bandwidth_m);
     raster.values[idx] = mass > 0.0 ? sum[idx] / mass * per_unit : 0.0;
   }
 }

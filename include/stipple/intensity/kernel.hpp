@@ -28,10 +28,16 @@ struct IntensityRaster {
 /// An empty raster covering `bounds` with square pixels of `pixel_m`.
 [[nodiscard]] IntensityRaster make_raster(const Bounds& bounds, double pixel_m);
 
+/// The mass of an isotropic Gaussian of standard deviation `bandwidth_m` centred at `u`
+/// that lies inside `window`, e_h(u) = integral over W of k_h(u - v) dv, from the window's
+/// edges: a signed sum over edges of one-dimensional integrals in polar coordinates about u
+/// (Gauss-Kronrod quadrature, Boost.Math, tolerance 1e-9), for any polygon with holes.
+[[nodiscard]] double gaussian_window_mass(const Window& window, const Point& u, double bandwidth_m);
+
 /// Adds the Gaussian-kernel intensity of `points` in `window` to the pixels whose centres
 /// lie in the window, with Diggle's (1985) uniform edge correction
-/// lambda(u) = sum_i k_h(u - x_i) / e_h(u), e_h(u) = integral over W of k_h(u - v) dv
-/// (computed on the raster's own pixels), scaled by `per_unit` (square metres per unit area).
+/// lambda(u) = sum_i k_h(u - x_i) / e_h(u), e_h(u) from gaussian_window_mass at the pixel
+/// centre, scaled by `per_unit` (square metres per unit area).
 void add_kernel_intensity(IntensityRaster& raster, const std::vector<Point>& points, const Window& window,
                           double bandwidth_m, double per_unit);
 

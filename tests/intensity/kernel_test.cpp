@@ -1,0 +1,86 @@
+// Edge-corrected kernel intensity surfaces (Diggle 1985) against closed forms.
+
+#include "stipple/intensity/kernel.hpp"
+
+#include <algorithm>
+#include <cmath>
+
+#include <boost/geometry.hpp>
+#include <boost/math/distributions/normal.hpp>
+#include <gtest/gtest.h>
+
+namespace stipple {
+namespace {
+
+constexpr double pi = 3.14159265358979323846;
+
+// Gaussian mass of N(u, h^2 I) inside [x0, x1] x [y0, y1]: the product of two normal
+// probabilities, the bivariate isotropic normal being separable (common practice; normal
+// CDF from Boost.Math).
+double box_mass(const Point& u, double h, double x0, double y0, double x1, double y1) {
+  const boost::math::normal law(0.0, h);
+  return (boost::math::cdf(law, x1 - u.x) - boost::math::cdf(law, x0 - u.x)) *
+         (boost::math::cdf(law, y1 - u.y) - boost::math::cdf(law, y0 - u.y));
+}
+
+TEST(GaussianWindowMass, RectangleEqualsTheProductOfNormalProbabilities) {
+  const Window w = Window::rectangle(0, 0, 40, 25);
+  const double h = 6.0;
+  for (const Point u : {Point{20, 12.5}, Point{0.3, 0.2}, Point{1, 12}, Point{39.9, 24.5}, Point{10, 0.0},
+                        Point{5, 5}, Point{38, 3}}) {
+    EXPECT_NEAR(gaussian_window_mass(w, u, h), box_mass(u, h, 0, 0, 40, 25), 1e-9) << u.x << "," << u.y;
+  }
+}
+
+TEST(GaussianWindowMass, PolygonWithHoleIsTheSumOfItsRectangles) {
+  // L shape [0,60]x[0,40] u [0,30]x[40,70], less the hole [10,20]x[10,20]: masses add over
+  // disjoint rectangles (common practice).
+  BgMultiPolygon shape;
+  boost::geometry::read_wkt(
+      "MULTIPOLYGON(((0 0,0 70,30 70,30 40,60 40,60 0,0 0),(10 10,20 10,20 20,10 20,10 10)))", shape);
+  const Window w = Window::from_polygons(shape, "test");
+  const double h = 5.0;
+  for (const Point u : {Point{25, 38}, Point{9, 15}, Point{31, 41}, Point{2, 68}, Point{58, 2}, Point{15, 21}}) {
+    const double expected = box_mass(u, h, 0, 0, 60, 40) + box_mass(u, h, 0, 40, 30, 70) -
+                            box_mass(u, h, 10, 10, 20, 20);
+    EXPECT_NEAR(gaussian_window_mass(w, u, h), expected, 1e-9) << u.x << "," << u.y;
+  }
+}
+
+TEST(KernelSurface, EdgePixelsAreCorrectedWithinHalfAPercent) {
+  // Diggle (1985): lambda(u) = sum_i k_h(u - x_i) / e_h(u). Every pixel within 4h of a
+  // sighting, edge pixels included, must equal that with the exact e_h from the closed form
+  // above to within 0.5% (the pixel-mask estimate was off by up to 2.6% at edge pixels).
+  // The sightings lie more than 8h apart, so no pixel there misses a kernel the surface
+  // truncates at 4h. The raster is shared with other plots (as in a survey surface), so
+  // this plot's edges cut through pixels.
+  const Window w = Window::rectangle(0, 0, 50, 30);
+  const std::vector<Point> points{{1, 1}, {49, 29}, {25, 15}, {1, 29}, {49, 1}, {0.2, 15}};
+  const double h = 1.5;
+  IntensityRaster raster = make_raster(Bounds{-0.4, -0.3, 50.0, 30.0}, 0.5);
+  add_kernel_intensity(raster, points, w, h, 1.0);
+  double worst = 0.0;
+  std::size_t compared = 0;
+  for (std::size_t row = 0; row < raster.height; ++row) {
+    for (std::size_t col = 0; col < raster.width; ++col) {
+      const Point u{raster.x_min + (static_cast<double>(col) + 0.5) * raster.pixel_m,
+                    raster.y_max - (static_cast<double>(row) + 0.5) * raster.pixel_m};
+      double sum = 0.0;
+      bool near = false;
+      for (const auto& p : points) {
+        const double d2 = (u.x - p.x) * (u.x - p.x) + (u.y - p.y) * (u.y - p.y);
+        near = near || d2 <= 16.0 * h * h;
+        sum += std::exp(-d2 / (2 * h * h)) / (2 * pi * h * h);
+      }
+      if (!near) continue;
+      const double expected = sum / box_mass(u, h, 0, 0, 50, 30);
+      worst = std::max(worst, std::abs(raster.values[row * raster.width + col] / expected - 1.0));
+      ++compared;
+    }
+  }
+  EXPECT_GT(compared, 1000u);
+  EXPECT_LT(worst, 0.005);
+}
+
+}  // namespace
+}  // namespace stipple
