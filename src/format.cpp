@@ -1,6 +1,8 @@
 #include "stipple/format.hpp"
 
 #include <algorithm>
+#include <array>
+#include <charconv>
 #include <cctype>
 #include <cmath>
 #include <locale>
@@ -34,6 +36,13 @@ std::string format_general(double value) {
   out.imbue(std::locale::classic());
   out << value;
   return out.str();
+}
+
+std::string format_round_trip(double value) {
+  if (!std::isfinite(value)) return {};
+  std::array<char, 32> buffer{};
+  const auto result = std::to_chars(buffer.data(), buffer.data() + buffer.size(), value);
+  return std::string(buffer.data(), result.ptr);
 }
 
 std::string format_p_value(double p) {

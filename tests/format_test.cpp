@@ -1,11 +1,24 @@
 #include "stipple/format.hpp"
 
+#include <cmath>
+#include <charconv>
+#include <string>
+
 #include <gtest/gtest.h>
 
 namespace stipple {
 namespace {
 
 // The test main sets a decimal-comma locale where available: these must still print '.'.
+// Locale-independent parse of a whole field (std::from_chars; strtod follows the C locale
+// and refuses subnormals).
+double read_double(const std::string& text) {
+  double value = 0.0;
+  const auto result = std::from_chars(text.data(), text.data() + text.size(), value);
+  EXPECT_EQ(result.ptr, text.data() + text.size()) << text;
+  return value;
+}
+
 TEST(Format, IgnoresTheLocaleDecimalSeparator) {
   EXPECT_EQ(format_fixed(1.25, 2), "1.25");
   EXPECT_EQ(format_general(1.5), "1.5");
@@ -14,6 +27,19 @@ TEST(Format, IgnoresTheLocaleDecimalSeparator) {
   EXPECT_EQ(format_significant(0.99999999, 4), "1.000");
   EXPECT_EQ(format_p_value(0.00001), "<0.0001");
   EXPECT_EQ(format_p_value(0.3219583), "0.322");
+}
+
+TEST(Format, RoundTripFormReadsBackTheSameDouble) {
+  // C++17 [charconv]: std::to_chars without a precision gives the shortest text that
+  // from_chars reads back as the same value.
+  for (const double x : {1.0 / 3.0, 2.0 / 3.0 * 1e-7, 123456.789012345678, 5e-324, 1.7976931348623157e308,
+                         -0.1, 0.95, 55.59999999999999}) {
+    const std::string text = format_round_trip(x);
+    EXPECT_EQ(read_double(text), x) << text;
+    EXPECT_EQ(text.find(','), std::string::npos);
+  }
+  EXPECT_EQ(format_round_trip(0.5), "0.5");
+  EXPECT_EQ(format_round_trip(std::nan("")), "");
 }
 
 TEST(Format, CsvFieldsAreQuotedWhenNeeded) {

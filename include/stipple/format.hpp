@@ -12,6 +12,9 @@ namespace stipple {
 [[nodiscard]] std::string format_significant(double value, int digits);
 /// `value` in the shortest general form ("1.5", "0.001", "2e-07"), '.' as separator.
 [[nodiscard]] std::string format_general(double value);
+/// `value` in the shortest form that reads back as the same double (std::to_chars), '.' as
+/// separator; empty for NaN and infinities. Every number in a CSV output goes through it.
+[[nodiscard]] std::string format_round_trip(double value);
 /// A p-value for people: 3 significant digits, "<0.0001" below that.
 [[nodiscard]] std::string format_p_value(double p);
 

@@ -50,14 +50,7 @@ bool glob_match(const std::string& pattern, const std::string& text, std::string
   return true;
 }
 
-std::string number(double v) {
-  if (!std::isfinite(v)) return "";
-  std::ostringstream out;
-  out.imbue(std::locale::classic());
-  out.precision(10);
-  out << v;
-  return out.str();
-}
+std::string number(double v) { return format_round_trip(v); }
 
 std::string stem_of(const std::string& name) {
   std::string s = name;

@@ -182,6 +182,7 @@ Action add_effort_command(CLI::App& app) {
     double effort = 0.0;
     double target_cv = 0.0;
     double dispersion = 3.0;
+    std::string json;
   };
   auto o = std::make_shared<Options>();
   CLI::App* c = app.add_subcommand(
@@ -190,9 +191,14 @@ Action add_effort_command(CLI::App& app) {
   c->add_option("--pilot-effort", o->effort, "Pilot effort: km of line (L0) or point visits")->required();
   c->add_option("--target-cv", o->target_cv, "Target coefficient of variation of density")->required();
   c->add_option("--dispersion", o->dispersion, "Dispersion factor b (3 is the rule of thumb)")->capture_default_str();
+  c->add_option("--json", o->json, "Write the result as JSON to FILE ('-' = standard output)");
   return [c, o] {
     if (!c->parsed()) return -1;
     const double needed = effort_for_target_cv(o->detections, o->effort, o->target_cv, o->dispersion);
+    if (!o->json.empty()) {
+      write_output(o->json, effort_json(o->detections, o->effort, o->target_cv, o->dispersion, needed), {});
+      if (o->json == "-") return 0;
+    }
     std::cout << "effort needed for CV " << format_general(o->target_cv) << ": " << format_significant(needed, 4)
               << " (same unit as --pilot-effort), about " << format_significant(needed / o->effort * o->detections, 4)
               << " detections; L = (b / CV^2) (L0 / n0), b = " << format_general(o->dispersion)

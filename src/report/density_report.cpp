@@ -290,27 +290,27 @@ std::string density_table(const LoadedSurvey& survey, const DensityResult& resul
 std::string density_csv(const DensityResult& result) {
   std::ostringstream out;
   out.imbue(std::locale::classic());
-  out.precision(10);
+  const auto v = [](double x) { return format_round_trip(x); };
   out << "scope,plot,species,count,area,unit,intensity,ci_low,ci_high,detection_probability,"
          "corrected_intensity,corrected_ci_low,corrected_ci_high,correction_method,"
          "homogeneity_statistic,homogeneity_df,homogeneity_p_value\n";
   const std::string unit(unit_name(result.unit));
   for (const auto& e : result.estimates) {
     out << "plot," << csv_field(e.plot) << "," << csv_field(e.species.value_or("")) << ","
-        << e.count << "," << e.area << "," << unit << "," << e.intensity << "," << e.ci.lower
-        << "," << e.ci.upper << "," << e.corrected.detection_probability << ","
-        << e.corrected.intensity << "," << e.corrected.ci.lower << "," << e.corrected.ci.upper
+        << e.count << "," << v(e.area) << "," << unit << "," << v(e.intensity) << "," << v(e.ci.lower)
+        << "," << v(e.ci.upper) << "," << v(e.corrected.detection_probability) << ","
+        << v(e.corrected.intensity) << "," << v(e.corrected.ci.lower) << "," << v(e.corrected.ci.upper)
         << "," << correction_method_name(e.corrected.method) << ",,,\n";
   }
   for (const auto& p : result.pooled) {
-    out << "pooled,," << csv_field(p.species.value_or("")) << "," << p.count << "," << p.area
-        << "," << unit << "," << p.intensity << "," << p.ci.lower << "," << p.ci.upper << ","
-        << p.corrected.detection_probability << "," << p.corrected.intensity << ","
-        << p.corrected.ci.lower << "," << p.corrected.ci.upper << ","
+    out << "pooled,," << csv_field(p.species.value_or("")) << "," << p.count << "," << v(p.area)
+        << "," << unit << "," << v(p.intensity) << "," << v(p.ci.lower) << "," << v(p.ci.upper) << ","
+        << v(p.corrected.detection_probability) << "," << v(p.corrected.intensity) << ","
+        << v(p.corrected.ci.lower) << "," << v(p.corrected.ci.upper) << ","
         << correction_method_name(p.corrected.method) << ",";
     if (p.homogeneity)
-      out << p.homogeneity->chi_square.statistic << "," << p.homogeneity->chi_square.df << ","
-          << p.homogeneity->p_value;
+      out << v(p.homogeneity->chi_square.statistic) << "," << v(p.homogeneity->chi_square.df) << ","
+          << v(p.homogeneity->p_value);
     else
       out << ",,";
     out << "\n";

@@ -248,9 +248,8 @@ std::string randomness_table(const LoadedSurvey& survey, const RandomnessResult&
 std::string randomness_curves_csv(const RandomnessResult& result) {
   std::ostringstream out;
   out.imbue(std::locale::classic());
-  out.precision(10);
   out << "plot,species,species_b,function,r,observed,theoretical,low,high,global_low,global_high\n";
-  const auto value = [](double v) { return std::isfinite(v) ? format_general(v) : std::string(); };
+  const auto value = [](double v) { return format_round_trip(v); };
   const auto emit = [&](const std::string& plot, const std::string& species, const std::string& species_b,
                         const std::string& function, const EnvelopeResult& e) {
     for (std::size_t k = 0; k < e.r.size(); ++k) {

@@ -190,14 +190,28 @@ std::string transect_table(const LoadedTransects& input, const TransectResult& r
   return out.str();
 }
 
+std::string effort_json(double pilot_detections, double pilot_effort, double target_cv, double dispersion,
+                        double effort_needed) {
+  Json doc;
+  doc["stipple_version"] = STIPPLE_VERSION;
+  doc["command"] = "effort";
+  doc["pilot_detections"] = pilot_detections;
+  doc["pilot_effort"] = pilot_effort;
+  doc["target_cv"] = target_cv;
+  doc["dispersion"] = dispersion;
+  doc["effort_needed"] = effort_needed;
+  doc["detections_expected"] = effort_needed / pilot_effort * pilot_detections;
+  doc["method"] = "L = (b / CV^2) (L0 / n0) (Buckland et al. 2001)";
+  return doc.dump(2) + "\n";
+}
+
 std::string transect_csv(const TransectResult& result) {
   std::ostringstream out;
   out.imbue(std::locale::classic());
-  out.precision(10);
   out << "species,stratum,model,adjustment_terms,n,effort,truncation,esw,effective_area,detection_probability,"
          "encounter_rate,encounter_rate_cv,mean_cluster_size,density,density_cv,density_ci_low,density_ci_high,"
          "abundance,abundance_ci_low,abundance_ci_high,unit\n";
-  const auto v = [](double x) { return std::isfinite(x) ? format_general(x) : std::string(); };
+  const auto v = [](double x) { return format_round_trip(x); };
   for (const auto& e : result.results) {
     const DetectionModel& m = e.fit.function.model();
     out << csv_field(e.species.value_or("")) << "," << csv_field(e.stratum.value_or("")) << ","

@@ -2,6 +2,10 @@
 // it refuses (message naming the file, layer, field or feature; exit code 2).
 
 #include <fstream>
+#include <sstream>
+#include <charconv>
+#include <string>
+#include <vector>
 
 #include <gtest/gtest.h>
 #include <nlohmann/json.hpp>
@@ -330,6 +334,66 @@ TEST(CliBadInput, BadOptionValues) {
   EXPECT_EQ(run_cli(f.sightings + " --plots " + f.plots + " --unit acre").exit_code, 2);
   expect_refused(run_cli(f.sightings + " --plots " + f.plots + " --confidence 1.2"),
                  "--confidence must lie strictly between 0 and 1");
+}
+
+}  // namespace
+}  // namespace stipple
+
+namespace stipple {
+namespace {
+
+using test::run_cli;
+using test::sample;
+
+// Locale-independent parse of a whole field (std::from_chars; strtod follows the C locale
+// and refuses subnormals).
+double read_double(const std::string& text) {
+  double value = 0.0;
+  const auto result = std::from_chars(text.data(), text.data() + text.size(), value);
+  EXPECT_EQ(result.ptr, text.data() + text.size()) << text;
+  return value;
+}
+
+std::vector<std::vector<std::string>> csv_rows(const std::string& text) {
+  std::vector<std::vector<std::string>> rows;
+  std::istringstream in(text);
+  std::string line;
+  while (std::getline(in, line)) {
+    std::vector<std::string> fields;
+    std::string field;
+    std::istringstream cells(line);
+    while (std::getline(cells, field, ',')) fields.push_back(field);
+    if (!line.empty() && line.back() == ',') fields.emplace_back();
+    rows.push_back(std::move(fields));
+  }
+  return rows;
+}
+
+TEST(MachineReadableOutputs, CsvNumbersRoundTripTheJsonDoubles) {
+  // JSON numbers are written by nlohmann::json with round-trip precision; every CSV number
+  // must read back as the very same double (C++17 std::to_chars shortest form).
+  const std::string density = "density " + sample("reserve.gpkg") + " --plots " + sample("reserve.gpkg") +
+                              " --detection " + sample("detection.csv");
+  const auto json = nlohmann::json::parse(run_cli(density + " --json -").out);
+  const auto rows = csv_rows(run_cli(density + " --csv -").out);
+  ASSERT_GT(rows.size(), json["estimates"].size());
+  for (std::size_t i = 0; i < json["estimates"].size(); ++i) {
+    const auto& e = json["estimates"][i];
+    const auto& row = rows[i + 1];  // header first
+    EXPECT_EQ(read_double(row[6]), e["intensity"].get<double>());
+    EXPECT_EQ(read_double(row[7]), e["ci"][0].get<double>());
+    EXPECT_EQ(read_double(row[8]), e["ci"][1].get<double>());
+    EXPECT_EQ(read_double(row[11]), e["corrected_ci"][0].get<double>());
+  }
+  const std::string transect = "transect " + sample("transects.gpkg") + " --lines " + sample("transects.gpkg") +
+                               " --distance-field distance --size-field size";
+  const auto tj = nlohmann::json::parse(run_cli(transect + " --json -").out);
+  const auto tr = csv_rows(run_cli(transect + " --csv -").out);
+  ASSERT_EQ(tr.size(), tj["results"].size() + 1);
+  for (std::size_t i = 0; i < tj["results"].size(); ++i) {
+    EXPECT_EQ(read_double(tr[i + 1][13]), tj["results"][i]["density"].get<double>());
+    EXPECT_EQ(read_double(tr[i + 1][15]), tj["results"][i]["density_ci"][0].get<double>());
+  }
 }
 
 }  // namespace

@@ -99,6 +99,14 @@ TEST(TransectCli, EffortPlanning) {
   ASSERT_EQ(r.exit_code, 0) << r.err;
   EXPECT_NE(r.out.find("75"), std::string::npos) << r.out;
   expect_refused(run_cli("effort --pilot-detections 0 --pilot-effort 10 --target-cv 0.1"), "effort planning needs positive");
+  // The same as JSON, at full precision.
+  const auto j = run_cli("effort --pilot-detections 40 --pilot-effort 10 --target-cv 0.1 --json -");
+  ASSERT_EQ(j.exit_code, 0) << j.err;
+  const auto doc = nlohmann::json::parse(j.out);
+  EXPECT_EQ(doc["command"], "effort");
+  EXPECT_NEAR(doc["effort_needed"].get<double>(), 75.0, 1e-9);
+  EXPECT_NEAR(doc["detections_expected"].get<double>(), 300.0, 1e-9);
+  EXPECT_EQ(doc["dispersion"].get<double>(), 3.0);
 }
 
 struct TransectFixture {
