@@ -198,7 +198,9 @@ std::string randomness_table(const LoadedSurvey& survey, const RandomnessResult&
   for (const auto& g : result.results) {
     const EnvelopeResult* l = g.l_envelope();
     if (!l || l->departures.empty()) continue;
-    if (!any_departure) out << "Distances where L leaves the global envelope\n";
+    if (!any_departure)
+      out << "Distances where L leaves the global envelope (extreme rank length: L leaves it exactly when the\n"
+             "ERL test rejects at alpha; the verdict follows the DCLF test, so the two can differ near alpha)\n";
     any_departure = true;
     out << "  " << g.plot << " " << species_text(g.species) << ": "
         << ranges_text(*l, "clustered", "regular") << "\n";
@@ -210,7 +212,8 @@ std::string randomness_table(const LoadedSurvey& survey, const RandomnessResult&
     for (const auto& i : result.interactions)
       pairs.add_row({i.plot, i.species_a, i.species_b, format_p_value(i.p_value), i.direction,
                      ranges_text(i.cross_l, "association", "segregation")});
-    out << pairs.render() << "\n";
+    out << pairs.render();
+    out << "  p: DCLF test on cross-L; distances: where cross-L leaves its global (ERL) envelope\n\n";
   }
   if (!result.skipped.empty()) {
     out << "Skipped\n";
