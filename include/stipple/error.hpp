@@ -32,6 +32,7 @@ enum class ExitCode : int {
   some_inputs_failed = 1,
   bad_input = 2,
   internal_error = 70,
+  output_error = 74,  ///< standard output could not be written (BSD sysexits EX_IOERR)
 };
 
 }  // namespace stipple

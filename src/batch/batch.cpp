@@ -365,6 +365,8 @@ void write_batch_outputs(const std::string& out_dir, const std::vector<BatchFile
     Json in;
     in["name"] = r.input.name;
     std::error_code ec;
+    in["path"] = fs::absolute(r.input.path, ec).lexically_normal().string();
+    in["plots_path"] = fs::absolute(r.input.plots_path, ec).lexically_normal().string();
     in["sha256"] = fs::is_regular_file(r.input.path, ec) ? Json(sha256_file(r.input.path)) : Json(nullptr);
     in["plots"] = r.input.plots_path == r.input.path ? Json(nullptr) : Json(fs::path(r.input.plots_path).filename().string());
     in["plots_sha256"] = r.input.plots_path != r.input.path && fs::is_regular_file(r.input.plots_path, ec)
@@ -513,6 +515,27 @@ void merge_batch_outputs(const std::vector<std::string>& shard_dirs, const std::
       }
     }
   }
+}
+
+std::vector<std::string> files_a_report_must_not_replace(const std::string& dir) {
+  std::vector<std::string> files;
+  std::error_code ec;
+  for (auto it = fs::recursive_directory_iterator(dir, ec); !ec && it != fs::recursive_directory_iterator();
+       it.increment(ec)) {
+    if (it->path().filename() == "report.html" && it->path().parent_path() == fs::path(dir)) continue;
+    if (it->is_regular_file(ec)) files.push_back(it->path().string());
+  }
+  std::ifstream in(fs::path(dir) / "run.json");
+  if (in) {
+    const Json run = Json::parse(in, nullptr, false);
+    if (!run.is_discarded() && run.contains("inputs")) {
+      for (const auto& input : run["inputs"]) {
+        for (const char* key : {"path", "plots_path"})
+          if (input.contains(key) && input[key].is_string()) files.push_back(input[key].get<std::string>());
+      }
+    }
+  }
+  return files;
 }
 
 }  // namespace stipple

@@ -295,7 +295,7 @@ Action add_report_command(CLI::App& app) {
   return [c, dir, output] {
     if (!c->parsed()) return -1;
     const std::string target = output->empty() ? (std::filesystem::path(*dir) / "report.html").string() : *output;
-    write_file_safely(target, batch_report_html(*dir), {});
+    write_file_safely(target, batch_report_html(*dir), files_a_report_must_not_replace(*dir));
     std::cout << "report written to " << target << "\n";
     return 0;
   };

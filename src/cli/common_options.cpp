@@ -3,6 +3,7 @@
 #include <filesystem>
 #include <iostream>
 
+#include "stipple/error.hpp"
 #include "stipple/io/output.hpp"
 
 namespace stipple::cli {
@@ -85,6 +86,27 @@ std::vector<std::string> input_paths(const CommonOptions& o) {
   std::vector<std::string> paths{o.sightings};
   if (!o.plots.empty()) paths.push_back(o.plots);
   return paths;
+}
+
+void check_outputs(const std::vector<std::pair<std::string, std::string>>& outputs,
+                   const std::vector<std::string>& inputs) {
+  std::vector<std::pair<std::string, std::string>> seen;  // flag, resolved path
+  for (const auto& [flag, value] : outputs) {
+    if (value.empty()) continue;
+    std::string resolved = value;
+    if (value != "-") {
+      std::error_code ec;
+      resolved = std::filesystem::weakly_canonical(checked_output_path(value, inputs), ec).string();
+      if (ec) resolved = value;
+    }
+    for (const auto& [other_flag, other] : seen) {
+      if (other != resolved) continue;
+      throw InputError(flag + " and " + other_flag + " both write to " +
+                       (value == "-" ? std::string("standard output") : "'" + value + "'") +
+                       "; give each output its own file");
+    }
+    seen.emplace_back(flag, resolved);
+  }
 }
 
 void write_output(const std::string& path, const std::string& content,

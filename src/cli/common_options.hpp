@@ -47,6 +47,12 @@ void add_output_options(CLI::App& command, CommonOptions& options);
 /// Every input path named on the command line (outputs must never replace one).
 [[nodiscard]] std::vector<std::string> input_paths(const CommonOptions& options);
 
+/// Checks the output options before any work: no two name the same file (or both standard
+/// output), and each file may be written (checked_output_path). `outputs` are (flag, value)
+/// pairs; empty values are skipped. Throws InputError naming the flags.
+void check_outputs(const std::vector<std::pair<std::string, std::string>>& outputs,
+                   const std::vector<std::string>& inputs);
+
 /// Writes `content` to `path` ("-" = standard output) safely.
 void write_output(const std::string& path, const std::string& content,
                   const std::vector<std::string>& inputs);

@@ -46,6 +46,7 @@ int run_density(const DensityCommandOptions& o) {
     options.detection = DetectionTable::uniform(*single);
   }
 
+  check_outputs({{"--json", o.common.json}, {"--csv", o.common.csv}}, inputs);
   const LoadedSurvey survey = load_survey(to_read_options(o.common));
   const DensityResult result = estimate_density(survey.survey, options);
 

@@ -1,5 +1,6 @@
 // stipple: command-line front end. Parses options, calls the library, maps errors to
-// exit codes (0 ok, 1 some batch inputs failed, 2 bad input or usage, 70 internal error).
+// exit codes (0 ok, 1 some batch inputs failed, 2 bad input or usage, 70 internal error,
+// 74 standard output could not be written).
 
 #include <exception>
 #include <iostream>
@@ -42,7 +43,14 @@ int main(int argc, char** argv) {
     stipple::initialise_gdal();
     for (const auto& action : actions) {
       const int code = action();
-      if (code >= 0) return code;
+      if (code < 0) continue;
+      // A full disk or a closed pipe on standard output is an error, never a silent exit 0.
+      std::cout.flush();
+      if (!std::cout) {
+        std::cerr << "error: standard output: write failed (disk full or pipe closed?)\n";
+        return static_cast<int>(ExitCode::output_error);
+      }
+      return code;
     }
     return static_cast<int>(ExitCode::bad_input);
   } catch (const stipple::InputError& e) {

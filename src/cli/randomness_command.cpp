@@ -61,6 +61,7 @@ int run_randomness(const RandomnessCommandOptions& o) {
     throw InputError("--simulations 0 leaves no envelope or labelling test; use --only quadrat,clark-evans");
 
   const std::vector<std::string> inputs = input_paths(o.common);
+  check_outputs({{"--json", o.common.json}, {"--csv", o.common.csv}, {"--curves", o.curves}}, inputs);
   const LoadedSurvey survey = load_survey(to_read_options(o.common));
   const RandomnessResult result = analyse_randomness(survey.survey, options);
 

@@ -111,15 +111,17 @@ int run_transect(const TransectCommandOptions& o) {
     }
   }
 
+  std::vector<std::string> inputs{o.common.sightings};
+  if (!o.lines.empty()) inputs.push_back(o.lines);
+  if (!o.stations.empty()) inputs.push_back(o.stations);
+  if (read.study_area) inputs.push_back(read.study_area->path);
+  check_outputs({{"--json", o.common.json}, {"--csv", o.common.csv}}, inputs);
+
   const LoadedTransects input = load_transects(read);
   options.study_area_m2 = input.study_area_m2 ? input.study_area_m2 : options.study_area_m2;
   options.stratum_area_m2 = input.stratum_area_m2;
   const TransectResult result = analyse_transects(input.survey, options);
 
-  std::vector<std::string> inputs{o.common.sightings};
-  if (!o.lines.empty()) inputs.push_back(o.lines);
-  if (!o.stations.empty()) inputs.push_back(o.stations);
-  if (read.study_area) inputs.push_back(read.study_area->path);
   const bool stdout_taken = o.common.json == "-" || o.common.csv == "-";
   if (!o.common.json.empty()) write_output(o.common.json, transect_json(input, result), inputs);
   if (!o.common.csv.empty()) write_output(o.common.csv, transect_csv(result), inputs);

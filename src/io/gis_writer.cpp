@@ -18,27 +18,6 @@ using namespace io_detail;
 
 namespace {
 
-// Refuses inputs, and returns a temporary sibling path to write first.
-std::string temporary_for(const std::string& path, const std::vector<std::string>& protected_paths) {
-  write_file_safely(path + ".probe", "", protected_paths);  // checks the folder and the inputs
-  std::error_code ec;
-  fs::remove(path + ".probe", ec);
-  for (const auto& p : protected_paths)
-    if (fs::exists(path, ec) && fs::exists(p, ec) && fs::equivalent(path, p, ec))
-      throw InputError(path + ": refusing to write over an input file");
-  const fs::path target(path);
-  return (target.parent_path() / ("." + target.stem().string() + ".tmp" + target.extension().string())).string();
-}
-
-void finish(const std::string& temporary, const std::string& path) {
-  std::error_code ec;
-  fs::rename(temporary, path, ec);
-  if (ec) {
-    fs::remove(temporary, ec);
-    throw InputError(path + ": cannot be replaced (" + ec.message() + ")");
-  }
-}
-
 OGRMultiPolygon to_ogr(const BgMultiPolygon& shape) {
   OGRMultiPolygon multi;
   for (const auto& polygon : shape) {
@@ -81,12 +60,11 @@ class FixedDate {
 void write_features(const std::string& path, const std::string& crs_wkt,
                     const std::vector<std::unique_ptr<OGRFeature>>* copies,
                     const std::vector<PlotResultFeature>* features, const std::vector<std::string>& protect) {
-  const std::string temporary = temporary_for(path, protect);
+  TemporaryOutput output(checked_output_path(path, protect), true);
+  const std::string& temporary = output.path();
   const FixedDate fixed;
   GDALDriver* driver = GetGDALDriverManager()->GetDriverByName("GPKG");
   if (driver == nullptr) throw Error("GDAL has no GeoPackage driver");
-  std::error_code ec;
-  fs::remove(temporary, ec);
   DatasetPtr ds(driver->Create(temporary.c_str(), 0, 0, 0, GDT_Unknown, nullptr));
   if (!ds) throw InputError(path + ": cannot create GeoPackage (" + last_gdal_message() + ")");
   OGRSpatialReference srs;
@@ -130,7 +108,7 @@ void write_features(const std::string& path, const std::string& crs_wkt,
   }
   if (layer->CommitTransaction() != OGRERR_NONE) throw InputError(path + ": cannot finish writing (" + last_gdal_message() + ")");
   ds.reset();
-  finish(temporary, path);
+  output.commit();
 }
 
 }  // namespace
@@ -165,7 +143,8 @@ void merge_plot_results(const std::vector<std::string>& inputs, const std::strin
 
 void write_geotiff(const std::string& path, const IntensityRaster& raster, const std::string& crs_wkt,
                    const std::string& description, const std::vector<std::string>& protect) {
-  const std::string temporary = temporary_for(path, protect);
+  TemporaryOutput output(checked_output_path(path, protect), true);
+  const std::string& temporary = output.path();
   GDALDriver* driver = GetGDALDriverManager()->GetDriverByName("GTiff");
   if (driver == nullptr) throw Error("GDAL has no GeoTIFF driver");
   CPLStringList options;
@@ -185,7 +164,7 @@ void write_geotiff(const std::string& path, const IntensityRaster& raster, const
                      static_cast<int>(raster.width), static_cast<int>(raster.height), GDT_Float64, 0, 0) != CE_None)
     throw InputError(path + ": write failed (" + last_gdal_message() + ")");
   ds.reset();
-  finish(temporary, path);
+  output.commit();
 }
 
 }  // namespace stipple

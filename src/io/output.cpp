@@ -3,6 +3,7 @@
 #include <filesystem>
 #include <fstream>
 
+#include <stdlib.h>
 #include <unistd.h>
 
 #include <openssl/evp.h>
@@ -43,33 +44,83 @@ bool is_input(const fs::path& target, const std::vector<std::string>& inputs) {
 
 }  // namespace
 
-void write_file_safely(const std::string& path, const std::string& content,
-                       const std::vector<std::string>& inputs) {
+namespace {
+
+std::string kind_of(fs::file_type type) {
+  switch (type) {
+    case fs::file_type::directory: return "a folder";
+    case fs::file_type::block:
+    case fs::file_type::character: return "a device";
+    case fs::file_type::fifo: return "a FIFO (named pipe)";
+    case fs::file_type::socket: return "a socket";
+    default: return "not a regular file";
+  }
+}
+
+}  // namespace
+
+std::string checked_output_path(const std::string& path, const std::vector<std::string>& inputs) {
+  if (path.empty()) throw InputError("an output path is empty");
   const fs::path target(path);
-  if (is_input(target, inputs))
-    throw InputError(path + ": refusing to write over an input file");
   std::error_code ec;
-  if (fs::is_directory(target, ec)) throw InputError(path + ": is a folder, not a file");
-  const fs::path folder = target.has_parent_path() ? target.parent_path() : fs::path(".");
+  fs::path final_path = target;
+  const fs::file_status link = fs::symlink_status(target, ec);
+  if (fs::is_symlink(link)) final_path = fs::weakly_canonical(target, ec);
+  const fs::file_status status = fs::status(final_path, ec);
+  if (fs::exists(status) && !fs::is_regular_file(status)) {
+    throw InputError(path + ": is " + kind_of(status.type()) +
+                     (fs::is_symlink(link) ? " (through a symbolic link)" : "") +
+                     "; stipple writes only regular files");
+  }
+  if (is_input(target, inputs) || is_input(final_path, inputs))
+    throw InputError(path + ": refusing to write over an input file");
+  const fs::path folder = final_path.has_parent_path() ? final_path.parent_path() : fs::path(".");
   if (!fs::is_directory(folder, ec))
     throw InputError(path + ": folder " + folder.string() + " does not exist");
-  const fs::path temporary =
-      folder / ("." + target.filename().string() + ".tmp" + std::to_string(::getpid()));
+  return final_path.string();
+}
+
+TemporaryOutput::TemporaryOutput(std::string final_path, bool keep_extension) : final_(std::move(final_path)) {
+  const fs::path target(final_);
+  const fs::path folder = target.has_parent_path() ? target.parent_path() : fs::path(".");
+  const std::string extension = keep_extension ? target.extension().string() : std::string(".tmp");
+  std::string pattern = (folder / ("." + target.stem().string() + ".XXXXXX" + extension)).string();
+  std::vector<char> name(pattern.begin(), pattern.end());
+  name.push_back('\0');
+  const int fd = ::mkstemps(name.data(), static_cast<int>(extension.size()));
+  if (fd < 0) throw InputError(final_ + ": cannot create a temporary file in folder " + folder.string());
+  ::close(fd);
+  temporary_ = name.data();
+  if (keep_extension) {
+    std::error_code ec;
+    fs::remove(temporary_, ec);
+  }
+}
+
+TemporaryOutput::~TemporaryOutput() {
+  if (committed_) return;
+  std::error_code ec;
+  fs::remove_all(temporary_, ec);
+}
+
+void TemporaryOutput::commit() {
+  std::error_code ec;
+  fs::rename(temporary_, final_, ec);
+  if (ec) throw InputError(final_ + ": cannot be replaced (" + ec.message() + ")");
+  committed_ = true;
+}
+
+void write_file_safely(const std::string& path, const std::string& content,
+                       const std::vector<std::string>& inputs) {
+  TemporaryOutput temporary(checked_output_path(path, inputs));
   {
-    std::ofstream out(temporary, std::ios::binary | std::ios::trunc);
-    if (!out) throw InputError(path + ": cannot write in folder " + folder.string());
+    std::ofstream out(temporary.path(), std::ios::binary | std::ios::trunc);
+    if (!out) throw InputError(path + ": cannot write the temporary file " + temporary.path());
     out << content;
     out.flush();
-    if (!out) {
-      fs::remove(temporary, ec);
-      throw InputError(path + ": write failed (disk full?)");
-    }
+    if (!out) throw InputError(path + ": write failed (disk full?)");
   }
-  fs::rename(temporary, target, ec);
-  if (ec) {
-    fs::remove(temporary, ec);
-    throw InputError(path + ": cannot be replaced (" + ec.message() + ")");
-  }
+  temporary.commit();
 }
 
 std::string sha256_file(const std::string& path) {

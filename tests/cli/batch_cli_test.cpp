@@ -298,5 +298,21 @@ TEST(BatchCli, TransectAnalysisEqualsTheSingleCommand) {
   EXPECT_NE(html.find("Detection functions"), std::string::npos);
 }
 
+TEST(BatchCli, ReportNeverReplacesTheBatchFilesOrItsInputs) {
+  TempDir out;
+  ASSERT_EQ(run_cli(batch(sample("season"), out.file("o"), "--analyses density")).exit_code, 0);
+  const std::string before = read(out.file("o/density.csv"));
+  test::expect_refused(run_cli("report " + out.file("o") + " --output " + out.file("o/density.csv")),
+                       "refusing to write over an input");
+  EXPECT_EQ(read(out.file("o/density.csv")), before);
+  // An input listed in run.json.
+  const auto run = nlohmann::json::parse(read(out.file("o/run.json")));
+  const std::string input = run["inputs"][0]["path"].get<std::string>();
+  const std::string input_bytes = read(input);
+  test::expect_refused(run_cli("report " + out.file("o") + " --output " + input), "refusing to write over an input");
+  EXPECT_EQ(read(input), input_bytes);
+  EXPECT_EQ(run_cli("report " + out.file("o")).exit_code, 0);  // its own report.html is fine
+}
+
 }  // namespace
 }  // namespace stipple

@@ -396,5 +396,26 @@ TEST(MachineReadableOutputs, CsvNumbersRoundTripTheJsonDoubles) {
   }
 }
 
+TEST(OutputSafety, RefusesSpecialFilesAndSharedOutputs) {
+  const std::string density = "density " + sample("reserve.gpkg") + " --plots " + sample("reserve.gpkg");
+  test::TempDir dir;
+  // As root a rename over /dev/null would replace the device node with a regular file.
+  test::expect_refused(run_cli(density + " --json /dev/null"), "/dev/null: is a device");
+  EXPECT_TRUE(std::filesystem::is_character_file("/dev/null"));
+  test::expect_refused(run_cli(density + " --csv " + dir.path().string()), "is a folder");
+  const std::string same = dir.file("out.txt");
+  test::expect_refused(run_cli(density + " --json " + same + " --csv " + same), "--csv and --json both write to");
+  EXPECT_FALSE(std::filesystem::exists(same));
+  test::expect_refused(run_cli(density + " --json - --csv -"), "both write to standard output");
+  test::expect_refused(run_cli(density + " --json " + sample("reserve.gpkg")), "refusing to write over an input");
+}
+
+TEST(OutputSafety, AFailedWriteToStandardOutputIsAnError) {
+  // /dev/full accepts the open and fails every write with ENOSPC (Linux), like a full disk.
+  const auto r = run_cli("density " + sample("reserve.gpkg") + " --plots " + sample("reserve.gpkg") + " >/dev/full");
+  EXPECT_NE(r.exit_code, 0);
+  EXPECT_NE(r.err.find("standard output: write failed"), std::string::npos) << r.err;
+}
+
 }  // namespace
 }  // namespace stipple

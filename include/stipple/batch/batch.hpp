@@ -98,4 +98,9 @@ void write_batch_outputs(const std::string& out_dir, const std::vector<BatchFile
 /// writes (rows ordered by input name, then as each file produced them).
 void merge_batch_outputs(const std::vector<std::string>& shard_dirs, const std::string& out_dir);
 
+/// Everything a report written for the batch folder `dir` must never replace: every file in
+/// the folder except its own report.html, and every input listed in its run.json (`path`,
+/// `plots_path`).
+[[nodiscard]] std::vector<std::string> files_a_report_must_not_replace(const std::string& dir);
+
 }  // namespace stipple
