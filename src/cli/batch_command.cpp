@@ -241,14 +241,16 @@ Action add_batch_command(CLI::App& app) {
   c->add_option("--transect-field", o->transect_field, "transect: transect id field")->capture_default_str();
   c->add_option("--truncate", o->truncate, "transect: truncation distance (m) or percentage (5%)");
   c->add_option("--shard", o->shard_text, "Process only the K-th of N deterministic slices, K/N");
-  c->add_option("--threads", o->threads, "Files processed in parallel (0 = all cores)")->capture_default_str();
+  c->add_option("--threads", o->threads, "Files processed in parallel (0 = all cores)")->check(whole_number(0, 1024))->capture_default_str();
   c->add_flag("--quiet", o->quiet, "No progress output");
   c->add_option("--run-file", o->run_file, "TOML run file with the analyses and options (the command line wins)");
   c->add_flag("--report", o->report, "Also write OUT/report.html");
   c->add_flag("--gis", o->gis, "Also write OUT/plot-results.gpkg: plot polygons with density and test attributes");
   c->add_flag("--surface", o->surfaces, "Also write kernel intensity surfaces per species: OUT/surfaces/*/*.tif");
-  c->add_option("--pixel", o->pixel, "Surface pixel size, metres (default: 1/200 of the plots' extent)");
-  c->add_option("--bandwidth", o->bandwidth, "Kernel bandwidth, metres (default: Scott's rule per plot)");
+  c->add_option("--pixel", o->pixel, "Surface pixel size, metres (default: 1/200 of the plots' extent)")
+      ->check(positive_number());
+  c->add_option("--bandwidth", o->bandwidth, "Kernel bandwidth, metres (default: Scott's rule per plot)")
+      ->check(positive_number());
   c->add_option("--layer", o->common.layer, "Sightings layer in each input");
   c->add_option("--plots-layer", o->common.plots_layer, "Plots layer in each input");
   c->add_option("--plot-field", o->common.plot_field, "Plot-id attribute")->capture_default_str();
@@ -257,16 +259,19 @@ Action add_batch_command(CLI::App& app) {
   c->add_option("--assume-crs", o->common.assume_crs, "CRS of layers that carry none");
   c->add_option("--unit", o->common.unit, "Area unit: m2, ha or km2")->check(CLI::IsMember({"m2", "ha", "km2"}))
       ->capture_default_str();
-  c->add_option("--confidence", o->common.confidence, "Two-sided confidence level")->capture_default_str();
+  c->add_option("--confidence", o->common.confidence, "Two-sided confidence level")
+      ->check(number_between(0.0, 1.0, "e.g. 0.95"))
+      ->capture_default_str();
   c->add_option("--detection", o->detection_file, "CSV of detection probabilities: species, p, optional se");
   c->add_option("--detection-prob", o->detection_prob, "One detection probability for every species");
   c->add_option("--detection-se", o->detection_se, "Standard error of --detection-prob");
-  c->add_option("--simulations", o->simulations, "CSR simulations per group")->capture_default_str();
-  c->add_option("--seed", o->seed, "Seed; each plot's simulations derive their own from it")->capture_default_str();
+  c->add_option("--simulations", o->simulations, "CSR simulations per group")->check(whole_number(0, 1000000))->capture_default_str();
+  c->add_option("--seed", o->seed, "Seed; each plot's simulations derive their own from it")->check(whole_number(0, 18446744073709551615ULL))
+      ->capture_default_str();
   c->add_option("--quadrats", o->quadrats, "Quadrat grid NxM")->capture_default_str();
   c->add_option("--edge-correction", o->edge_correction, "Clark-Evans edge correction: none, donnelly, border")
       ->check(CLI::IsMember({"none", "donnelly", "border"}));
-  c->add_option("--rmax", o->rmax, "Largest distance of the summary functions, metres");
+  c->add_option("--rmax", o->rmax, "Largest distance of the summary functions, metres")->check(positive_number());
   return [c, o] {
     if (!c->parsed()) return -1;
     return run_batch_command(*o, *c);

@@ -1,9 +1,14 @@
 #include "common_options.hpp"
 
+#include <algorithm>
+#include <cctype>
+#include <charconv>
+#include <cmath>
 #include <filesystem>
 #include <iostream>
 
 #include "stipple/error.hpp"
+#include "stipple/format.hpp"
 #include "stipple/io/output.hpp"
 
 namespace stipple::cli {
@@ -55,6 +60,7 @@ void add_output_options(CLI::App& command, CommonOptions& o) {
       ->check(CLI::IsMember({"m2", "ha", "km2"}))
       ->capture_default_str();
   command.add_option("--confidence", o.confidence, "Two-sided confidence level of intervals")
+      ->check(number_between(0.0, 1.0, "e.g. 0.95"))
       ->capture_default_str();
   command.add_option("--json", o.json, "Write JSON results to FILE ('-' = standard output)");
   command.add_option("--csv", o.csv, "Write CSV results to FILE ('-' = standard output)");
@@ -86,6 +92,49 @@ std::vector<std::string> input_paths(const CommonOptions& o) {
   std::vector<std::string> paths{o.sightings};
   if (!o.plots.empty()) paths.push_back(o.plots);
   return paths;
+}
+
+CLI::Validator whole_number(std::uint64_t min, std::uint64_t max) {
+  const std::string range = std::to_string(min) + "-" + std::to_string(max);
+  return CLI::Validator(
+      [min, max, range](std::string& text) -> std::string {
+        std::uint64_t value = 0;
+        const auto [end, error] = std::from_chars(text.data(), text.data() + text.size(), value);
+        const bool digits = !text.empty() && std::all_of(text.begin(), text.end(), [](char c) {
+          return std::isdigit(static_cast<unsigned char>(c)) != 0;
+        });
+        if (!digits || error != std::errc() || end != text.data() + text.size() || value < min || value > max)
+          return "must be a whole number from " + range + " (got '" + text + "')";
+        return {};
+      },
+      "whole number " + range);
+}
+
+CLI::Validator positive_number() {
+  return CLI::Validator(
+      [](std::string& text) -> std::string {
+        double value = 0.0;
+        const auto [end, error] = std::from_chars(text.data(), text.data() + text.size(), value);
+        if (text.empty() || error != std::errc() || end != text.data() + text.size() || !std::isfinite(value) ||
+            !(value > 0.0))
+          return "must be a number greater than 0 (got '" + text + "')";
+        return {};
+      },
+      "number > 0");
+}
+
+CLI::Validator number_between(double low, double high, std::string hint) {
+  const std::string range = format_general(low) + " and " + format_general(high);
+  return CLI::Validator(
+      [low, high, range, hint](std::string& text) -> std::string {
+        double value = 0.0;
+        const auto [end, error] = std::from_chars(text.data(), text.data() + text.size(), value);
+        if (text.empty() || error != std::errc() || end != text.data() + text.size() || !(value > low) ||
+            !(value < high))
+          return "must lie strictly between " + range + " (got '" + text + "')" + (hint.empty() ? "" : "; " + hint);
+        return {};
+      },
+      "number in (" + format_general(low) + ", " + format_general(high) + ")");
 }
 
 void check_outputs(const std::vector<std::pair<std::string, std::string>>& outputs,

@@ -1,4 +1,6 @@
 #pragma once
+
+#include <cstdint>
 // Options shared by every analysis command, and output helpers of the front end.
 
 #include <optional>
@@ -31,6 +33,14 @@ struct CommonOptions {
   std::string csv;
   CLI::Option* plot_field_option = nullptr;
 };
+
+/// A whole number in [min, max], written with digits only (no sign, no exponent): checked on
+/// the text, before CLI11 converts it, so "-1" can never wrap to a huge unsigned value.
+[[nodiscard]] CLI::Validator whole_number(std::uint64_t min, std::uint64_t max);
+/// A finite number strictly greater than 0 (0, negative values and NaN are refused).
+[[nodiscard]] CLI::Validator positive_number();
+/// A finite number strictly between `low` and `high`; `hint` is added to the refusal.
+[[nodiscard]] CLI::Validator number_between(double low, double high, std::string hint = {});
 
 /// Adds SIGHTINGS, the shared input, window, CRS and output options to a subcommand.
 void add_common_options(CLI::App& command, CommonOptions& options);

@@ -79,9 +79,11 @@ Action add_density_command(CLI::App& app) {
   options->se_option = command->add_option("--detection-se", options->detection_se,
                                            "Standard error of --detection-prob");
   command->add_option("--seed", options->seed, "Seed of the Monte Carlo p-values")
+      ->check(whole_number(0, 18446744073709551615ULL))
       ->capture_default_str();
   command->add_option("--simulations", options->simulations,
                       "Monte Carlo draws for p-values when expected counts are below 5")
+      ->check(whole_number(0, 1000000))
       ->capture_default_str();
   return [command, options] {
     if (!command->parsed()) return -1;

@@ -104,13 +104,14 @@ Action add_randomness_command(CLI::App& app) {
       ->check(CLI::IsMember({"kaplan-meier", "border"}))
       ->capture_default_str();
   command->add_option("--simulations", o->simulations, "CSR simulations and random labellings")
-      ->capture_default_str();
-  command->add_option("--seed", o->seed, "Seed of every simulation")->capture_default_str();
+      ->check(whole_number(0, 1000000))->capture_default_str();
+  command->add_option("--seed", o->seed, "Seed of every simulation")->check(whole_number(0, 18446744073709551615ULL))->capture_default_str();
   command->add_option("--threads", o->threads, "Threads (0 = all cores; results do not depend on it)")
-      ->capture_default_str();
+      ->check(whole_number(0, 1024))->capture_default_str();
   command->add_option("--rmax", o->rmax,
                       "Largest distance of the summary functions, metres (default: the smaller of "
-                      "a quarter of the window's shorter side and 4/sqrt(intensity))");
+                      "a quarter of the window's shorter side and 4/sqrt(intensity))")
+      ->check(positive_number());
   command->add_option("--only", o->only, "Run only these: quadrat, clark-evans, envelope, interactions")
       ->delimiter(',');
   command->add_option("--curves", o->curves,

@@ -32,8 +32,9 @@ Action add_surface_command(CLI::App& app) {
       ->check(CLI::IsMember({"m2", "ha", "km2"}))
       ->capture_default_str();
   c->add_option("--out", o->out, "Output folder for <species>.tif")->required();
-  c->add_option("--pixel", o->pixel, "Pixel size, metres (default: 1/200 of the plots' extent)");
-  c->add_option("--bandwidth", o->bandwidth, "Gaussian kernel bandwidth, metres (default: Scott's rule per plot)");
+  c->add_option("--pixel", o->pixel, "Pixel size, metres (default: 1/200 of the plots' extent)")->check(positive_number());
+  c->add_option("--bandwidth", o->bandwidth, "Gaussian kernel bandwidth, metres (default: Scott's rule per plot)")
+      ->check(positive_number());
   return [c, o] {
     if (!c->parsed()) return -1;
     if (o->pixel < 0.0 || o->bandwidth < 0.0) throw InputError("--pixel and --bandwidth must be positive");

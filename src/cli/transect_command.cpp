@@ -159,18 +159,21 @@ Action add_transect_command(CLI::App& app) {
       ->capture_default_str();
   c->add_option("--adjustments", o->adjustments, "Adjustment series: none, cosine, polynomial, hermite")->delimiter(',')
       ->capture_default_str();
-  c->add_option("--max-terms", o->max_terms, "Most adjustment terms per model")->capture_default_str();
+  c->add_option("--max-terms", o->max_terms, "Most adjustment terms per model")->check(whole_number(0, 5))->capture_default_str();
   c->add_flag("--pool-detection", o->pool_detection,
               "One detection function shared by all species and strata; encounter rates stay specific");
   c->add_option("--study-area", o->study_area, "Study area for abundance: a number (in --unit) or a polygon layer");
   c->add_option("--study-area-layer", o->study_area_layer, "Layer of --study-area");
   c->add_option("--bootstrap", o->bootstrap, "Non-parametric bootstrap replicates over transects (0 = none)")
+      ->check(whole_number(0, 100000))
       ->capture_default_str();
-  c->add_option("--seed", o->seed, "Seed of the bootstrap")->capture_default_str();
-  c->add_option("--threads", o->threads, "Threads (0 = all cores; results do not depend on it)")->capture_default_str();
+  c->add_option("--seed", o->seed, "Seed of the bootstrap")->check(whole_number(0, 18446744073709551615ULL))->capture_default_str();
+  c->add_option("--threads", o->threads, "Threads (0 = all cores; results do not depend on it)")->check(whole_number(0, 1024))->capture_default_str();
   c->add_option("--max-offset", o->max_offset, "Sightings farther than this (m) from every transect are refused")
+      ->check(positive_number())
       ->capture_default_str();
-  c->add_option("--target-cv", o->target_cv, "Also report the effort needed for this CV of density");
+  c->add_option("--target-cv", o->target_cv, "Also report the effort needed for this CV of density (a fraction, e.g. 0.15)")
+      ->check(number_between(0.0, 1.0, "a CV is a fraction: 0.15 for 15%"));
   c->add_option("--figures", o->figures, "Folder for detection-function and Q-Q figures (SVG and PNG)");
   return [c, o] {
     if (!c->parsed()) return -1;
@@ -189,10 +192,12 @@ Action add_effort_command(CLI::App& app) {
   auto o = std::make_shared<Options>();
   CLI::App* c = app.add_subcommand(
       "effort", "Transect effort needed for a target CV of density, from a pilot survey");
-  c->add_option("--pilot-detections", o->detections, "Detections in the pilot survey (n0)")->required();
-  c->add_option("--pilot-effort", o->effort, "Pilot effort: km of line (L0) or point visits")->required();
-  c->add_option("--target-cv", o->target_cv, "Target coefficient of variation of density")->required();
-  c->add_option("--dispersion", o->dispersion, "Dispersion factor b (3 is the rule of thumb)")->capture_default_str();
+  c->add_option("--pilot-detections", o->detections, "Detections in the pilot survey (n0)")->required()->check(positive_number());
+  c->add_option("--pilot-effort", o->effort, "Pilot effort: km of line (L0) or point visits")->required()->check(positive_number());
+  c->add_option("--target-cv", o->target_cv, "Target coefficient of variation of density (a fraction, e.g. 0.15)")
+      ->required()
+      ->check(number_between(0.0, 1.0, "a CV is a fraction: 0.15 for 15%"));
+  c->add_option("--dispersion", o->dispersion, "Dispersion factor b (3 is the rule of thumb)")->check(positive_number())->capture_default_str();
   c->add_option("--json", o->json, "Write the result as JSON to FILE ('-' = standard output)");
   return [c, o] {
     if (!c->parsed()) return -1;

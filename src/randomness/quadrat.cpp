@@ -1,5 +1,9 @@
 #include "stipple/randomness/quadrat.hpp"
 
+#include <cctype>
+#include <charconv>
+#include <string_view>
+
 #include <algorithm>
 #include <cmath>
 #include <numeric>
@@ -13,20 +17,24 @@ namespace bg = boost::geometry;
 namespace stipple {
 
 std::pair<std::size_t, std::size_t> parse_quadrat_grid(const std::string& text) {
+  // Each factor is a run of digits checked on its own before the product is formed, so
+  // neither a sign nor an overflow can slip through.
+  const auto factor = [&](std::string_view digits) -> std::size_t {
+    std::size_t value = 0;
+    const auto [end, error] = std::from_chars(digits.data(), digits.data() + digits.size(), value);
+    if (digits.empty() || error != std::errc() || end != digits.data() + digits.size() ||
+        !std::isdigit(static_cast<unsigned char>(digits.front())))
+      throw InputError("--quadrats must look like 4x4, two whole numbers (got '" + text + "')");
+    if (value < 1 || value > 10000)
+      throw InputError("--quadrats needs between 2 and 10000 cells, each side 1 to 10000 (got '" + text + "')");
+    return value;
+  };
   const auto x = text.find_first_of("xX");
-  std::size_t nx = 0;
-  std::size_t ny = 0;
-  try {
-    if (x == std::string::npos) throw std::invalid_argument(text);
-    std::size_t used = 0;
-    nx = std::stoul(text.substr(0, x), &used);
-    if (used != x) throw std::invalid_argument(text);
-    ny = std::stoul(text.substr(x + 1), &used);
-    if (used != text.size() - x - 1) throw std::invalid_argument(text);
-  } catch (const std::exception&) {
-    throw InputError("--quadrats must look like 4x4 (got '" + text + "')");
-  }
-  if (nx < 1 || ny < 1 || nx * ny < 2 || nx * ny > 10000)
+  if (x == std::string::npos) throw InputError("--quadrats must look like 4x4, two whole numbers (got '" + text + "')");
+  const std::string_view view(text);
+  const std::size_t nx = factor(view.substr(0, x));
+  const std::size_t ny = factor(view.substr(x + 1));
+  if (nx * ny < 2 || nx * ny > 10000)
     throw InputError("--quadrats needs between 2 and 10000 cells (got '" + text + "')");
   return {nx, ny};
 }

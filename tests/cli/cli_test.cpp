@@ -333,7 +333,7 @@ TEST(CliBadInput, BadOptionValues) {
   Fixture f;
   EXPECT_EQ(run_cli(f.sightings + " --plots " + f.plots + " --unit acre").exit_code, 2);
   expect_refused(run_cli(f.sightings + " --plots " + f.plots + " --confidence 1.2"),
-                 "--confidence must lie strictly between 0 and 1");
+                 "--confidence: must lie strictly between 0 and 1");
 }
 
 }  // namespace
@@ -415,6 +415,37 @@ TEST(OutputSafety, AFailedWriteToStandardOutputIsAnError) {
   const auto r = run_cli("density " + sample("reserve.gpkg") + " --plots " + sample("reserve.gpkg") + " >/dev/full");
   EXPECT_NE(r.exit_code, 0);
   EXPECT_NE(r.err.find("standard output: write failed"), std::string::npos) << r.err;
+}
+
+TEST(OptionRanges, CountsSeedsAndSizesAreRefusedOutsideTheirRange) {
+  // Negative counts once wrapped to 18446744073709551615 (an endless run) or reached an
+  // internal error; a grid of -1 x -2 multiplied to 2 cells. Each is now refused by name.
+  const std::string plots = sample("reserve.gpkg") + " --plots " + sample("reserve.gpkg");
+  const std::string lines = sample("transects.gpkg") + " --lines " + sample("transects.gpkg");
+  const std::pair<std::string, std::string> cases[] = {
+      {"randomness " + plots + " --simulations -1", "--simulations: must be a whole number from 0-1000000 (got '-1')"},
+      {"randomness " + plots + " --simulations 2.5", "--simulations: must be a whole number"},
+      {"randomness " + plots + " --seed -5", "--seed: must be a whole number"},
+      {"randomness " + plots + " --threads 99999", "--threads: must be a whole number from 0-1024"},
+      {"randomness " + plots + " --rmax 0", "--rmax: must be a number greater than 0 (got '0')"},
+      {"randomness " + plots + " --rmax nan", "--rmax: must be a number greater than 0"},
+      {"randomness " + plots + " --quadrats -1x-2", "--quadrats must look like 4x4"},
+      {"randomness " + plots + " --quadrats 99999x1", "each side 1 to 10000"},
+      {"density " + plots + " --simulations -1", "--simulations: must be a whole number"},
+      {"density " + plots + " --confidence 1.5", "--confidence: must lie strictly between 0 and 1 (got '1.5')"},
+      {"transect " + lines + " --bootstrap -3", "--bootstrap: must be a whole number from 0-100000 (got '-3')"},
+      {"transect " + lines + " --max-terms 9", "--max-terms: must be a whole number from 0-5"},
+      {"effort --pilot-detections 40 --pilot-effort 10 --target-cv 15", "a CV is a fraction"},
+      {"effort --pilot-detections -4 --pilot-effort 10 --target-cv 0.1", "--pilot-detections: must be a number greater than 0"},
+      {"surface " + plots + " --out /tmp/never-written --pixel 0", "--pixel: must be a number greater than 0"},
+      {"surface " + plots + " --out /tmp/never-written --bandwidth 0", "--bandwidth: must be a number greater than 0"},
+      {"batch " + sample("season") + " --out /tmp/never-written --simulations -1", "--simulations: must be a whole number"},
+  };
+  for (const auto& [args, message] : cases) {
+    SCOPED_TRACE(args);
+    test::expect_refused(run_cli(args), message);
+  }
+  EXPECT_FALSE(std::filesystem::exists("/tmp/never-written"));
 }
 
 }  // namespace

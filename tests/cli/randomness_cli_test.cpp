@@ -120,7 +120,7 @@ TEST(RandomnessCliBadInput, BadOptions) {
   expect_refused(run_cli(demo("--quadrats 0x4")), "--quadrats needs between 2 and 10000 cells");
   expect_refused(run_cli(demo("--quadrats four")), "--quadrats must look like 4x4");
   expect_refused(run_cli(demo("--only quadrats")), "--only takes quadrat, clark-evans, envelope");
-  expect_refused(run_cli(demo("--rmax -3")), "--rmax must be positive");
+  expect_refused(run_cli(demo("--rmax -3")), "--rmax: must be a number greater than 0");
   EXPECT_EQ(run_cli(demo("--edge-correction toroidal")).exit_code, 2);
   EXPECT_EQ(run_cli(demo("--pair-correction translation")).exit_code, 2);
   EXPECT_EQ(run_cli(demo("--distance-correction hanisch")).exit_code, 2);

@@ -98,7 +98,7 @@ TEST(TransectCli, EffortPlanning) {
   const auto r = run_cli("effort --pilot-detections 40 --pilot-effort 10 --target-cv 0.1");
   ASSERT_EQ(r.exit_code, 0) << r.err;
   EXPECT_NE(r.out.find("75"), std::string::npos) << r.out;
-  expect_refused(run_cli("effort --pilot-detections 0 --pilot-effort 10 --target-cv 0.1"), "effort planning needs positive");
+  expect_refused(run_cli("effort --pilot-detections 0 --pilot-effort 10 --target-cv 0.1"), "--pilot-detections: must be a number greater than 0");
   // The same as JSON, at full precision.
   const auto j = run_cli("effort --pilot-detections 40 --pilot-effort 10 --target-cv 0.1 --json -");
   ASSERT_EQ(j.exit_code, 0) << j.err;
