@@ -50,20 +50,40 @@ std::vector<double> curve_of(const SummaryCurves& c, std::size_t which) {
 
 const char* function_names[] = {"L", "K", "g", "G", "F", "J"};
 
+// A note when `simulations` cannot give p < alpha for the named test, else empty.
+std::string too_few_simulations(const std::string& test, std::size_t simulations, double alpha, bool two_sided) {
+  const std::size_t needed = minimum_simulations(alpha, two_sided);
+  if (simulations >= needed) return {};
+  return "verdict undetermined: with " + std::to_string(simulations) + " simulations the " + test +
+         " cannot give a p-value below alpha = " + format_general(alpha) + " (smallest attainable " +
+         format_significant((two_sided ? 2.0 : 1.0) / static_cast<double>(simulations + 1), 3) +
+         "); run at least " + std::to_string(needed);
+}
+
 // The DCLF test on L when the envelope ran, else Clark-Evans, else the quadrat test.
-void decide_verdict(GroupResult& g, double alpha) {
+void decide_verdict(GroupResult& g, double alpha, std::size_t simulations) {
+  std::string cannot_tell;
   if (const EnvelopeResult* l = g.l_envelope()) {
     g.verdict_basis = "DCLF test on L";
+    cannot_tell = too_few_simulations("DCLF test", l->simulations, alpha, false);
     if (l->dclf_p_value < alpha) g.verdict = l->mean_deviation > 0.0 ? "clustered" : "regular";
   } else if (g.clark_evans) {
     const double p = g.clark_evans->monte_carlo_p_value.value_or(g.clark_evans->p_value);
     g.verdict_basis = "Clark-Evans test";
+    if (g.clark_evans->monte_carlo_p_value)
+      cannot_tell = too_few_simulations("Monte Carlo Clark-Evans test", simulations, alpha, true);
     if (std::isnan(p)) g.verdict = "undetermined";
     else if (p < alpha) g.verdict = g.clark_evans->ratio < 1.0 ? "clustered" : "regular";
   } else if (g.quadrat) {
     g.verdict_basis = "quadrat test";
+    if (g.quadrat->monte_carlo_p_value)
+      cannot_tell = too_few_simulations("Monte Carlo quadrat test", simulations, alpha, true);
     if (g.quadrat->p_value < alpha)
       g.verdict = g.quadrat->chi_square.p_upper < g.quadrat->chi_square.p_lower ? "clustered" : "regular";
+  }
+  if (!cannot_tell.empty()) {
+    g.verdict = "undetermined";
+    g.notes.push_back(cannot_tell);
   }
 }
 
@@ -93,7 +113,7 @@ GroupResult analyse_pattern(const std::vector<Point>& points, const Window& wind
   }
 
   if (!options.run_clark_evans && !options.run_envelope) {  // quadrat only
-    decide_verdict(g, options.alpha);
+    decide_verdict(g, options.alpha, options.simulations);
     return g;
   }
   const bool need_simulations = options.simulations > 0;
@@ -153,7 +173,7 @@ GroupResult analyse_pattern(const std::vector<Point>& points, const Window& wind
     }
   }
 
-  decide_verdict(g, options.alpha);
+  decide_verdict(g, options.alpha, options.simulations);
   return g;
 }
 
@@ -225,7 +245,16 @@ InteractionResult random_labelling_test(const std::vector<Point>& a, const std::
   result.p_value = result.cross_l.dclf_p_value;
   if (result.p_value < options.alpha)
     result.direction = result.cross_l.mean_deviation > 0.0 ? "association" : "segregation";
+  result.note = too_few_simulations("random-labelling test", options.simulations, options.alpha, false);
+  if (!result.note.empty()) result.direction = "undetermined";
   return result;
+}
+
+std::size_t minimum_simulations(double alpha, bool two_sided) {
+  const double k = two_sided ? 2.0 : 1.0;
+  auto n = static_cast<std::size_t>(std::max(0.0, std::floor(k / alpha) - 2.0));
+  while (!(k / static_cast<double>(n + 1) < alpha)) ++n;
+  return n;
 }
 
 RandomnessResult analyse_randomness(const Survey& survey, const RandomnessOptions& options) {

@@ -1,5 +1,6 @@
 #include "stipple/report/randomness_report.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <locale>
 #include <sstream>
@@ -146,6 +147,7 @@ std::string randomness_json(const LoadedSurvey& survey, const RandomnessResult& 
     j["mad_p_value"] = i.cross_l.mad_p_value;
     j["direction"] = i.direction;
     j["departures"] = departures_json(i.cross_l, "association", "segregation");
+    j["note"] = i.note.empty() ? Json(nullptr) : Json(i.note);
     interactions.push_back(std::move(j));
   }
   doc["interactions"] = std::move(interactions);
@@ -224,11 +226,26 @@ std::string randomness_table(const LoadedSurvey& survey, const RandomnessResult&
   // Small quadrat cells are common in small plots: one line for all, details in the JSON.
   std::size_t small_cells = 0;
   std::vector<std::string> notes;
+  // A note shared by several groups (e.g. too few simulations) is printed once, with a count.
+  std::vector<std::pair<std::string, std::vector<std::string>>> shared;  // note, groups
   for (const auto& g : result.results) {
     if (g.quadrat && g.quadrat->cells_too_small) ++small_cells;
-    for (const auto& n : g.notes)
-      if (!(g.quadrat && g.quadrat->cells_too_small && n.rfind("quadrat cells are small", 0) == 0))
-        notes.push_back(g.plot + " " + species_text(g.species) + ": " + n);
+    for (const auto& n : g.notes) {
+      if (g.quadrat && g.quadrat->cells_too_small && n.rfind("quadrat cells are small", 0) == 0) continue;
+      const std::string group = g.plot + " " + species_text(g.species);
+      auto it = std::find_if(shared.begin(), shared.end(), [&](const auto& e) { return e.first == n; });
+      if (it == shared.end()) shared.push_back({n, {group}});
+      else it->second.push_back(group);
+    }
+  }
+  for (const auto& [note, groups] : shared) {
+    notes.push_back(groups.size() == 1 ? groups.front() + ": " + note
+                                       : std::to_string(groups.size()) + " groups: " + note);
+  }
+  std::size_t undetermined_pairs = 0;
+  for (const auto& i : result.interactions) {
+    if (i.note.empty()) continue;
+    if (undetermined_pairs++ == 0) notes.push_back("between species: " + i.note);
   }
   if (small_cells > 0)
     notes.push_back(std::to_string(small_cells) + " of " + std::to_string(result.results.size()) +

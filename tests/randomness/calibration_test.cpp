@@ -115,6 +115,29 @@ TEST(Calibration, ClarkEvansBorderReportsACalibratedPValue) {
   EXPECT_EQ(g.verdict, "undetermined");
 }
 
+TEST(MonteCarlo, TooFewSimulationsLeaveTheVerdictUndetermined) {
+  // Hope (1968): the smallest Monte Carlo p-value is 1 / (N + 1) one-sided, 2 / (N + 1)
+  // two-sided; rejecting at p < alpha needs N >= 20 (one-sided) or 40 (two-sided) at 0.05.
+  EXPECT_EQ(minimum_simulations(0.05, false), 20u);
+  EXPECT_EQ(minimum_simulations(0.05, true), 40u);
+  EXPECT_EQ(minimum_simulations(0.01, false), 100u);
+  EXPECT_EQ(minimum_simulations(0.1, false), 10u);
+  // A strongly clustered pattern (Thomas, as in the power test) with 19 simulations: the
+  // DCLF test cannot reject, so the verdict is undetermined, never `random`; with 20 it is
+  // clustered.
+  const Window w = irregular_window();
+  Engine engine(derive_seed(2024, "undetermined"));
+  const std::vector<Point> points = simulate_thomas(w, 8e-4, 8.0, 4.0, engine);
+  RandomnessOptions o = quick_options();
+  o.simulations = 19;
+  const GroupResult few = analyse_pattern(points, w, o, "undetermined");
+  EXPECT_EQ(few.verdict, "undetermined");
+  ASSERT_FALSE(few.notes.empty());
+  EXPECT_NE(few.notes.back().find("run at least 20"), std::string::npos) << few.notes.back();
+  o.simulations = 20;
+  EXPECT_EQ(analyse_pattern(points, w, o, "undetermined").verdict, "clustered");
+}
+
 TEST(Power, ThomasClustersAreDetected) {
   // Thomas process, 8 parents per ha, 8 offspring, sigma 4 m: strongly clustered.
   const Window w = irregular_window();

@@ -69,7 +69,8 @@ struct InteractionResult {
   double rmax_m = 0.0;
   EnvelopeResult cross_l;     ///< cross-L of b around a against random labellings
   double p_value = 1.0;       ///< DCLF test of cross-L under random labelling
-  std::string direction = "none";  ///< association | segregation | none, at alpha
+  std::string direction = "none";  ///< association | segregation | none | undetermined, at alpha
+  std::string note;                ///< why the direction is undetermined, when it is
 };
 
 struct SkippedGroup {
@@ -88,13 +89,20 @@ struct RandomnessResult {
   std::vector<SkippedGroup> skipped;
 };
 
+/// The fewest simulations N with which a Monte Carlo rank test can reject at p < alpha:
+/// the smallest attainable p-value is 1 / (N + 1) for a one-sided test (DCLF, MAD) and
+/// 2 / (N + 1) for the two-sided Clark-Evans and quadrat tests (Hope 1968), so N must
+/// exceed 1 / alpha - 1 (one-sided) or 2 / alpha - 1 (two-sided): 20 and 40 at alpha = 0.05.
+[[nodiscard]] std::size_t minimum_simulations(double alpha, bool two_sided);
+
 /// Runs the quadrat, Clark-Evans and envelope tests for each species of each plot and
 /// for all species together, and random-labelling tests for each pair of species in a
 /// plot. CSR is simulated as the binomial process (same n, same window); every simulation
 /// has its own seed derived from (seed, plot, species, index), so results are identical for
 /// any thread count. The verdict follows the DCLF test on L when the envelope ran (direction
 /// from the sign of the mean deviation from the simulation mean), else the Clark-Evans test,
-/// else the quadrat test.
+/// else the quadrat test; it is `undetermined`, with a note giving minimum_simulations, when
+/// that test is a Monte Carlo one whose simulations cannot reach p < alpha.
 [[nodiscard]] RandomnessResult analyse_randomness(const Survey& survey,
                                                   const RandomnessOptions& options);
 
