@@ -251,7 +251,11 @@ LoadedTransects load_transects(const TransectReadOptions& options) {
     if (distance_index >= 0) {
       const auto d = number(*feature, distance_index, context, "distance");
       if (!d) throw InputError(context + ": distance field '" + *options.distance_field + "' is empty");
+      if (!std::isfinite(*d)) throw InputError(context + ": distance is not a finite number");
       if (*d < 0.0) throw InputError(context + ": distance " + format_general(*d) + " is negative");
+      if (*d > options.max_offset_m)
+        throw InputError(context + ": distance " + format_general(*d) + " m is more than --max-offset " +
+                         format_general(options.max_offset_m) + " m (wrong unit or a typing error?)");
       o.distance_m = *d;
       if (angle_index >= 0) {
         const auto a = number(*feature, angle_index, context, "angle");
@@ -271,6 +275,13 @@ LoadedTransects load_transects(const TransectReadOptions& options) {
             o.transect = t;
           }
         }
+        if (best > options.max_offset_m)
+          throw InputError(context + ": lies " + format_fixed(best, 0) +
+                           " m from the nearest transect, more than --max-offset " +
+                           format_general(options.max_offset_m) + " m (wrong CRS or wrong transect file?)");
+      } else {
+        throw InputError(context + ": has neither a transect id ('" + options.transect_field +
+                         "') nor a location, so its transect is unknown");
       }
     } else {
       if (!location) throw InputError(context + ": has no location and no recorded distance");

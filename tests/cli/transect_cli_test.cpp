@@ -140,6 +140,21 @@ TEST(TransectCliBadInput, NegativeOrMissingDistance) {
                  "feature 31: distance field 'distance' is empty");
 }
 
+TEST(TransectCliBadInput, ImplausibleDistanceOrUnknownTransect) {
+  // One recorded distance of 1e12 m once gave a density of 3e-8 per km2 with exit 0; a
+  // sighting with neither a transect id nor a location was counted on the first transect;
+  // a recorded distance with a far location skipped --max-offset.
+  TransectFixture f;
+  const std::string tail = " --lines " + f.lines + " --distance-field distance";
+  expect_refused(run_cli("transect " + f.many("512000,6290500,hare,A,1e12\n") + tail),
+                 "feature 31: distance 1e+12 m is more than --max-offset 1000 m");
+  expect_refused(run_cli("transect " + f.many("512000,6290500,hare,A,nan\n") + tail), "feature 31: distance");
+  expect_refused(run_cli("transect " + f.many(",,hare,,12\n") + tail),
+                 "feature 31: has neither a transect id ('transect') nor a location");
+  expect_refused(run_cli("transect " + f.many("530000,6290500,hare,,12\n") + tail),
+                 "feature 31: lies 17500 m from the nearest transect, more than --max-offset 1000 m");
+}
+
 TEST(TransectCliBadInput, DistanceBeyondAllBins) {
   TransectFixture f;
   expect_refused(run_cli("transect " + f.many("512000,6290500,hare,A,140\n") + " --lines " + f.lines +
