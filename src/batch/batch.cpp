@@ -208,8 +208,9 @@ BatchFileResult run_one(const BatchInput& input, const BatchOptions& options) {
     for (std::size_t k = 0; k <= s.species.size(); ++k) {
       const std::optional<std::size_t> species = k < s.species.size() ? std::optional<std::size_t>(k) : std::nullopt;
       const std::string name = species ? file_name_safe(s.species[k]) : std::string("all-species");
-      r.surfaces.emplace_back("surfaces/" + stem + "/" + name + ".tif",
-                              intensity_surface(s, species, per_unit, options.pixel_m, options.bandwidth_m));
+      IntensityRaster raster = intensity_surface(s, species, per_unit, options.pixel_m, options.bandwidth_m);
+      for (const auto& w : raster.warnings) r.warnings.push_back("surface of " + name + ": " + w);
+      r.surfaces.emplace_back("surfaces/" + stem + "/" + name + ".tif", std::move(raster));
     }
   }
   if (options.figures) {
@@ -396,7 +397,7 @@ void write_batch_outputs(const std::string& out_dir, const std::vector<BatchFile
         const fs::path target = fs::path(out_dir) / path;
         make_folder(target.parent_path().string());
         write_geotiff(target.string(), raster, r.survey.crs.wkt,
-                      "intensity per " + std::string(unit_name(options.density.unit)) + ", Gaussian kernel, Scott bandwidth per plot, Diggle edge correction",
+                      "intensity per " + std::string(unit_name(options.density.unit)) + ", Gaussian kernel, Scott bandwidth per plot, local edge correction (Jones 1993)",
                       protected_paths);
       }
     }

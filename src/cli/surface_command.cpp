@@ -37,22 +37,27 @@ Action add_surface_command(CLI::App& app) {
       ->check(positive_number());
   return [c, o] {
     if (!c->parsed()) return -1;
-    if (o->pixel < 0.0 || o->bandwidth < 0.0) throw InputError("--pixel and --bandwidth must be positive");
     const LoadedSurvey survey = load_survey(to_read_options(o->common));
     const double per_unit = square_metres_per(parse_area_unit(o->common.unit));
-    make_folder(o->out);
     const Survey& s = survey.survey;
+    // Every surface is computed before the folder is made, so a refusal leaves nothing behind.
+    std::vector<std::pair<std::string, IntensityRaster>> rasters;
     for (std::size_t k = 0; k <= s.species.size(); ++k) {
       const std::optional<std::size_t> species = k < s.species.size() ? std::optional<std::size_t>(k) : std::nullopt;
-      const IntensityRaster raster =
-          intensity_surface(s, species, per_unit, o->pixel > 0.0 ? std::optional<double>(o->pixel) : std::nullopt,
-                            o->bandwidth > 0.0 ? std::optional<double>(o->bandwidth) : std::nullopt);
-      const std::string name = species ? file_name_safe(s.species[k]) : "all-species";
+      rasters.emplace_back(species ? file_name_safe(s.species[k]) : "all-species",
+                           intensity_surface(s, species, per_unit,
+                                             o->pixel > 0.0 ? std::optional<double>(o->pixel) : std::nullopt,
+                                             o->bandwidth > 0.0 ? std::optional<double>(o->bandwidth) : std::nullopt));
+    }
+    make_folder(o->out);
+    for (const auto& [name, raster] : rasters) {
       const std::string path = (std::filesystem::path(o->out) / (name + ".tif")).string();
       write_geotiff(path, raster, survey.crs.wkt,
-                    "intensity per " + o->common.unit + ", Gaussian kernel, Scott bandwidth per plot, Diggle edge correction",
+                    "intensity per " + o->common.unit +
+                        ", Gaussian kernel, Scott bandwidth per plot, local edge correction (Jones 1993)",
                     input_paths(o->common));
       std::cout << path << "\n";
+      for (const auto& w : raster.warnings) std::cerr << "warning: " << name << ": " << w << "\n";
     }
     return 0;
   };

@@ -7,6 +7,7 @@
 #include <boost/math/quadrature/gauss_kronrod.hpp>
 
 #include "stipple/error.hpp"
+#include "stipple/format.hpp"
 
 namespace stipple {
 
@@ -88,8 +89,8 @@ IntensityRaster make_raster(const Bounds& bounds, double pixel_m) {
   return r;
 }
 
-void add_kernel_intensity(IntensityRaster& raster, const std::vector<Point>& points, const Window& window,
-                          double bandwidth_m, double per_unit) {
+double add_kernel_intensity(IntensityRaster& raster, const std::vector<Point>& points, const Window& window,
+                            double bandwidth_m, double per_unit) {
   if (!(bandwidth_m > 0.0)) throw AnalysisError("the kernel bandwidth must be positive");
   const double h2 = bandwidth_m * bandwidth_m;
   const double norm = 1.0 / (2.0 * 3.14159265358979323846 * h2);
@@ -116,8 +117,12 @@ void add_kernel_intensity(IntensityRaster& raster, const std::vector<Point>& poi
     }
   }
   const long span = static_cast<long>(std::ceil(reach / px));
+  // Local edge correction: each sighting's kernel is divided by its own mass inside the
+  // window, e_h(x_i), computed from the window's edges (gaussian_window_mass).
   std::vector<double> sum(raster.values.size(), 0.0);
   for (const auto& p : points) {
+    const double mass = gaussian_window_mass(window, p, bandwidth_m);
+    const double weight = mass > 0.0 ? norm / mass : 0.0;
     const long pc = col_of(p.x), pr = row_of(p.y);
     for (long row = std::max(0L, pr - span); row <= std::min(static_cast<long>(raster.height) - 1, pr + span); ++row) {
       for (long col = std::max(0L, pc - span); col <= std::min(static_cast<long>(raster.width) - 1, pc + span); ++col) {
@@ -125,17 +130,14 @@ void add_kernel_intensity(IntensityRaster& raster, const std::vector<Point>& poi
         if (!in_window[idx]) continue;
         const Point u = centre(static_cast<std::size_t>(col), static_cast<std::size_t>(row));
         const double d2 = (u.x - p.x) * (u.x - p.x) + (u.y - p.y) * (u.y - p.y);
-        sum[idx] += norm * std::exp(-d2 / (2.0 * h2));
+        sum[idx] += weight * std::exp(-d2 / (2.0 * h2));
       }
     }
   }
-  // Edge correction: the kernel mass inside the window around each pixel centre, from the
-  // window's own edges (see gaussian_window_mass), not from the pixel mask.
-  for (const auto idx : inside) {
-    const Point u = centre(idx % raster.width, idx / raster.width);
-    const double mass = gaussian_window_mass(window, u, bandwidth_m);
-    raster.values[idx] = mass > 0.0 ? sum[idx] / mass * per_unit : 0.0;
-  }
+  for (const auto idx : inside) raster.values[idx] = sum[idx] * per_unit;
+  double integral = 0.0;
+  for (const auto idx : inside) integral += raster.values[idx];
+  return integral * px * px / per_unit;
 }
 
 IntensityRaster intensity_surface(const Survey& survey, std::optional<std::size_t> species, double per_unit,
@@ -146,17 +148,40 @@ IntensityRaster intensity_surface(const Survey& survey, std::optional<std::size_
     const Bounds& b = plot.window.bounds();
     all = {std::min(all.xmin, b.xmin), std::min(all.ymin, b.ymin), std::max(all.xmax, b.xmax), std::max(all.ymax, b.ymax)};
   }
-  const double pixel = pixel_m.value_or(std::max(0.1, std::min(all.width(), all.height()) / 200.0));
-  IntensityRaster raster = make_raster(all, pixel);
+  // Each plot's points and bandwidth first: the pixel must be finer than every kernel.
+  std::vector<std::vector<Point>> points(survey.plots.size());
+  std::vector<double> bandwidths(survey.plots.size());
+  double finest = std::numeric_limits<double>::infinity();
   for (std::size_t p = 0; p < survey.plots.size(); ++p) {
     const MarkedPattern& pattern = survey.patterns[p];
-    std::vector<Point> points;
     for (std::size_t i = 0; i < pattern.points.size(); ++i)
-      if (!species || pattern.marks[i] == *species) points.push_back(pattern.points[i]);
-    double h = bandwidth_m.value_or(scott_bandwidth(points));
+      if (!species || pattern.marks[i] == *species) points[p].push_back(pattern.points[i]);
+    double h = bandwidth_m.value_or(scott_bandwidth(points[p]));
     if (!(h > 0.0)) h = scott_bandwidth(pattern.points);
     if (!(h > 0.0)) h = std::sqrt(survey.plots[p].window.area_m2()) / 4.0;
-    add_kernel_intensity(raster, points, survey.plots[p].window, h, per_unit);
+    bandwidths[p] = h;
+    if (!points[p].empty()) finest = std::min(finest, h);
+  }
+  if (pixel_m && std::isfinite(finest) && *pixel_m > finest)
+    throw InputError("the pixel size " + format_significant(*pixel_m, 3) + " m is larger than the kernel bandwidth " +
+                     format_significant(finest, 3) + " m: the surface would not keep its mass; use a pixel of " +
+                     format_significant(finest / 2.0, 3) + " m or less");
+  double pixel = pixel_m.value_or(std::max(0.1, std::min(all.width(), all.height()) / 200.0));
+  // By default a tenth of the finest bandwidth (pixel-centre sums then keep each plot's mass
+  // to about 1%), but no finer than 20 million pixels over the extent.
+  if (!pixel_m && std::isfinite(finest))
+    pixel = std::max(std::min(pixel, finest / 10.0), std::sqrt(all.width() * all.height() / 20e6));
+  IntensityRaster raster = make_raster(all, pixel);
+  for (std::size_t p = 0; p < survey.plots.size(); ++p) {
+    const double integral =
+        add_kernel_intensity(raster, points[p], survey.plots[p].window, bandwidths[p], per_unit);
+    const auto n = static_cast<double>(points[p].size());
+    if (n > 0.0 && std::abs(integral - n) > 0.02 * n) {
+      raster.warnings.push_back("plot '" + survey.plots[p].id + "': the surface integrates to " +
+                                format_significant(integral, 4) + " against " + std::to_string(points[p].size()) +
+                                " sightings (more than 2% off: a plot narrower than a few pixels, or a kernel "
+                                "mostly outside the plot)");
+    }
   }
   return raster;
 }

@@ -445,6 +445,9 @@ TEST(OptionRanges, CountsSeedsAndSizesAreRefusedOutsideTheirRange) {
     SCOPED_TRACE(args);
     test::expect_refused(run_cli(args), message);
   }
+  // A pixel coarser than a kernel would lose the surface's mass.
+  test::expect_refused(run_cli("surface " + plots + " --out /tmp/never-written --pixel 50"),
+                       "is larger than the kernel bandwidth");
   EXPECT_FALSE(std::filesystem::exists("/tmp/never-written"));
 }
 

@@ -3,6 +3,7 @@
 
 #include <cstddef>
 #include <optional>
+#include <string>
 #include <vector>
 
 #include "stipple/geometry/point.hpp"
@@ -19,6 +20,8 @@ struct IntensityRaster {
   std::size_t width = 0;
   std::size_t height = 0;
   std::vector<double> values;
+  /// Plots whose surface does not integrate to within 2% of their sightings.
+  std::vector<std::string> warnings;
 };
 
 /// Scott's rule for an isotropic Gaussian kernel: h = n^(-1/6) sqrt((s_x^2 + s_y^2) / 2)
@@ -35,17 +38,23 @@ struct IntensityRaster {
 [[nodiscard]] double gaussian_window_mass(const Window& window, const Point& u, double bandwidth_m);
 
 /// Adds the Gaussian-kernel intensity of `points` in `window` to the pixels whose centres
-/// lie in the window, with Diggle's (1985) uniform edge correction
-/// lambda(u) = sum_i k_h(u - x_i) / e_h(u), e_h(u) from gaussian_window_mass at the pixel
-/// centre, scaled by `per_unit` (square metres per unit area).
-void add_kernel_intensity(IntensityRaster& raster, const std::vector<Point>& points, const Window& window,
+/// lie in the window, with the local (mass-preserving) edge correction
+/// lambda(u) = sum_i k_h(u - x_i) / e_h(x_i), e_h(x) = integral over W of k_h(x - v) dv from
+/// gaussian_window_mass (Diggle 1985; Jones 1993; van Lieshout 2012: the surface integrates
+/// over W to exactly n), scaled by `per_unit` (square metres per unit area). Returns the
+/// surface's integral over the window's pixels (expected number of sightings), to check its
+/// mass.
+double add_kernel_intensity(IntensityRaster& raster, const std::vector<Point>& points, const Window& window,
                           double bandwidth_m, double per_unit);
 
 /// The surface of one species (or all together) over every plot of a survey: one raster
 /// covering all plots, each plot smoothed in its own window with its own Scott bandwidth
 /// (or `bandwidth_m`); a plot with fewer than 2 such sightings uses the bandwidth of all its
 /// sightings, and one with none is 0. `pixel_m` defaults to 1/200 of the shorter side of
-/// the plots' extent. Values per unit area (`per_unit` square metres).
+/// the plots' extent, or a tenth of the smallest bandwidth when that is finer (at most 20
+/// million pixels), so every kernel spans many pixels; a given `pixel_m` larger than a bandwidth is refused
+/// (InputError). A plot whose surface integrates to more than 2% away from its count gets a
+/// warning in the raster. Values per unit area (`per_unit` square metres).
 [[nodiscard]] IntensityRaster intensity_surface(const Survey& survey, std::optional<std::size_t> species,
                                                 double per_unit, std::optional<double> pixel_m,
                                                 std::optional<double> bandwidth_m);
