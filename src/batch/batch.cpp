@@ -1,12 +1,14 @@
 #include "stipple/batch/batch.hpp"
 
 #include <algorithm>
+#include <charconv>
 #include <filesystem>
 #include <fstream>
 #include <map>
 #include <mutex>
 #include <regex>
 #include <sstream>
+#include <string_view>
 
 #include <nlohmann/json.hpp>
 
@@ -88,6 +90,11 @@ Json with_file(const std::string& name, const Json& record) {
 BatchFileResult run_one(const BatchInput& input, const BatchOptions& options) {
   BatchFileResult r;
   r.input = input;
+  // Checksums first, inside the per-file isolation: an unreadable file fails alone.
+  std::error_code ec;
+  if (fs::is_regular_file(input.path, ec)) r.sha256 = sha256_file(input.path);
+  if (input.plots_path != input.path && fs::is_regular_file(input.plots_path, ec))
+    r.plots_sha256 = sha256_file(input.plots_path);
   SurveyReadOptions read = options.read;
   read.sightings = SourceSpec{input.path, options.read.sightings.layer};
   read.plots = SourceSpec{input.plots_path, options.read.plots ? options.read.plots->layer : std::nullopt};
@@ -302,8 +309,15 @@ std::pair<std::size_t, std::size_t> parse_shard(const std::string& text) {
   const auto slash = text.find('/');
   try {
     if (slash == std::string::npos) throw std::invalid_argument(text);
-    const std::size_t k = std::stoul(text.substr(0, slash));
-    const std::size_t n = std::stoul(text.substr(slash + 1));
+    const auto whole = [](std::string_view digits) {
+      std::size_t value = 0;
+      const auto [end, error] = std::from_chars(digits.data(), digits.data() + digits.size(), value);
+      if (digits.empty() || error != std::errc() || end != digits.data() + digits.size() || digits.front() == '-')
+        throw std::invalid_argument(std::string(digits));
+      return value;
+    };
+    const std::size_t k = whole(std::string_view(text).substr(0, slash));
+    const std::size_t n = whole(std::string_view(text).substr(slash + 1));
     if (k < 1 || n < 1 || k > n) throw std::invalid_argument(text);
     return {k, n};
   } catch (const std::exception&) {
@@ -318,13 +332,21 @@ std::vector<BatchFileResult> run_batch(const std::vector<BatchInput>& inputs, co
   std::size_t done = 0;
   parallel_for(inputs.size(), options.threads, [&](std::size_t i) {
     BatchFileResult r;
-    try {
-      r = run_one(inputs[i], options);
-    } catch (const Error& e) {
+    // Any failure of one input, of any type, is recorded; the other inputs go on.
+    const auto failed = [&](const std::string& reason) {
       r = BatchFileResult{};
       r.input = inputs[i];
       r.ok = false;
-      r.failure = e.what();
+      r.failure = reason;
+    };
+    try {
+      r = run_one(inputs[i], options);
+    } catch (const Error& e) {
+      failed(e.what());
+    } catch (const std::exception& e) {
+      failed(std::string("internal error: ") + e.what());
+    } catch (...) {
+      failed("internal error of unknown type");
     }
     results[i] = std::move(r);
     const std::lock_guard<std::mutex> lock(mutex);
@@ -368,10 +390,9 @@ void write_batch_outputs(const std::string& out_dir, const std::vector<BatchFile
     std::error_code ec;
     in["path"] = fs::absolute(r.input.path, ec).lexically_normal().string();
     in["plots_path"] = fs::absolute(r.input.plots_path, ec).lexically_normal().string();
-    in["sha256"] = fs::is_regular_file(r.input.path, ec) ? Json(sha256_file(r.input.path)) : Json(nullptr);
+    in["sha256"] = r.sha256 ? Json(*r.sha256) : Json(nullptr);
     in["plots"] = r.input.plots_path == r.input.path ? Json(nullptr) : Json(fs::path(r.input.plots_path).filename().string());
-    in["plots_sha256"] = r.input.plots_path != r.input.path && fs::is_regular_file(r.input.plots_path, ec)
-                             ? Json(sha256_file(r.input.plots_path)) : Json(nullptr);
+    in["plots_sha256"] = r.plots_sha256 ? Json(*r.plots_sha256) : Json(nullptr);
     in["crs"] = r.ok ? Json(r.crs) : Json(nullptr);
     in["status"] = r.ok ? "ok" : "failed";
     in["warnings"] = r.warnings;

@@ -107,6 +107,13 @@ TEST(BatchCli, ACorruptFileIsReportedWhileOthersFinish) {
   EXPECT_NE(density.find("glade.gpkg,glade,birch"), std::string::npos);
 }
 
+TEST(BatchCli, ShardCountsAreWholeNumbers) {
+  // "1/-2" once parsed to 1 of 18446744073709551614 shards: an empty run with exit 0.
+  TempDir out;
+  test::expect_refused(run_cli(batch(sample("season"), out.file("o"), "--shard 1/-2")), "--shard must be K/N");
+  test::expect_refused(run_cli(batch(sample("season"), out.file("o"), "--shard -1/2")), "--shard must be K/N");
+}
+
 TEST(BatchCli, GisOutputsReadBackThroughGdal) {
   TempDir out;
   ASSERT_EQ(run_cli(batch(sample("season"), out.file("o"), "--gis --surface --unit ha")).exit_code, 0);

@@ -60,6 +60,8 @@ struct BatchFileResult {
   BatchInput input;
   bool ok = false;
   std::string failure;             ///< one line, when !ok
+  std::optional<std::string> sha256;        ///< of the input file, when it is a readable file
+  std::optional<std::string> plots_sha256;  ///< of a separate plots file
   std::vector<std::string> density_rows;
   std::vector<std::string> density_records;     ///< JSON objects, as in `stipple density --json`
   std::vector<std::string> randomness_rows;
