@@ -45,6 +45,23 @@ std::string format_round_trip(double value) {
   return std::string(buffer.data(), result.ptr);
 }
 
+std::optional<std::uint64_t> parse_whole_number(std::string_view text) {
+  if (text.empty() || !std::all_of(text.begin(), text.end(), [](char c) { return c >= '0' && c <= '9'; }))
+    return std::nullopt;
+  std::uint64_t value = 0;
+  const auto [end, error] = std::from_chars(text.data(), text.data() + text.size(), value);
+  if (error != std::errc() || end != text.data() + text.size()) return std::nullopt;
+  return value;
+}
+
+std::optional<double> parse_finite_number(std::string_view text) {
+  double value = 0.0;
+  const auto [end, error] = std::from_chars(text.data(), text.data() + text.size(), value);
+  if (text.empty() || error != std::errc() || end != text.data() + text.size() || !std::isfinite(value))
+    return std::nullopt;
+  return value;
+}
+
 std::string format_p_value(double p) {
   if (p < 1e-4) return "<0.0001";
   return format_significant(p, 3);

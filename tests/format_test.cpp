@@ -42,6 +42,17 @@ TEST(Format, RoundTripFormReadsBackTheSameDouble) {
   EXPECT_EQ(format_round_trip(std::nan("")), "");
 }
 
+TEST(Format, WholeAndFiniteNumbersAreParsedStrictly) {
+  // Common practice: a count is digits only; "-1" must never wrap to 2^64 - 1.
+  EXPECT_EQ(parse_whole_number("999"), 999u);
+  EXPECT_EQ(parse_whole_number("18446744073709551615"), 18446744073709551615ULL);
+  for (const char* bad : {"", "-1", "+3", "1e3", "2.5", " 7", "18446744073709551616", "0x10"})
+    EXPECT_FALSE(parse_whole_number(bad)) << bad;
+  EXPECT_EQ(parse_finite_number("0.95"), 0.95);
+  EXPECT_EQ(parse_finite_number("-3"), -3.0);
+  for (const char* bad : {"", "nan", "inf", "1,5", "12m", "1e999"}) EXPECT_FALSE(parse_finite_number(bad)) << bad;
+}
+
 TEST(Format, CsvFieldsAreQuotedWhenNeeded) {
   EXPECT_EQ(csv_field("oak"), "oak");
   EXPECT_EQ(csv_field("a,b"), "\"a,b\"");

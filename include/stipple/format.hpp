@@ -1,7 +1,10 @@
 #pragma once
 /// Locale-independent number formatting and plain-text tables, shared by every module.
 
+#include <cstdint>
+#include <optional>
 #include <string>
+#include <string_view>
 #include <vector>
 
 namespace stipple {
@@ -15,6 +18,12 @@ namespace stipple {
 /// `value` in the shortest form that reads back as the same double (std::to_chars), '.' as
 /// separator; empty for NaN and infinities. Every number in a CSV output goes through it.
 [[nodiscard]] std::string format_round_trip(double value);
+/// The whole number written in `text` with decimal digits only (no sign, space, point or
+/// exponent), or nothing when it is not one or does not fit 64 bits.
+[[nodiscard]] std::optional<std::uint64_t> parse_whole_number(std::string_view text);
+/// The finite number written in the whole of `text` ('.' decimal point, any locale), or
+/// nothing (NaN and infinities included).
+[[nodiscard]] std::optional<double> parse_finite_number(std::string_view text);
 /// A p-value for people: 3 significant digits, "<0.0001" below that.
 [[nodiscard]] std::string format_p_value(double p);
 

@@ -1,7 +1,6 @@
 #include "stipple/batch/batch.hpp"
 
 #include <algorithm>
-#include <charconv>
 #include <filesystem>
 #include <fstream>
 #include <map>
@@ -310,11 +309,9 @@ std::pair<std::size_t, std::size_t> parse_shard(const std::string& text) {
   try {
     if (slash == std::string::npos) throw std::invalid_argument(text);
     const auto whole = [](std::string_view digits) {
-      std::size_t value = 0;
-      const auto [end, error] = std::from_chars(digits.data(), digits.data() + digits.size(), value);
-      if (digits.empty() || error != std::errc() || end != digits.data() + digits.size() || digits.front() == '-')
-        throw std::invalid_argument(std::string(digits));
-      return value;
+      const auto value = parse_whole_number(digits);
+      if (!value) throw std::invalid_argument(std::string(digits));
+      return static_cast<std::size_t>(*value);
     };
     const std::size_t k = whole(std::string_view(text).substr(0, slash));
     const std::size_t n = whole(std::string_view(text).substr(slash + 1));

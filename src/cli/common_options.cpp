@@ -1,9 +1,5 @@
 #include "common_options.hpp"
 
-#include <algorithm>
-#include <cctype>
-#include <charconv>
-#include <cmath>
 #include <filesystem>
 #include <iostream>
 
@@ -98,13 +94,8 @@ CLI::Validator whole_number(std::uint64_t min, std::uint64_t max) {
   const std::string range = std::to_string(min) + "-" + std::to_string(max);
   return CLI::Validator(
       [min, max, range](std::string& text) -> std::string {
-        std::uint64_t value = 0;
-        const auto [end, error] = std::from_chars(text.data(), text.data() + text.size(), value);
-        const bool digits = !text.empty() && std::all_of(text.begin(), text.end(), [](char c) {
-          return std::isdigit(static_cast<unsigned char>(c)) != 0;
-        });
-        if (!digits || error != std::errc() || end != text.data() + text.size() || value < min || value > max)
-          return "must be a whole number from " + range + " (got '" + text + "')";
+        const auto value = parse_whole_number(text);
+        if (!value || *value < min || *value > max) return "must be a whole number from " + range + " (got '" + text + "')";
         return {};
       },
       "whole number " + range);
@@ -113,11 +104,8 @@ CLI::Validator whole_number(std::uint64_t min, std::uint64_t max) {
 CLI::Validator positive_number() {
   return CLI::Validator(
       [](std::string& text) -> std::string {
-        double value = 0.0;
-        const auto [end, error] = std::from_chars(text.data(), text.data() + text.size(), value);
-        if (text.empty() || error != std::errc() || end != text.data() + text.size() || !std::isfinite(value) ||
-            !(value > 0.0))
-          return "must be a number greater than 0 (got '" + text + "')";
+        const auto value = parse_finite_number(text);
+        if (!value || !(*value > 0.0)) return "must be a number greater than 0 (got '" + text + "')";
         return {};
       },
       "number > 0");
@@ -127,10 +115,8 @@ CLI::Validator number_between(double low, double high, std::string hint) {
   const std::string range = format_general(low) + " and " + format_general(high);
   return CLI::Validator(
       [low, high, range, hint](std::string& text) -> std::string {
-        double value = 0.0;
-        const auto [end, error] = std::from_chars(text.data(), text.data() + text.size(), value);
-        if (text.empty() || error != std::errc() || end != text.data() + text.size() || !(value > low) ||
-            !(value < high))
+        const auto value = parse_finite_number(text);
+        if (!value || !(*value > low) || !(*value < high))
           return "must lie strictly between " + range + " (got '" + text + "')" + (hint.empty() ? "" : "; " + hint);
         return {};
       },

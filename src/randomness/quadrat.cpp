@@ -1,16 +1,14 @@
 #include "stipple/randomness/quadrat.hpp"
 
-#include <cctype>
-#include <charconv>
-#include <string_view>
-
 #include <algorithm>
 #include <cmath>
 #include <numeric>
+#include <string_view>
 
 #include <boost/geometry.hpp>
 
 #include "stipple/error.hpp"
+#include "stipple/format.hpp"
 
 namespace bg = boost::geometry;
 
@@ -20,14 +18,11 @@ std::pair<std::size_t, std::size_t> parse_quadrat_grid(const std::string& text) 
   // Each factor is a run of digits checked on its own before the product is formed, so
   // neither a sign nor an overflow can slip through.
   const auto factor = [&](std::string_view digits) -> std::size_t {
-    std::size_t value = 0;
-    const auto [end, error] = std::from_chars(digits.data(), digits.data() + digits.size(), value);
-    if (digits.empty() || error != std::errc() || end != digits.data() + digits.size() ||
-        !std::isdigit(static_cast<unsigned char>(digits.front())))
-      throw InputError("--quadrats must look like 4x4, two whole numbers (got '" + text + "')");
-    if (value < 1 || value > 10000)
+    const auto value = parse_whole_number(digits);
+    if (!value) throw InputError("--quadrats must look like 4x4, two whole numbers (got '" + text + "')");
+    if (*value < 1 || *value > 10000)
       throw InputError("--quadrats needs between 2 and 10000 cells, each side 1 to 10000 (got '" + text + "')");
-    return value;
+    return static_cast<std::size_t>(*value);
   };
   const auto x = text.find_first_of("xX");
   if (x == std::string::npos) throw InputError("--quadrats must look like 4x4, two whole numbers (got '" + text + "')");
