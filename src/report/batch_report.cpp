@@ -114,11 +114,14 @@ std::string batch_report_html(const std::string& out_dir) {
   if (analyses.count("randomness"))
     h << "Complete spatial randomness was tested in each plot window with the quadrat-count chi-square test, "
          "the Clark &amp; Evans (1954) nearest-neighbour test (Donnelly 1978 correction for rectangles, the border "
-         "method otherwise), and Ripley's K and L functions with Ripley's (1977) isotropic edge correction, the "
+         "method otherwise, whose p-value is the Monte Carlo one), and Ripley's K and L functions with Ripley's "
+         "(1977) isotropic edge correction, the "
          "pair correlation function, and G, F and J with Kaplan-Meier correction (Baddeley &amp; Gill 1997). "
          << (*run)["simulations"] << " binomial-process simulations gave Monte Carlo envelopes and global tests "
-         "(maximum absolute deviation and Diggle-Cressie-Loosmore-Ford tests, Loosmore &amp; Ford 2006; extreme "
-         "rank length envelope, Myllym&auml;ki et al. 2017), with p = (1 + #more extreme)/(N + 1) (Hope 1968). "
+         "(maximum absolute deviation and Diggle-Cressie-Loosmore-Ford tests, Loosmore &amp; Ford 2006, each curve "
+         "measured against the mean of the others; extreme rank length envelope, Myllym&auml;ki et al. 2017, which "
+         "the observed L leaves exactly when that test rejects), with p = (1 + #more extreme)/(N + 1) (Hope "
+         "1968). "
          "Pairs of species were tested by random labelling of cross-L (Diggle 2003). ";
   if (analyses.count("transect"))
     h << "Density from line transects was estimated by distance sampling (Buckland et al. 2001): half-normal, "
