@@ -98,7 +98,8 @@ struct DetectionFit {
 
 /// Maximum-likelihood fit: NLopt subplex for key-only models; for adjusted models COBYLA
 /// with g kept non-increasing and non-negative on a 50-point grid, from several starts (the
-/// optimum with one term fewer, the new coefficient at 0, +-0.2 and +-0.6), each restarted
+/// optimum with one term fewer, the new coefficient at 0, +-0.2 and, for the first term,
+/// +-0.6), each restarted
 /// with smaller steps until it gains nothing; the best feasible optimum wins. `warm_start`
 /// (a fit of the same model to similar data, e.g. before a bootstrap resample) replaces the
 /// starts by one search from its parameters. The covariance is the inverse of the observed
