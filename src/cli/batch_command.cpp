@@ -68,16 +68,34 @@ void apply_run_file(BatchCommandOptions& o, CLI::App& command) {
     if (!node.is_string()) throw InputError(o.run_file + ": '" + std::string(option).substr(2) + "' must be a string");
     if (!given(option)) target = *node.value<std::string>();
   };
+  // A run-file value passes the same range checks as the option on the command line.
+  const auto validate = [&](const char* option, std::string value) {
+    CLI::Option* opt = command.get_option(option);
+    for (int i = 0;; ++i) {
+      CLI::Validator* validator = nullptr;
+      try {
+        validator = opt->get_validator(i);
+      } catch (const CLI::OptionNotFound&) {
+        return;
+      }
+      const std::string problem = (*validator)(value);
+      if (!problem.empty()) throw InputError(o.run_file + ": '" + std::string(option).substr(2) + "' " + problem);
+    }
+  };
   const auto real = [&](const toml::node_view<toml::node> node, double& target, const char* option) {
     if (!node) return;
     if (!node.is_number()) throw InputError(o.run_file + ": '" + std::string(option).substr(2) + "' must be a number");
-    if (!given(option)) target = *node.value<double>();
+    if (given(option)) return;
+    target = *node.value<double>();
+    validate(option, format_round_trip(target));
   };
   const auto whole = [&](const toml::node_view<toml::node> node, auto& target, const char* option) {
     if (!node) return;
     if (!node.is_integer() || *node.value<long long>() < 0)
       throw InputError(o.run_file + ": '" + std::string(option).substr(2) + "' must be a whole number >= 0");
-    if (!given(option)) target = static_cast<std::decay_t<decltype(target)>>(*node.value<long long>());
+    if (given(option)) return;
+    validate(option, std::to_string(*node.value<long long>()));
+    target = static_cast<std::decay_t<decltype(target)>>(*node.value<long long>());
   };
   if (auto list = file["analyses"]; list && !given("--analyses")) {
     if (!list.is_array()) throw InputError(o.run_file + ": 'analyses' must be a list, e.g. [\"density\"]");

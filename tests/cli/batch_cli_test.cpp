@@ -209,6 +209,13 @@ TEST(BatchCli, RunFileSetsAnalysesAndOptions) {
   const auto b = run_cli(batch(sample("season"), dir.file("p"), "--run-file " + bad));
   EXPECT_EQ(b.exit_code, 2);
   EXPECT_NE(b.err.find("bad.toml: line"), std::string::npos) << b.err;
+  // Run-file values pass the same range checks as the options.
+  const auto zero = dir.write("zero.toml", "confidence = 1.5\n");
+  test::expect_refused(run_cli(batch(sample("season"), dir.file("q"), "--run-file " + zero)),
+                       "zero.toml: 'confidence' must lie strictly between 0 and 1");
+  const auto rmax = dir.write("rmax.toml", "[randomness]\nrmax = 0\n");
+  test::expect_refused(run_cli(batch(sample("season"), dir.file("q"), "--run-file " + rmax)),
+                       "rmax.toml: 'rmax' must be a number greater than 0");
 }
 
 TEST(BatchCli, ShapefilePairsAndBadInputs) {
