@@ -4,6 +4,7 @@
 #include <fstream>
 
 #include <stdlib.h>
+#include <sys/stat.h>
 #include <unistd.h>
 
 #include <openssl/evp.h>
@@ -42,10 +43,6 @@ bool is_input(const fs::path& target, const std::vector<std::string>& inputs) {
   return false;
 }
 
-}  // namespace
-
-namespace {
-
 std::string kind_of(fs::file_type type) {
   switch (type) {
     case fs::file_type::directory: return "a folder";
@@ -55,6 +52,22 @@ std::string kind_of(fs::file_type type) {
     case fs::file_type::socket: return "a socket";
     default: return "not a regular file";
   }
+}
+
+// The process umask, read from /proc (Linux 4.7+) so that no other thread ever sees a
+// temporarily cleared mask; elsewhere umask() is called once and restored at once.
+mode_t current_umask() {
+  std::ifstream status("/proc/self/status");
+  std::string line;
+  while (std::getline(status, line)) {
+    if (line.rfind("Umask:", 0) == 0) return static_cast<mode_t>(std::stoul(line.substr(6), nullptr, 8));
+  }
+  static const mode_t fallback = [] {
+    const mode_t m = ::umask(0);
+    ::umask(m);
+    return m;
+  }();
+  return fallback;
 }
 
 }  // namespace
@@ -89,6 +102,9 @@ TemporaryOutput::TemporaryOutput(std::string final_path, bool keep_extension) : 
   name.push_back('\0');
   const int fd = ::mkstemps(name.data(), static_cast<int>(extension.size()));
   if (fd < 0) throw InputError(final_ + ": cannot create a temporary file in folder " + folder.string());
+  // mkstemps creates the file readable by its owner only; outputs get the usual 0666 less
+  // the process umask, as a plain open would give them.
+  (void)::fchmod(fd, static_cast<mode_t>(0666 & ~current_umask()));
   ::close(fd);
   temporary_ = name.data();
   if (keep_extension) {

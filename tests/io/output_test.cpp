@@ -70,6 +70,17 @@ TEST(WriteFileSafely, RefusesEverythingButRegularFiles) {
   EXPECT_EQ(read(plain), "new");
 }
 
+TEST(WriteFileSafely, OutputsGetTheUsualPermissions) {
+  // Common practice (POSIX open(2)): a new file gets 0666 less the umask, not mkstemp's 0600.
+  test::TempDir dir;
+  const mode_t mask = ::umask(022);
+  write_file_safely(dir.file("shared.csv"), "x", {});
+  ::umask(mask);
+  struct stat info {};
+  ASSERT_EQ(::stat(dir.file("shared.csv").c_str(), &info), 0);
+  EXPECT_EQ(info.st_mode & 0777, 0644u);
+}
+
 TEST(WriteFileSafely, TemporaryNamesAreUniqueAndCleanedUp) {
   test::TempDir dir;
   {
