@@ -5,6 +5,7 @@ set -euo pipefail
 packages=(
   build-essential cmake            # compiler and build system
   libgdal-dev gdal-bin             # GDAL/OGR vector I/O, OSR/PROJ reprojection; ogr2ogr for demo data
+  libproj-dev                      # PROJ geodesic areas (Karney 2013) for the CRS area check
   libboost-dev                     # Boost.Geometry, Boost.Math, Boost.Random (header-only)
   libcli11-dev                     # command-line option parsing
   nlohmann-json3-dev               # JSON output

@@ -5,6 +5,8 @@
 #include <charconv>
 #include <cctype>
 #include <cmath>
+#include <cstdint>
+#include <cstdio>
 #include <locale>
 #include <sstream>
 
@@ -99,11 +101,70 @@ std::string TextTable::render(const std::string& indent) const {
 }
 
 std::string file_name_safe(const std::string& text) {
+  constexpr std::size_t longest = 60;
   std::string out;
+  bool changed = false;
   for (const char c : text) {
     const auto u = static_cast<unsigned char>(c);
-    out += (std::isalnum(u) || c == '-' || c == '_' || c == '.') ? c : '_';
+    const bool kept = u < 0x80 && (std::isalnum(u) || c == '-' || c == '_' || c == '.');
+    out += kept ? c : '_';
+    changed = changed || !kept;
   }
+  if (!changed && !out.empty() && out.front() != '.' && out.size() <= longest) return out;
+  // FNV-1a (64 bit) of the original text: enough to tell apart the names of one survey.
+  std::uint64_t hash = 14695981039346656037ULL;
+  for (const char c : text) {
+    hash ^= static_cast<unsigned char>(c);
+    hash *= 1099511628211ULL;
+  }
+  char digits[17];
+  std::snprintf(digits, sizeof digits, "%016llx", static_cast<unsigned long long>(hash));
+  if (out.size() > longest) out.resize(longest);
+  if (!out.empty() && out.front() == '.') out.front() = '_';
+  return out + (out.empty() ? "" : "-") + std::string(digits, 10);
+}
+
+std::string repair_utf8(std::string_view text, std::size_t* replaced) {
+  std::string out;
+  out.reserve(text.size());
+  std::size_t bad = 0;
+  const auto byte = [&](std::size_t i) { return static_cast<unsigned char>(text[i]); };
+  std::size_t i = 0;
+  while (i < text.size()) {
+    const unsigned char lead = byte(i);
+    std::size_t length = 0;
+    std::uint32_t low = 0;
+    if (lead < 0x80) {
+      out += static_cast<char>(lead);
+      ++i;
+      continue;
+    } else if (lead >= 0xC2 && lead <= 0xDF) {
+      length = 2;
+      low = 0x80;
+    } else if (lead >= 0xE0 && lead <= 0xEF) {
+      length = 3;
+      low = 0x800;
+    } else if (lead >= 0xF0 && lead <= 0xF4) {
+      length = 4;
+      low = 0x10000;
+    }
+    bool ok = length > 0 && i + length <= text.size();
+    std::uint32_t code = length == 2 ? lead & 0x1Fu : length == 3 ? lead & 0x0Fu : lead & 0x07u;
+    for (std::size_t k = 1; ok && k < length; ++k) {
+      ok = (byte(i + k) & 0xC0u) == 0x80u;
+      code = (code << 6) | (byte(i + k) & 0x3Fu);
+    }
+    ok = ok && code >= low && code <= 0x10FFFF && !(code >= 0xD800 && code <= 0xDFFF);
+    if (ok) {
+      out.append(text.substr(i, length));
+      i += length;
+    } else {
+      out += "\xEF\xBF\xBD";
+      ++bad;
+      ++i;
+    }
+  }
+  if (replaced) *replaced = bad;
   return out;
 }
 

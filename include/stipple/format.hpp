@@ -42,8 +42,16 @@ class TextTable {
 };
 
 /// `text` with every character other than letters, digits, '-', '_' and '.' replaced by '_',
-/// for file names made from plot and species names.
+/// for file names made from plot and species names. When anything was replaced, or the text
+/// is empty, starts with '.' or is longer than 60 bytes, it is shortened and a short hash of
+/// the whole text is appended, so different names never give the same file name ("a/b" and
+/// "a_b" differ) and names stay far below file-name length limits.
 [[nodiscard]] std::string file_name_safe(const std::string& text);
+
+/// `text` as valid UTF-8: every byte that does not start a well-formed UTF-8 sequence
+/// (overlong forms, surrogates and code points above U+10FFFF included) becomes U+FFFD.
+/// `replaced`, when given, receives the number of replacements.
+[[nodiscard]] std::string repair_utf8(std::string_view text, std::size_t* replaced = nullptr);
 
 /// RFC 4180 quoting of one CSV field.
 [[nodiscard]] std::string csv_field(const std::string& text);

@@ -11,6 +11,7 @@
 
 #include <nlohmann/json.hpp>
 
+#include "json_text.hpp"
 #include "stipple/error.hpp"
 #include "stipple/format.hpp"
 #include "stipple/io/output.hpp"
@@ -108,7 +109,7 @@ BatchFileResult run_one(const BatchInput& input, const BatchOptions& options) {
     const Json doc = Json::parse(transect_json(loaded, result));
     r.crs = loaded.crs.code;
     for (const auto& e : doc["results"]) {
-      r.transect_records.push_back(with_file(input.name, e).dump());
+      r.transect_records.push_back(json_text(with_file(input.name, e), -1));
       const auto v = [](const Json& x) { return x.is_null() ? std::string() : number(x.get<double>()); };
       std::ostringstream row;
       row << csv_field(input.name) << "," << csv_field(e["species"].is_null() ? "" : e["species"].get<std::string>()) << ","
@@ -134,7 +135,7 @@ BatchFileResult run_one(const BatchInput& input, const BatchOptions& options) {
     const DensityResult d = estimate_density(r.survey.survey, options.density);
     const Json doc = Json::parse(density_json(r.survey, d));
     for (const auto& e : doc["estimates"]) {
-      r.density_records.push_back(with_file(input.name, e).dump());
+      r.density_records.push_back(json_text(with_file(input.name, e), -1));
       std::ostringstream row;
       row << csv_field(input.name) << "," << csv_field(e["plot"].get<std::string>()) << ","
           << csv_field(e["species"].is_null() ? "" : e["species"].get<std::string>()) << ","
@@ -152,7 +153,7 @@ BatchFileResult run_one(const BatchInput& input, const BatchOptions& options) {
     const RandomnessResult rr = analyse_randomness(r.survey.survey, ro);
     const Json doc = Json::parse(randomness_json(r.survey, rr));
     for (const auto& g : doc["results"]) {
-      r.randomness_records.push_back(with_file(input.name, g).dump());
+      r.randomness_records.push_back(json_text(with_file(input.name, g), -1));
       const auto p = [](const Json& v) { return v.is_null() ? std::string() : number(v.get<double>()); };
       std::ostringstream row;
       row << csv_field(input.name) << "," << csv_field(g["plot"].get<std::string>()) << ","
@@ -240,7 +241,7 @@ void write_records(const std::string& path, const std::vector<std::string>& reco
                    const std::vector<std::string>& protected_paths) {
   Json array = Json::array();
   for (const auto& r : records) array.push_back(Json::parse(r));
-  write_file_safely(path, array.dump(2) + "\n", protected_paths);
+  write_file_safely(path, json_text(array), protected_paths);
 }
 
 std::vector<std::string> read_lines(const fs::path& path, std::string& header) {
@@ -445,7 +446,7 @@ void write_batch_outputs(const std::string& out_dir, const std::vector<BatchFile
   run["unit"] = std::string(unit_name(options.density.unit));
   run["confidence"] = options.density.confidence;
   run["inputs"] = std::move(inputs);
-  write_file_safely((fs::path(out_dir) / "run.json").string(), run.dump(2) + "\n", protected_paths);
+  write_file_safely((fs::path(out_dir) / "run.json").string(), json_text(run), protected_paths);
 }
 
 void merge_batch_outputs(const std::vector<std::string>& shard_dirs, const std::string& out_dir) {
@@ -492,7 +493,7 @@ void merge_batch_outputs(const std::vector<std::string>& shard_dirs, const std::
     });
     Json array = Json::array();
     for (auto& r : records) array.push_back(std::move(r));
-    write_file_safely((fs::path(out_dir) / twin).string(), array.dump(2) + "\n", protect);
+    write_file_safely((fs::path(out_dir) / twin).string(), json_text(array), protect);
   }
   // Manifest: the inputs of every shard, ordered by name; options from the first shard.
   Json run;
@@ -509,7 +510,7 @@ void merge_batch_outputs(const std::vector<std::string>& shard_dirs, const std::
   });
   run["inputs"] = Json::array();
   for (auto& i : inputs) run["inputs"].push_back(std::move(i));
-  write_file_safely((fs::path(out_dir) / "run.json").string(), run.dump(2) + "\n", protect);
+  write_file_safely((fs::path(out_dir) / "run.json").string(), json_text(run), protect);
   // GIS layer: every shard's features, ordered by file.
   std::vector<std::string> gpkgs;
   for (const auto& dir : shard_dirs) {

@@ -109,6 +109,10 @@ void apply_run_file(BatchCommandOptions& o, CLI::App& command) {
   text(file["plots_name"], o.plots_name, "--plots-name");
   text(file["species_field"], o.common.species_field, "--species-field");
   text(file["plot_field"], o.common.plot_field, "--plot-field");
+  text(file["sightings_plot_field"], o.common.sightings_plot_field, "--sightings-plot-field");
+  text(file["assign"], o.common.assign, "--assign");
+  validate("--assign", o.common.assign);
+  text(file["encoding"], o.common.encoding, "--encoding");
   text(file["unit"], o.common.unit, "--unit");
   text(file["crs"], o.common.crs, "--crs");
   text(file["assume_crs"], o.common.assume_crs, "--assume-crs");
@@ -160,6 +164,7 @@ int run_batch_command(BatchCommandOptions& o, CLI::App& command) {
   options.threads = o.threads;
   if (options.run_transect) {
     options.transect_read.transect_field = o.transect_field;
+    options.transect_read.encoding = options.read.encoding;
     options.transect_read.species_field = o.common.species_field;
     if (!o.distance_field.empty()) options.transect_read.distance_field = o.distance_field;
     if (!o.size_field.empty()) options.transect_read.size_field = o.size_field;
@@ -271,7 +276,15 @@ Action add_batch_command(CLI::App& app) {
       ->check(positive_number());
   c->add_option("--layer", o->common.layer, "Sightings layer in each input");
   c->add_option("--plots-layer", o->common.plots_layer, "Plots layer in each input");
-  c->add_option("--plot-field", o->common.plot_field, "Plot-id attribute")->capture_default_str();
+  o->common.plot_field_option =
+      c->add_option("--plot-field", o->common.plot_field,
+                    "Plot-id attribute of the plot polygons (and of the sightings, unless --sightings-plot-field names theirs)")
+          ->capture_default_str();
+  c->add_option("--sightings-plot-field", o->common.sightings_plot_field,
+                "Plot attribute of the sightings (default: the --plot-field name)");
+  add_assign_option(*c, o->common.assign, "plot");
+  c->add_option("--encoding", o->common.encoding,
+                "Text encoding of the inputs' attributes, e.g. LATIN1 (default: UTF-8; invalid bytes shown as U+FFFD)");
   c->add_option("--species-field", o->common.species_field, "Species attribute")->capture_default_str();
   c->add_option("--crs", o->common.crs, "Analysis CRS, projected in metres");
   c->add_option("--assume-crs", o->common.assume_crs, "CRS of layers that carry none");

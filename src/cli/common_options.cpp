@@ -34,14 +34,40 @@ void add_sighting_options(CLI::App& command, CommonOptions& o) {
                      "own, or the UTM zone of a geographic input)");
   command.add_option("--assume-crs", o.assume_crs,
                      "CRS of layers that carry none, e.g. EPSG:4326 for GPS longitude/latitude");
+  command.add_option("--encoding", o.encoding,
+                     "Text encoding of the inputs' attributes, e.g. LATIN1 or CP1252 (default: "
+                     "UTF-8, or what a Shapefile's .cpg says; invalid bytes are shown as U+FFFD "
+                     "with a warning)");
+}
+
+Assignment parse_assignment(const std::string& text) {
+  if (text == "attribute") return Assignment::attribute;
+  if (text == "location") return Assignment::location;
+  return Assignment::automatic;
+}
+
+CLI::Option* add_assign_option(CLI::App& command, std::string& target, const std::string& unit) {
+  return command
+      .add_option("--assign", target,
+                  "How sightings find their " + unit + ": attribute (the sightings' " + unit +
+                      " field), location (" +
+                      (unit == "plot" ? std::string("point in polygon") : std::string("nearest transect")) +
+                      ") or auto (attribute when the sightings have the field)")
+      ->check(CLI::IsMember({"auto", "attribute", "location"}))
+      ->capture_default_str();
 }
 
 void add_window_options(CLI::App& command, CommonOptions& o) {
   command.add_option("--plots", o.plots, "Plot polygons (survey windows): any OGR polygon source");
   command.add_option("--plots-layer", o.plots_layer, "Layer of --plots to read");
   o.plot_field_option =
-      command.add_option("--plot-field", o.plot_field, "Plot-id attribute of plots and sightings")
+      command.add_option("--plot-field", o.plot_field,
+                         "Plot-id attribute of the plot polygons (and of the sightings, unless "
+                         "--sightings-plot-field names theirs)")
           ->capture_default_str();
+  command.add_option("--sightings-plot-field", o.sightings_plot_field,
+                     "Plot attribute of the sightings (default: the --plot-field name)");
+  add_assign_option(command, o.assign, "plot");
   command.add_option("--window", o.window,
                      "Survey windows: plots (from --plots) or convex-hull (Ripley-Rasson "
                      "estimate from the points; model-based)")
@@ -76,6 +102,9 @@ SurveyReadOptions to_read_options(const CommonOptions& o) {
   r.species_field = o.species_field;
   r.plot_field = o.plot_field;
   r.plot_field_given = o.plot_field_option != nullptr && o.plot_field_option->count() > 0;
+  r.sighting_plot_field = optional(o.sightings_plot_field);
+  r.assignment = parse_assignment(o.assign);
+  r.encoding = optional(o.encoding);
   r.x_field = optional(o.x_field);
   r.y_field = optional(o.y_field);
   r.target_crs = optional(o.crs);

@@ -20,6 +20,9 @@ struct CommonOptions {
   std::string plots;
   std::string plots_layer;
   std::string plot_field = "plot";
+  std::string sightings_plot_field;
+  std::string assign = "auto";
+  std::string encoding;
   std::string species_field = "species";
   std::string x_field;
   std::string y_field;
@@ -44,12 +47,19 @@ struct CommonOptions {
 
 /// Adds SIGHTINGS, the shared input, window, CRS and output options to a subcommand.
 void add_common_options(CLI::App& command, CommonOptions& options);
-/// The parts: SIGHTINGS, --layer, --species-field, --x-field, --y-field, --crs, --assume-crs.
+/// The parts: SIGHTINGS, --layer, --species-field, --x-field, --y-field, --crs, --assume-crs,
+/// --encoding.
 void add_sighting_options(CLI::App& command, CommonOptions& options);
-/// --plots, --plots-layer, --plot-field, --window, --repair-geometry.
+/// --plots, --plots-layer, --plot-field, --sightings-plot-field, --assign, --window,
+/// --repair-geometry.
 void add_window_options(CLI::App& command, CommonOptions& options);
 /// --unit, --confidence, --json, --csv.
 void add_output_options(CLI::App& command, CommonOptions& options);
+
+/// The --assign option (auto, attribute, location) as the library's value.
+[[nodiscard]] Assignment parse_assignment(const std::string& text);
+/// Adds --assign: how sightings find their plot or transect.
+CLI::Option* add_assign_option(CLI::App& command, std::string& target, const std::string& unit);
 
 /// The library's read options from the parsed command line.
 [[nodiscard]] SurveyReadOptions to_read_options(const CommonOptions& options);

@@ -17,6 +17,7 @@ struct InspectCommandOptions {
   std::string x_field;
   std::string y_field;
   std::string assume_crs;
+  std::string encoding;
   bool json = false;
 };
 
@@ -36,6 +37,8 @@ Action add_inspect_command(CLI::App& app) {
   command->add_option("--x-field", o->x_field, "CSV column of x or longitude");
   command->add_option("--y-field", o->y_field, "CSV column of y or latitude");
   command->add_option("--assume-crs", o->assume_crs, "CRS of layers that carry none");
+  command->add_option("--encoding", o->encoding,
+                      "Text encoding of the attributes, e.g. LATIN1 (default: UTF-8; invalid bytes shown as U+FFFD)");
   command->add_flag("--json", o->json, "Print JSON instead of a table");
   return [command, o] {
     if (!command->parsed()) return -1;
@@ -43,6 +46,7 @@ Action add_inspect_command(CLI::App& app) {
     if (!o->x_field.empty()) options.x_field = o->x_field;
     if (!o->y_field.empty()) options.y_field = o->y_field;
     if (!o->assume_crs.empty()) options.assume_crs = o->assume_crs;
+    if (!o->encoding.empty()) options.encoding = o->encoding;
     const SourceSummary summary = inspect_source(o->source, options);
     std::cout << (o->json ? inspect_json(summary) : inspect_table(summary));
     return 0;

@@ -24,6 +24,8 @@ struct TransectCommandOptions {
   std::string stations;
   std::string transects_layer;
   std::string transect_field = "transect";
+  std::string sightings_transect_field;
+  std::string assign = "auto";
   std::string effort_field;
   std::string visits_field;
   std::string distance_field;
@@ -61,6 +63,9 @@ int run_transect(const TransectCommandOptions& o) {
   if (!o.lines.empty()) read.lines = SourceSpec{o.lines, opt(o.transects_layer)};
   if (!o.stations.empty()) read.stations = SourceSpec{o.stations, opt(o.transects_layer)};
   read.transect_field = o.transect_field;
+  read.sighting_transect_field = opt(o.sightings_transect_field);
+  read.assignment = parse_assignment(o.assign);
+  read.encoding = opt(o.common.encoding);
   read.effort_field = opt(o.effort_field);
   read.visits_field = opt(o.visits_field);
   read.distance_field = opt(o.distance_field);
@@ -144,8 +149,13 @@ Action add_transect_command(CLI::App& app) {
   c->add_option("--lines", o->lines, "Transect lines: an OGR line layer with a transect id");
   c->add_option("--stations", o->stations, "Point stations: an OGR point layer with a station id");
   c->add_option("--transects-layer", o->transects_layer, "Layer of --lines or --stations");
-  c->add_option("--transect-field", o->transect_field, "Transect (or station) id field, on transects and sightings")
+  c->add_option("--transect-field", o->transect_field,
+                "Transect (or station) id field of the lines or stations (and of the sightings, unless "
+                "--sightings-transect-field names theirs)")
       ->capture_default_str();
+  c->add_option("--sightings-transect-field", o->sightings_transect_field,
+                "Transect attribute of the sightings (default: the --transect-field name)");
+  add_assign_option(*c, o->assign, "transect");
   c->add_option("--effort-field", o->effort_field, "Line length in km from this field instead of the geometry");
   c->add_option("--visits-field", o->visits_field, "Repeat visits of each transect (default: field 'visits' if present, else 1)");
   c->add_option("--distance-field", o->distance_field,

@@ -11,6 +11,7 @@
 
 #include "detail/gdal_util.hpp"
 #include "stipple/error.hpp"
+#include "stipple/format.hpp"
 
 namespace stipple::io_detail {
 
@@ -66,7 +67,8 @@ bool is_csv_path(const std::string& path) {
   return lower(std::filesystem::path(path).extension().string()) == ".csv";
 }
 
-DatasetPtr open_vector(const std::string& path, const CsvColumns& columns) {
+DatasetPtr open_vector(const std::string& path, const CsvColumns& columns,
+                       const std::optional<std::string>& encoding) {
   std::error_code ec;
   if (!std::filesystem::exists(path, ec)) throw InputError(path + ": no such file or folder");
   CPLErrorReset();
@@ -81,8 +83,13 @@ DatasetPtr open_vector(const std::string& path, const CsvColumns& columns) {
     // Coordinate columns stay as fields so a bad value can be quoted back to the user.
     open_options.SetNameValue("KEEP_GEOM_COLUMNS", "YES");
   }
+  const bool shapefile = lower(std::filesystem::path(path).extension().string()) == ".shp" ||
+                         lower(std::filesystem::path(path).extension().string()) == ".dbf" ||
+                         std::filesystem::is_directory(path, ec);
+  // With --encoding, a Shapefile's text stays raw bytes for TextDecoder to convert.
+  if (encoding && shapefile) open_options.SetNameValue("ENCODING", "");
   auto* handle = GDALOpenEx(path.c_str(), GDAL_OF_VECTOR | GDAL_OF_READONLY,
-                            csv ? csv_only : nullptr, csv ? open_options.List() : nullptr,
+                            csv ? csv_only : nullptr, open_options.List(),
                             nullptr);
   if (handle == nullptr) {
     const std::string detail = last_gdal_message();
@@ -190,22 +197,13 @@ std::string crs_name(const OGRSpatialReference& srs) {
   return name ? std::string(name) : std::string("unnamed CRS");
 }
 
-OGRSpatialReference utm_for(double longitude, double latitude, std::string& code) {
-  int zone = static_cast<int>(std::floor((longitude + 180.0) / 6.0)) + 1;
-  zone = std::clamp(zone, 1, 60);
-  const int epsg = (latitude >= 0.0 ? 32600 : 32700) + zone;
-  code = "EPSG:" + std::to_string(epsg);
-  OGRSpatialReference srs;
-  srs.importFromEPSG(epsg);
-  srs.SetAxisMappingStrategy(OAMS_TRADITIONAL_GIS_ORDER);
-  return srs;
-}
-
 ChosenCrs choose_analysis_crs(const std::optional<std::string>& target,
                               const std::vector<std::pair<const OGRSpatialReference*, std::string>>& candidates,
-                              const OGRSpatialReference& centre_crs, double cx, double cy,
+                              const std::vector<CentreSample>& samples,
+                              const std::function<double(const OGRSpatialReference&)>& area_error,
                               const std::string& label) {
   ChosenCrs chosen;
+  bool local = false;
   if (target) {
     chosen.srs = parse_crs(*target, "--crs");
     if (!is_projected_metres(chosen.srs))
@@ -213,32 +211,60 @@ ChosenCrs choose_analysis_crs(const std::optional<std::string>& target,
     chosen.reason = "given with --crs";
   } else {
     bool found = false;
+    std::string rejected;
     for (const auto& [srs, role] : candidates) {
-      if (srs != nullptr && is_projected_metres(*srs)) {
+      if (srs == nullptr || !is_projected_metres(*srs)) continue;
+      const double error = area_error ? area_error(*srs) : 0.0;
+      if (error <= max_crs_area_error) {
         chosen.srs = *srs;
         chosen.reason = "the CRS of the " + role;
         found = true;
         break;
       }
+      rejected = "the " + role + "' CRS " + crs_code(*srs) + " would misstate plot areas by up to " +
+                 format_significant(100.0 * error, 2) + "%";
     }
     if (!found) {
-      const OGRSpatialReference wgs84 = parse_crs("EPSG:4326", "WGS 84");
-      const TransformPtr to_wgs84 = make_transform(centre_crs, wgs84, label);
-      if (to_wgs84 && !to_wgs84->Transform(1, &cx, &cy))
-        throw InputError(label + ": centre cannot be converted to longitude/latitude");
-      std::string code;
-      chosen.srs = utm_for(cx, cy, code);
-      chosen.reason = "chosen automatically: the UTM zone of the data's centre (input is " +
-                      crs_code(centre_crs) + ", not projected in metres); override with --crs";
+      const OGRSpatialReference* datum = nullptr;
+      for (const auto& candidate : candidates)
+        if (candidate.first != nullptr && datum == nullptr) datum = candidate.first;
+      if (datum == nullptr) throw InputError(label + ": no CRS to work from");
+      std::string centre;
+      chosen.srs = local_equal_area(samples, *datum, label, centre);
+      local = true;
+      chosen.reason = "chosen automatically: Lambert azimuthal equal-area centred on the data (" +
+                      centre + "), which keeps areas exact anywhere on Earth (" +
+                      (rejected.empty() ? "input is " + crs_code(*datum) + ", not projected in metres"
+                                        : rejected) +
+                      "); override with --crs";
     }
   }
-  chosen.code = crs_code(chosen.srs);
+  if (local) {
+    // A CRS of our own: its PROJ string is the code, so --crs can repeat it exactly.
+    char* proj = nullptr;
+    if (chosen.srs.exportToProj4(&proj) == OGRERR_NONE && proj != nullptr) chosen.code = proj;
+    CPLFree(proj);
+    while (!chosen.code.empty() && chosen.code.back() == ' ') chosen.code.pop_back();
+  }
+  if (chosen.code.empty()) chosen.code = crs_code(chosen.srs);
   chosen.name = crs_name(chosen.srs);
   char* wkt = nullptr;
   chosen.srs.exportToWkt(&wkt);
   chosen.wkt = wkt ? wkt : "";
   CPLFree(wkt);
   return chosen;
+}
+
+void check_coordinate(double x, double y, const OGRSpatialReference& srs, const std::string& where) {
+  const bool geographic = srs.IsGeographic() != 0;
+  const bool ok = std::isfinite(x) && std::isfinite(y) &&
+                  (geographic ? std::abs(y) <= 90.0 && std::abs(x) <= 540.0
+                              : std::abs(x) <= 1e9 && std::abs(y) <= 1e9);
+  if (ok) return;
+  throw InputError(where + ": coordinate (" + format_general(x) + ", " + format_general(y) +
+                   ") is outside any survey in " + crs_code(srs) +
+                   (geographic ? " (longitude/latitude in degrees)" : "") +
+                   " (wrong CRS, swapped columns or a typing error?)");
 }
 
 TransformPtr make_transform(const OGRSpatialReference& from, const OGRSpatialReference& to,

@@ -1,6 +1,11 @@
 #include "stipple/io/inspect.hpp"
 
 #include "detail/gdal_util.hpp"
+#include <algorithm>
+#include <cmath>
+
+#include <cpl_error.h>
+
 #include "stipple/error.hpp"
 
 namespace stipple {
@@ -17,51 +22,78 @@ bool is_polygonal(OGRwkbGeometryType type) {
 
 void summarise_plots(OGRLayer& layer, const std::optional<OGRSpatialReference>& crs,
                      const InspectOptions& options, LayerSummary& summary) {
-  TransformPtr transform;
-  if (crs && !is_projected_metres(*crs)) {
-    OGREnvelope extent;
-    if (layer.GetExtent(&extent, TRUE) == OGRERR_NONE) {
-      double x = (extent.MinX + extent.MaxX) / 2.0;
-      double y = (extent.MinY + extent.MaxY) / 2.0;
-      const OGRSpatialReference wgs84 = parse_crs("EPSG:4326", "WGS 84");
-      const TransformPtr to_wgs84 = make_transform(*crs, wgs84, summary.name);
-      if (!to_wgs84 || to_wgs84->Transform(1, &x, &y)) {
-        std::string code;
-        const OGRSpatialReference utm = utm_for(x, y, code);
-        transform = make_transform(*crs, utm, summary.name);
-        summary.area_crs = code;
-      }
-    }
-  } else if (crs) {
-    summary.area_crs = crs_code(*crs);
-  } else {
-    summary.area_crs = "layer units (no CRS)";
-  }
   const int id_index = layer.GetLayerDefn()->GetFieldIndex(options.plot_field.c_str());
+  TextDecoder decode(options.encoding);
+  std::vector<std::unique_ptr<OGRGeometry>> shapes;
   layer.ResetReading();
   for (auto& feature : layer) {
     PlotAreaSummary plot;
     plot.id = id_index >= 0 && feature->IsFieldSetAndNotNull(id_index)
-                  ? std::string(feature->GetFieldAsString(id_index))
+                  ? decode(feature->GetFieldAsString(id_index))
                   : "feature " + std::to_string(feature->GetFID());
     const OGRGeometry* geometry = feature->GetGeometryRef();
+    std::unique_ptr<OGRGeometry> copy;
     if (geometry != nullptr && is_polygonal(geometry->getGeometryType())) {
-      std::unique_ptr<OGRGeometry> copy(geometry->clone());
+      copy.reset(geometry->hasCurveGeometry() ? geometry->getLinearGeometry() : geometry->clone());
       plot.valid = copy->IsValid();
-      if (transform) copy->transform(transform.get());
-      if (const auto* surface = dynamic_cast<const OGRSurface*>(copy.get()))
-        plot.area_m2 = surface->get_Area();
-      else if (const auto* multi = dynamic_cast<const OGRMultiSurface*>(copy.get()))
-        plot.area_m2 = multi->get_Area();
+      plot.area_m2 = polygonal_area(*copy);
     }
+    shapes.push_back(std::move(copy));
     summary.plots.push_back(std::move(plot));
+  }
+  if (!crs) {
+    summary.area_crs = "layer units (no CRS)";
+    return;
+  }
+  // The analysis rule: the layer's CRS when projected in metres with areas within 0.1% of
+  // the geodesic ones, else the local equal-area CRS of the layer.
+  const std::string label = layer_label("", layer);
+  std::vector<double> geodesic(shapes.size(), 0.0);
+  std::vector<std::pair<double, double>> vertices;
+  for (std::size_t i = 0; i < shapes.size(); ++i) {
+    if (!shapes[i]) continue;
+    BgMultiPolygon shape;
+    collect_polygons(*shapes[i], shape);
+    for (const auto& polygon : shape)
+      for (const auto& v : polygon.outer())
+        if (vertices.size() < 8192) vertices.emplace_back(v.x(), v.y());
+    geodesic[i] = geodesic_area(shape, *crs, summary.name);
+  }
+  const auto error_in = [&](const OGRSpatialReference& candidate) {
+    const TransformPtr transform = make_transform(*crs, candidate, summary.name);
+    double worst = 0.0;
+    for (std::size_t i = 0; i < shapes.size(); ++i) {
+      if (!shapes[i] || !(geodesic[i] > 0.0)) continue;
+      std::unique_ptr<OGRGeometry> copy(shapes[i]->clone());
+      if (transform && copy->transform(transform.get()) != OGRERR_NONE) return 1.0;
+      worst = std::max(worst, std::abs(polygonal_area(*copy) / geodesic[i] - 1.0));
+    }
+    return worst;
+  };
+  if (vertices.empty()) {
+    summary.area_crs = crs_code(*crs);
+    return;
+  }
+  const ChosenCrs chosen = choose_analysis_crs(std::nullopt, {{&*crs, "layer"}},
+                                               {CentreSample{&*crs, vertices}}, error_in,
+                                               summary.name);
+  summary.area_crs = chosen.code;
+  summary.max_area_error = error_in(chosen.srs);
+  const TransformPtr transform = make_transform(*crs, chosen.srs, summary.name);
+  for (std::size_t i = 0; i < shapes.size(); ++i) {
+    if (!shapes[i]) continue;
+    CPLErrorReset();
+    if (transform && shapes[i]->transform(transform.get()) != OGRERR_NONE)
+      throw InputError(summary.name + ": " + summary.plots[i].id +
+                       " cannot be reprojected to measure its area (" + last_gdal_message() + ")");
+    summary.plots[i].area_m2 = polygonal_area(*shapes[i]);
   }
 }
 
 }  // namespace
 
 SourceSummary inspect_source(const std::string& path, const InspectOptions& options) {
-  DatasetPtr dataset = open_vector(path, CsvColumns{options.x_field, options.y_field});
+  DatasetPtr dataset = open_vector(path, CsvColumns{options.x_field, options.y_field}, options.encoding);
   SourceSummary source;
   source.path = path;
   source.driver = dataset->GetDriver() ? dataset->GetDriver()->GetDescription() : "unknown";
@@ -70,7 +102,8 @@ SourceSummary inspect_source(const std::string& path, const InspectOptions& opti
     LayerSummary summary;
     summary.name = layer.GetName();
     summary.geometry_type = OGRGeometryTypeToName(layer.GetGeomType());
-    summary.feature_count = layer.GetFeatureCount();
+    summary.declared_count = declared_feature_count(layer);
+    summary.feature_count = 0;
     std::optional<OGRSpatialReference> crs;
     if (layer.GetSpatialRef() != nullptr || options.assume_crs) {
       crs = layer_crs(layer, layer_label(path, layer), options.assume_crs);
@@ -85,18 +118,23 @@ SourceSummary inspect_source(const std::string& path, const InspectOptions& opti
       const OGRFieldDefn* field = defn->GetFieldDefn(f);
       summary.fields.push_back({field->GetNameRef(), OGRFieldDefn::GetFieldTypeName(field->GetType())});
     }
+    // Count by reading, as the analysis does, so a truncated file shows here too.
     const int species_index = defn->GetFieldIndex(options.species_field.c_str());
-    if (species_index >= 0) {
-      std::map<std::string, std::int64_t> counts;
-      layer.ResetReading();
-      for (auto& feature : layer) {
-        const std::string value = feature->IsFieldSetAndNotNull(species_index)
-                                      ? feature->GetFieldAsString(species_index)
-                                      : "(empty)";
-        ++counts[value];
-      }
-      summary.species_counts = std::move(counts);
+    std::map<std::string, std::int64_t> counts;
+    TextDecoder decode(options.encoding);
+    layer.ResetReading();
+    CPLErrorReset();
+    for (auto& feature : layer) {
+      ++summary.feature_count;
+      if (species_index < 0) continue;
+      const std::string value = feature->IsFieldSetAndNotNull(species_index)
+                                    ? decode(feature->GetFieldAsString(species_index))
+                                    : "(empty)";
+      ++counts[value];
     }
+    if (CPLGetLastErrorType() >= CE_Failure) summary.read_error = last_gdal_message();
+    if (species_index >= 0) summary.species_counts = std::move(counts);
+    if (decode.replaced() > 0) summary.undecodable_values = decode.replaced();
     if (is_polygonal(layer.GetGeomType())) summarise_plots(layer, crs, options, summary);
     source.layers.push_back(std::move(summary));
   }

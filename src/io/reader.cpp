@@ -1,16 +1,20 @@
 #include "stipple/io/reader.hpp"
 
+#include <algorithm>
 #include <charconv>
 #include <cmath>
+#include <functional>
 #include <map>
 #include <set>
 #include <sstream>
+#include <tuple>
 
 #include <cpl_error.h>
 #include <cpl_string.h>
 
 #include "detail/gdal_util.hpp"
 #include "stipple/error.hpp"
+#include "stipple/format.hpp"
 
 namespace stipple {
 
@@ -37,9 +41,15 @@ std::string id_list(const std::vector<std::int64_t>& ids) {
   return out.str();
 }
 
-std::optional<std::string> field_text(OGRFeature& feature, int index) {
+std::string lower_ascii(std::string s) {
+  for (char& c : s)
+    if (c >= 'A' && c <= 'Z') c = static_cast<char>(c - 'A' + 'a');
+  return s;
+}
+
+std::optional<std::string> field_text(OGRFeature& feature, int index, TextDecoder& decode) {
   if (index < 0 || !feature.IsFieldSetAndNotNull(index)) return std::nullopt;
-  std::string value = trim(feature.GetFieldAsString(index));
+  std::string value = trim(decode(feature.GetFieldAsString(index)));
   if (value.empty()) return std::nullopt;
   return value;
 }
@@ -63,7 +73,7 @@ std::string csv_coordinate_text(OGRFeature& feature, const SurveyReadOptions& op
     if (!listed(name, xs) && !listed(name, ys)) continue;
     text += (text.empty() ? "" : ", ") + name +
             (feature.IsFieldSetAndNotNull(i)
-                 ? " = " + std::string(feature.GetFieldAsString(i))
+                 ? " = " + repair_utf8(feature.GetFieldAsString(i))
                  : std::string(": empty or not a number"));
   }
   if (text.empty()) return " (empty coordinates?)";
@@ -82,17 +92,44 @@ struct SightingLayer {
   std::string label;
   OGRSpatialReference crs;
   std::vector<RawSighting> rows;
+  std::string plot_attribute;  // the sightings' plot field, when assignment may use it
 };
 
-SightingLayer read_sightings(const SurveyReadOptions& options, std::vector<std::string>& notes) {
+std::string quoted_list(const std::set<std::string>& names, std::size_t shown = 5) {
+  std::string text;
+  std::size_t i = 0;
+  for (const auto& name : names) {
+    if (i == shown) return text + ", ... (" + std::to_string(names.size() - shown) + " more)";
+    text += (i++ ? ", '" : "'") + name + "'";
+  }
+  return text;
+}
+
+// Species names that differ only in case or surrounding spaces, as a warning (or empty).
+std::string species_variant_warning(const std::map<std::string, std::set<std::string>>& forms) {
+  std::string groups;
+  std::size_t count = 0;
+  for (const auto& [key, raw] : forms) {
+    if (raw.size() < 2) continue;
+    if (count++ < 10) groups += (groups.empty() ? "" : "; ") + quoted_list(raw, 6);
+  }
+  if (count == 0) return {};
+  return std::to_string(count) + " species name(s) differ only in case or surrounding spaces: " +
+         groups + (count > 10 ? "; ..." : "") +
+         ". Surrounding spaces are removed (names equal after that are one species); names that "
+         "differ in case are kept apart - correct the data if they are one species";
+}
+
+SightingLayer read_sightings(const SurveyReadOptions& options, LoadedSurvey& loaded) {
   const auto& spec = options.sightings;
-  DatasetPtr dataset = open_vector(spec.path, CsvColumns{options.x_field, options.y_field});
+  DatasetPtr dataset =
+      open_vector(spec.path, CsvColumns{options.x_field, options.y_field}, options.encoding);
   OGRLayer& layer = pick_layer(*dataset, spec.path, spec.layer, LayerKind::points, "--layer");
   SightingLayer out;
   out.label = layer_label(spec.path, layer);
   OGRFeatureDefn* defn = layer.GetLayerDefn();
-  if (is_csv_path(spec.path) && wkbFlatten(layer.GetGeomType()) == wkbNone &&
-      defn->GetGeomFieldCount() == 0) {
+  const bool csv = is_csv_path(spec.path);
+  if (csv && wkbFlatten(layer.GetGeomType()) == wkbNone && defn->GetGeomFieldCount() == 0) {
     throw InputError(out.label + ": no coordinate columns found (fields: " + field_list(layer) +
                      "); name them with --x-field and --y-field");
   }
@@ -100,22 +137,35 @@ SightingLayer read_sightings(const SurveyReadOptions& options, std::vector<std::
   if (species_index < 0)
     throw InputError(out.label + ": no species field '" + options.species_field +
                      "' (fields: " + field_list(layer) + "); name it with --species-field");
-  const int plot_index = defn->GetFieldIndex(options.plot_field.c_str());
-  if (plot_index < 0 && options.plot_field_given && options.window == WindowMode::plots) {
-    notes.push_back(out.label + " has no field '" + options.plot_field +
-                    "': sightings are assigned to plots by point-in-polygon");
+  const std::string plot_attribute = options.sighting_plot_field.value_or(options.plot_field);
+  const int plot_index = options.assignment == Assignment::location
+                             ? -1
+                             : defn->GetFieldIndex(plot_attribute.c_str());
+  if (plot_index < 0 && options.assignment == Assignment::attribute)
+    throw InputError(out.label + ": no plot field '" + plot_attribute + "' (fields: " +
+                     field_list(layer) + "); name it with --sightings-plot-field, or assign "
+                     "by location with --assign location");
+  if (plot_index >= 0) out.plot_attribute = plot_attribute;
+  if (plot_index < 0 && options.assignment == Assignment::automatic &&
+      (options.plot_field_given || options.sighting_plot_field) &&
+      options.window == WindowMode::plots) {
+    loaded.notes.push_back(out.label + " has no field '" + plot_attribute +
+                           "': sightings are assigned to plots by point-in-polygon");
   }
   out.crs = layer_crs(layer, out.label, options.assume_crs);
   if (layer.GetSpatialRef() == nullptr)
-    notes.push_back(out.label + ": CRS assumed to be " + *options.assume_crs + " (--assume-crs)");
+    loaded.notes.push_back(out.label + ": CRS assumed to be " + *options.assume_crs +
+                           " (--assume-crs)");
 
-  layer.ResetReading();
-  for (auto& feature : layer) {
-    const GIntBig fid = feature->GetFID();
-    const OGRGeometry* geometry = feature->GetGeometryRef();
+  TextDecoder decode(options.encoding);
+  std::map<std::string, std::set<std::string>> species_forms;  // lower-case trimmed -> as written
+  std::set<std::string> seen_forms;
+  const LayerScan scan = scan_layer(layer, out.label, csv, [&](OGRFeature& feature) {
+    const GIntBig fid = feature.GetFID();
+    const OGRGeometry* geometry = feature.GetGeometryRef();
     if (geometry == nullptr || geometry->IsEmpty())
       throw InputError(feature_label(out.label, fid) + ": has no point geometry" +
-                       csv_coordinate_text(*feature, options));
+                       csv_coordinate_text(feature, options));
     const auto type = wkbFlatten(geometry->getGeometryType());
     const OGRPoint* point = nullptr;
     if (type == wkbPoint) {
@@ -133,64 +183,54 @@ SightingLayer read_sightings(const SurveyReadOptions& options, std::vector<std::
     row.fid = fid;
     if (!std::isfinite(row.x) || !std::isfinite(row.y))
       throw InputError(feature_label(out.label, fid) + ": coordinate is NaN or infinite");
-    auto species = field_text(*feature, species_index);
-    if (!species)
+    check_coordinate(row.x, row.y, out.crs, feature_label(out.label, fid));
+    if (species_index >= 0 && feature.IsFieldSetAndNotNull(species_index)) {
+      std::string written = decode(feature.GetFieldAsString(species_index));
+      if (seen_forms.insert(written).second) species_forms[lower_ascii(trim(written))].insert(written);
+      row.species = trim(std::move(written));
+    }
+    if (row.species.empty())
       throw InputError(feature_label(out.label, fid) + ": species field '" +
                        options.species_field + "' is empty");
-    row.species = std::move(*species);
-    row.plot = field_text(*feature, plot_index);
+    row.plot = field_text(feature, plot_index, decode);
     out.rows.push_back(std::move(row));
-  }
+  });
+  if (scan.blank_rows > 0)
+    loaded.notes.push_back(out.label + ": " + std::to_string(scan.blank_rows) +
+                           " blank row(s) (every field empty) skipped");
+  if (const std::string w = decode.warning(out.label); !w.empty()) loaded.warnings.push_back(w);
+  if (const std::string w = species_variant_warning(species_forms); !w.empty())
+    loaded.warnings.push_back(out.label + ": " + w);
   return out;
 }
 
-void append_polygon(const OGRPolygon& polygon, BgMultiPolygon& out) {
-  BgPolygon bg_polygon;
-  const auto copy_ring = [](const OGRLinearRing& ring, BgPolygon::ring_type& target) {
-    for (int i = 0; i < ring.getNumPoints(); ++i) target.emplace_back(ring.getX(i), ring.getY(i));
-  };
-  if (polygon.getExteriorRing() == nullptr) return;
-  copy_ring(*polygon.getExteriorRing(), bg_polygon.outer());
-  for (int i = 0; i < polygon.getNumInteriorRings(); ++i) {
-    bg_polygon.inners().emplace_back();
-    copy_ring(*polygon.getInteriorRing(i), bg_polygon.inners().back());
-  }
-  out.push_back(std::move(bg_polygon));
-}
-
-void collect_polygons(const OGRGeometry& geometry, BgMultiPolygon& out) {
-  const auto type = wkbFlatten(geometry.getGeometryType());
-  if (type == wkbPolygon) {
-    append_polygon(*geometry.toPolygon(), out);
-  } else if (type == wkbMultiPolygon || type == wkbGeometryCollection) {
-    for (const auto* part : *geometry.toGeometryCollection()) collect_polygons(*part, out);
-  }
-  // Points and lines left over from MakeValid carry no area and are dropped.
-}
-
-// Area of the polygonal parts of a geometry (MakeValid may add points or lines).
-double polygonal_area(const OGRGeometry& geometry) {
-  const auto type = wkbFlatten(geometry.getGeometryType());
-  if (type == wkbPolygon || type == wkbCurvePolygon)
-    return dynamic_cast<const OGRSurface&>(geometry).get_Area();
-  if (type == wkbMultiPolygon || type == wkbGeometryCollection || type == wkbMultiSurface) {
-    double area = 0.0;
-    for (const auto* part : *geometry.toGeometryCollection()) area += polygonal_area(*part);
-    return area;
-  }
-  return 0.0;
-}
+// One plot polygon as read, in the plots layer's own CRS.
+struct RawPlot {
+  std::string id;
+  std::string where;
+  std::unique_ptr<OGRGeometry> shape;
+};
 
 struct PlotLayer {
   std::string label;
-  std::vector<Plot> plots;
+  OGRSpatialReference crs;
+  std::vector<RawPlot> features;
 };
 
-PlotLayer read_plots(OGRLayer& layer, const std::string& label,
-                     const OGRSpatialReference& source, const SurveyReadOptions& options,
-                     const OGRSpatialReference& target, std::vector<std::string>& notes) {
+void check_envelope(const OGRGeometry& geometry, const OGRSpatialReference& crs,
+                    const std::string& where) {
+  OGREnvelope e;
+  geometry.getEnvelope(&e);
+  check_coordinate(e.MinX, e.MinY, crs, where);
+  check_coordinate(e.MaxX, e.MaxY, crs, where);
+}
+
+PlotLayer read_plots(OGRLayer& layer, const std::string& label, const OGRSpatialReference& crs,
+                     const SurveyReadOptions& options, std::vector<std::string>& notes,
+                     std::vector<std::string>& warnings) {
   PlotLayer out;
   out.label = label;
+  out.crs = crs;
   OGRFeatureDefn* defn = layer.GetLayerDefn();
   const int id_index = defn->GetFieldIndex(options.plot_field.c_str());
   const bool id_from_layer_name =
@@ -201,16 +241,12 @@ PlotLayer read_plots(OGRLayer& layer, const std::string& label,
   if (id_from_layer_name)
     notes.push_back(out.label + ": one polygon and no field '" + options.plot_field +
                     "': the plot id is the layer name");
-  const TransformPtr transform = make_transform(source, target, out.label);
-
-  std::vector<std::string> order;
-  std::map<std::string, BgMultiPolygon> shapes;
-  std::map<std::string, std::string> first_feature;
+  TextDecoder decode(options.encoding);
   std::size_t repaired = 0;
-  layer.ResetReading();
-  for (auto& feature : layer) {
-    const std::string where = feature_label(out.label, feature->GetFID());
-    const OGRGeometry* geometry = feature->GetGeometryRef();
+  const bool csv = options.plots && is_csv_path(options.plots->path);
+  scan_layer(layer, out.label, csv, [&](OGRFeature& feature) {
+    const std::string where = feature_label(out.label, feature.GetFID());
+    const OGRGeometry* geometry = feature.GetGeometryRef();
     if (geometry == nullptr || geometry->IsEmpty())
       throw InputError(where + ": plot polygon is empty");
     const auto type = wkbFlatten(geometry->getGeometryType());
@@ -219,6 +255,7 @@ PlotLayer read_plots(OGRLayer& layer, const std::string& label,
       throw InputError(where + ": geometry is " +
                        OGRGeometryTypeToName(geometry->getGeometryType()) +
                        "; plots must be polygons");
+    check_envelope(*geometry, crs, where);
     std::unique_ptr<OGRGeometry> shape(geometry->hasCurveGeometry()
                                            ? geometry->getLinearGeometry()
                                            : geometry->clone());
@@ -235,50 +272,100 @@ PlotLayer read_plots(OGRLayer& layer, const std::string& label,
       ++repaired;
     }
     if (!(polygonal_area(*shape) > 0.0)) throw InputError(where + ": plot polygon has zero area");
-    std::string id = id_from_layer_name ? std::string(layer.GetName()) : std::string();
+    std::string id = id_from_layer_name ? decode(layer.GetName()) : std::string();
     if (!id_from_layer_name) {
-      auto value = field_text(*feature, id_index);
+      auto value = field_text(feature, id_index, decode);
       if (!value)
         throw InputError(where + ": plot field '" + options.plot_field + "' is empty");
       id = *value;
     }
-    if (transform && shape->transform(transform.get()) != OGRERR_NONE)
-      throw InputError(where + ": cannot be reprojected to the analysis CRS");
-    if (!shapes.count(id)) {
-      order.push_back(id);
-      first_feature[id] = where;
-    }
-    collect_polygons(*shape, shapes[id]);
-  }
-  if (order.empty()) throw InputError(out.label + ": holds no plot polygons");
+    out.features.push_back(RawPlot{std::move(id), where, std::move(shape)});
+  });
+  if (out.features.empty()) throw InputError(out.label + ": holds no plot polygons");
   if (repaired > 0)
     notes.push_back(out.label + ": " + std::to_string(repaired) +
                     " invalid polygon(s) repaired with GDAL MakeValid (--repair-geometry)");
-  for (const auto& id : order) {
-    // Several features with one id form one plot in several parts.
-    out.plots.push_back(
-        Plot{id, Window::from_polygons(shapes[id], first_feature[id] + " (plot '" + id + "')")});
-  }
+  if (const std::string w = decode.warning(out.label); !w.empty()) warnings.push_back(w);
   return out;
 }
 
-AnalysisCrs choose_crs(const SurveyReadOptions& options, const SightingLayer& sightings,
-                       const std::optional<OGRSpatialReference>& plots_crs,
-                       OGRSpatialReference& target) {
-  double mx = 0.0;
-  double my = 0.0;
-  for (const auto& row : sightings.rows) {
-    mx += row.x;
-    my += row.y;
+// The plots in the analysis CRS; several features with one id form one plot in parts.
+std::vector<Plot> project_plots(const PlotLayer& layer, const OGRSpatialReference& target) {
+  const TransformPtr transform = make_transform(layer.crs, target, layer.label);
+  std::vector<std::string> order;
+  std::map<std::string, BgMultiPolygon> shapes;
+  std::map<std::string, std::string> first_feature;
+  for (const auto& raw : layer.features) {
+    std::unique_ptr<OGRGeometry> shape(raw.shape->clone());
+    CPLErrorReset();
+    if (transform && (shape->transform(transform.get()) != OGRERR_NONE || !shape->IsValid()))
+      throw InputError(raw.where + ": cannot be reprojected to the analysis CRS" +
+                       (last_gdal_message().empty() ? std::string() : " (" + last_gdal_message() + ")"));
+    if (!shapes.count(raw.id)) {
+      order.push_back(raw.id);
+      first_feature[raw.id] = raw.where;
+    }
+    collect_polygons(*shape, shapes[raw.id]);
   }
-  const double n = static_cast<double>(std::max<std::size_t>(1, sightings.rows.size()));
+  std::vector<Plot> plots;
+  for (const auto& id : order)
+    plots.push_back(
+        Plot{id, Window::from_polygons(shapes[id], first_feature[id] + " (plot '" + id + "')")});
+  return plots;
+}
+
+// Largest |planar / geodesic - 1| of the raw plots when measured in `candidate`.
+double plot_area_error(const PlotLayer& layer, const std::vector<double>& geodesic,
+                       const OGRSpatialReference& candidate) {
+  const TransformPtr transform = make_transform(layer.crs, candidate, layer.label);
+  double worst = 0.0;
+  for (std::size_t i = 0; i < layer.features.size(); ++i) {
+    std::unique_ptr<OGRGeometry> shape(layer.features[i].shape->clone());
+    if (transform && shape->transform(transform.get()) != OGRERR_NONE) return 1.0;
+    worst = std::max(worst, std::abs(polygonal_area(*shape) / geodesic[i] - 1.0));
+  }
+  return worst;
+}
+
+std::vector<std::pair<double, double>> thinned(std::vector<std::pair<double, double>> points) {
+  constexpr std::size_t most = 4096;
+  if (points.size() <= most) return points;
+  std::vector<std::pair<double, double>> kept;
+  const std::size_t step = points.size() / most + 1;
+  for (std::size_t i = 0; i < points.size(); i += step) kept.push_back(points[i]);
+  return kept;
+}
+
+AnalysisCrs choose_crs(const SurveyReadOptions& options, const SightingLayer& sightings,
+                       const PlotLayer* plots, OGRSpatialReference& target) {
+  std::vector<CentreSample> samples;
+  std::vector<std::pair<double, double>> points;
+  for (const auto& row : sightings.rows) points.emplace_back(row.x, row.y);
+  samples.push_back(CentreSample{&sightings.crs, thinned(std::move(points))});
+  std::vector<double> geodesic;
+  if (plots) {
+    std::vector<std::pair<double, double>> vertices;
+    for (const auto& raw : plots->features) {
+      BgMultiPolygon shape;
+      collect_polygons(*raw.shape, shape);
+      for (const auto& polygon : shape)
+        for (const auto& v : polygon.outer()) vertices.emplace_back(v.x(), v.y());
+      geodesic.push_back(geodesic_area(shape, plots->crs, raw.where));
+    }
+    samples.push_back(CentreSample{&plots->crs, thinned(std::move(vertices))});
+  }
+  std::function<double(const OGRSpatialReference&)> area_error;
+  if (plots)
+    area_error = [&](const OGRSpatialReference& candidate) {
+      return plot_area_error(*plots, geodesic, candidate);
+    };
   ChosenCrs chosen = choose_analysis_crs(
       options.target_crs,
       {{&sightings.crs, "sightings"},
-       {plots_crs ? &*plots_crs : nullptr, "plots (sightings reprojected to it)"}},
-      sightings.crs, mx / n, my / n, sightings.label);
+       {plots ? &plots->crs : nullptr, "plots (sightings reprojected to it)"}},
+      samples, area_error, sightings.label);
   target = chosen.srs;
-  return AnalysisCrs{chosen.code, chosen.name, chosen.reason, chosen.wkt};
+  return AnalysisCrs{chosen.code, chosen.name, chosen.reason, chosen.wkt, 0.0};
 }
 
 std::vector<Sighting> to_analysis_crs(const SightingLayer& layer,
@@ -312,6 +399,86 @@ std::vector<Plot> hull_plots(const std::vector<Sighting>& sightings) {
   return plots;
 }
 
+std::vector<DuplicateLocation> duplicate_locations(const SightingLayer& raw,
+                                                   const std::vector<Sighting>& located) {
+  std::vector<std::size_t> order(raw.rows.size());
+  for (std::size_t i = 0; i < order.size(); ++i) order[i] = i;
+  std::sort(order.begin(), order.end(), [&](std::size_t a, std::size_t b) {
+    const auto& p = raw.rows[a];
+    const auto& q = raw.rows[b];
+    return std::tie(p.x, p.y, p.fid) < std::tie(q.x, q.y, q.fid);
+  });
+  std::vector<DuplicateLocation> out;
+  for (std::size_t i = 0; i < order.size();) {
+    std::size_t j = i + 1;
+    while (j < order.size() && raw.rows[order[j]].x == raw.rows[order[i]].x &&
+           raw.rows[order[j]].y == raw.rows[order[i]].y)
+      ++j;
+    if (j - i > 1) {
+      DuplicateLocation d{located[order[i]].location, {}};
+      for (std::size_t k = i; k < j; ++k) d.feature_ids.push_back(raw.rows[order[k]].fid);
+      out.push_back(std::move(d));
+    }
+    i = j;
+  }
+  return out;
+}
+
+std::string duplicate_warning(const std::vector<DuplicateLocation>& duplicates) {
+  std::size_t sightings = 0;
+  std::string groups;
+  for (std::size_t g = 0; g < duplicates.size(); ++g) {
+    sightings += duplicates[g].feature_ids.size();
+    if (g < 10) {
+      std::string ids;
+      for (const auto id : duplicates[g].feature_ids) ids += (ids.empty() ? "" : "=") + std::to_string(id);
+      groups += (groups.empty() ? "" : ", ") + ids;
+    }
+  }
+  return std::to_string(sightings) + " sightings share " + std::to_string(duplicates.size()) +
+         " location(s) exactly (feature ids " + groups + (duplicates.size() > 10 ? ", ..." : "") +
+         "): zero nearest-neighbour distances make a pattern look clustered; check for "
+         "repeated records or coordinates rounded to a grid";
+}
+
+// Refuses a run in which no sighting, or fewer than half of them, fall in a plot.
+void check_assignment(const Survey& survey, const SightingLayer& sightings,
+                      const std::string& plots_label, const SurveyReadOptions& options) {
+  const std::size_t total = sightings.rows.size();
+  const std::size_t assigned = survey.sighting_count();
+  if (total == 0 || 2 * assigned >= total) return;
+  const std::size_t unknown = survey.unknown_plot_feature_ids.size();
+  const std::size_t outside = survey.outside_feature_ids.size();
+  std::string message = sightings.label + ": only " + std::to_string(assigned) + " of " +
+                        std::to_string(total) + " sightings fall in a plot of " + plots_label +
+                        " (" + std::to_string(outside) + " outside every plot, " +
+                        std::to_string(unknown) + " naming a plot id that is not there)";
+  if (unknown > 0) {
+    std::set<std::string> ids;
+    for (const auto& plot : survey.plots) ids.insert(plot.id);
+    std::set<std::string> values;
+    for (const auto& row : sightings.rows)
+      if (row.plot && !ids.count(*row.plot)) values.insert(*row.plot);
+    message += "; the sightings' field '" + sightings.plot_attribute + "' holds " +
+               quoted_list(values, 3) + ", the plots' field '" + options.plot_field +
+               "' holds " + quoted_list(ids, 3) +
+               ": assign by location with --assign location, or name the sightings' plot "
+               "field with --sightings-plot-field";
+  } else {
+    message += "; wrong CRS (see --assume-crs) or the wrong plots file?";
+  }
+  throw InputError(message);
+}
+
+double window_area_error(const std::vector<Plot>& plots, const OGRSpatialReference& target) {
+  double worst = 0.0;
+  for (const auto& plot : plots) {
+    const double geodesic = geodesic_area(plot.window.shape(), target, "plot '" + plot.id + "'");
+    if (geodesic > 0.0) worst = std::max(worst, std::abs(plot.window.area_m2() / geodesic - 1.0));
+  }
+  return worst;
+}
+
 }  // namespace
 
 LoadedSurvey load_survey(const SurveyReadOptions& options) {
@@ -322,28 +489,26 @@ LoadedSurvey load_survey(const SurveyReadOptions& options) {
   }
   LoadedSurvey loaded;
   loaded.window = options.window;
-  SightingLayer sightings = read_sightings(options, loaded.notes);
+  SightingLayer sightings = read_sightings(options, loaded);
   loaded.sightings_label = sightings.label;
 
   DatasetPtr plots_dataset;
-  OGRLayer* plots_layer = nullptr;
-  std::optional<OGRSpatialReference> plots_crs;
+  std::optional<PlotLayer> plot_layer;
   if (options.window == WindowMode::plots) {
-    plots_dataset = open_vector(options.plots->path);
-    plots_layer = &pick_layer(*plots_dataset, options.plots->path, options.plots->layer,
-                              LayerKind::polygons, "--plots-layer");
-    loaded.plots_label = layer_label(options.plots->path, *plots_layer);
-    plots_crs = layer_crs(*plots_layer, loaded.plots_label, options.assume_crs);
+    plots_dataset = open_vector(options.plots->path, {}, options.encoding);
+    OGRLayer& layer = pick_layer(*plots_dataset, options.plots->path, options.plots->layer,
+                                 LayerKind::polygons, "--plots-layer");
+    loaded.plots_label = layer_label(options.plots->path, layer);
+    const OGRSpatialReference crs = layer_crs(layer, loaded.plots_label, options.assume_crs);
+    plot_layer = read_plots(layer, loaded.plots_label, crs, options, loaded.notes, loaded.warnings);
   }
   OGRSpatialReference target;
-  loaded.crs = choose_crs(options, sightings, plots_crs, target);
+  loaded.crs = choose_crs(options, sightings, plot_layer ? &*plot_layer : nullptr, target);
   const std::vector<Sighting> located = to_analysis_crs(sightings, target);
 
   std::vector<Plot> plots;
   if (options.window == WindowMode::plots) {
-    plots = read_plots(*plots_layer, loaded.plots_label, *plots_crs, options, target,
-                       loaded.notes)
-                .plots;
+    plots = project_plots(*plot_layer, target);
   } else {
     plots = hull_plots(located);
     loaded.warnings.push_back(
@@ -351,7 +516,18 @@ LoadedSurvey load_survey(const SurveyReadOptions& options) {
         "estimated from the points themselves, so densities are model-based (they assume a "
         "homogeneous Poisson pattern in a convex window), not design-based");
   }
+  loaded.crs.max_area_error = window_area_error(plots, target);
+  if (loaded.crs.max_area_error > max_crs_area_error)
+    loaded.warnings.push_back("plot areas in " + loaded.crs.code + " differ from their geodesic "
+                              "(ellipsoidal) areas by up to " +
+                              format_significant(100.0 * loaded.crs.max_area_error, 2) +
+                              "%; densities carry that error (choose an equal-area CRS with --crs)");
   loaded.survey = assign_to_plots(located, std::move(plots));
+  if (options.window == WindowMode::plots)
+    check_assignment(loaded.survey, sightings, loaded.plots_label, options);
+  loaded.duplicate_locations = duplicate_locations(sightings, located);
+  if (!loaded.duplicate_locations.empty())
+    loaded.warnings.push_back(duplicate_warning(loaded.duplicate_locations));
   const Survey& s = loaded.survey;
   if (!s.outside_feature_ids.empty())
     loaded.warnings.push_back(std::to_string(s.outside_feature_ids.size()) +
@@ -364,7 +540,7 @@ LoadedSurvey load_survey(const SurveyReadOptions& options) {
   if (!s.off_window_feature_ids.empty())
     loaded.warnings.push_back(std::to_string(s.off_window_feature_ids.size()) +
                               " sighting(s) lie outside the polygon of the plot their '" +
-                              options.plot_field + "' attribute names; kept by attribute "
+                              sightings.plot_attribute + "' attribute names; kept by attribute "
                               "(feature ids: " + id_list(s.off_window_feature_ids) + ")");
   return loaded;
 }
@@ -387,9 +563,10 @@ DetectionTable read_detection_table(const std::string& path, std::optional<Detec
   if (species_index < 0 || p_index < 0)
     throw InputError(label + ": needs columns 'species' and 'p' (optional 'se'); found: " +
                      field_list(layer));
+  TextDecoder decode;
   const auto parse = [&](OGRFeature& feature, int index, const std::string& where,
                          const char* what) -> double {
-    const auto text = field_text(feature, index);
+    const auto text = field_text(feature, index, decode);
     if (!text) throw InputError(where + ": " + what + " is empty");
     double value = 0.0;
     const char* begin = text->data();
@@ -400,21 +577,22 @@ DetectionTable read_detection_table(const std::string& path, std::optional<Detec
     return value;
   };
   std::map<std::string, Detection> rows;
-  int line = 1;  // the header
-  layer.ResetReading();
-  for (auto& feature : layer) {
-    ++line;
-    const std::string where = label + ": line " + std::to_string(line);
-    const auto species = field_text(*feature, species_index);
+  const bool csv = is_csv_path(path);
+  scan_layer(layer, label, csv, [&](OGRFeature& feature) {
+    // CSV feature ids count data rows from 1; the header is line 1.
+    const std::string where =
+        label + (csv ? ": line " + std::to_string(feature.GetFID() + 1)
+                     : ": feature " + std::to_string(feature.GetFID()));
+    const auto species = field_text(feature, species_index, decode);
     if (!species) throw InputError(where + ": species is empty");
-    const double p = parse(*feature, p_index, where, "p");
-    const double se = se_index >= 0 && field_text(*feature, se_index)
-                          ? parse(*feature, se_index, where, "se")
+    const double p = parse(feature, p_index, where, "p");
+    const double se = se_index >= 0 && field_text(feature, se_index, decode)
+                          ? parse(feature, se_index, where, "se")
                           : 0.0;
     const Detection detection = make_detection(p, se, where + " (species '" + *species + "')");
     if (!rows.emplace(*species, detection).second)
       throw InputError(where + ": species '" + *species + "' is listed twice");
-  }
+  });
   return DetectionTable::by_species(std::move(rows), fallback, label);
 }
 

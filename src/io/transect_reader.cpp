@@ -3,6 +3,7 @@
 #include <charconv>
 #include <cmath>
 #include <map>
+#include <set>
 
 #include <boost/geometry.hpp>
 #include <boost/geometry/geometries/linestring.hpp>
@@ -36,9 +37,9 @@ int required_field(OGRLayer& layer, const std::string& label, const std::string&
   return index;
 }
 
-std::optional<std::string> text(OGRFeature& feature, int index) {
+std::optional<std::string> text(OGRFeature& feature, int index, TextDecoder& decode) {
   if (index < 0 || !feature.IsFieldSetAndNotNull(index)) return std::nullopt;
-  std::string value = feature.GetFieldAsString(index);
+  std::string value = decode(feature.GetFieldAsString(index));
   const auto first = value.find_first_not_of(" \t\r\n");
   if (first == std::string::npos) return std::nullopt;
   const auto last = value.find_last_not_of(" \t\r\n");
@@ -46,7 +47,8 @@ std::optional<std::string> text(OGRFeature& feature, int index) {
 }
 
 std::optional<double> number(OGRFeature& feature, int index, const std::string& context, const std::string& name) {
-  const auto value = text(feature, index);
+  TextDecoder decode;
+  const auto value = text(feature, index, decode);
   if (!value) return std::nullopt;
   double parsed = 0.0;
   const char* begin = value->data();
@@ -81,24 +83,99 @@ struct TransectGeometry {
 
 double polygon_area(OGRLayer& layer, const OGRSpatialReference& source, const OGRSpatialReference& target,
                     const std::string& label, const std::optional<std::string>& stratum_field,
-                    std::map<std::string, double>& by_stratum) {
+                    std::map<std::string, double>& by_stratum, double& worst_error) {
   const TransformPtr transform = make_transform(source, target, label);
   const int stratum_index = stratum_field ? field_index(layer, *stratum_field) : -1;
   double total = 0.0;
-  layer.ResetReading();
-  for (auto& feature : layer) {
-    const OGRGeometry* g = feature->GetGeometryRef();
-    if (g == nullptr || g->IsEmpty()) throw InputError(where(label, feature->GetFID()) + ": study-area polygon is empty");
+  TextDecoder decode;
+  scan_layer(layer, label, false, [&](OGRFeature& feature) {
+    const std::string context = where(label, feature.GetFID());
+    const OGRGeometry* g = feature.GetGeometryRef();
+    if (g == nullptr || g->IsEmpty()) throw InputError(context + ": study-area polygon is empty");
     std::unique_ptr<OGRGeometry> copy(g->clone());
-    if (transform) copy->transform(transform.get());
+    CPLErrorReset();
+    if (transform && copy->transform(transform.get()) != OGRERR_NONE)
+      throw InputError(context + ": cannot be reprojected to the analysis CRS (" + last_gdal_message() + ")");
     double area = 0.0;
     if (const auto* s = dynamic_cast<const OGRSurface*>(copy.get())) area = s->get_Area();
     else if (const auto* m = dynamic_cast<const OGRMultiSurface*>(copy.get())) area = m->get_Area();
-    if (!(area > 0.0)) throw InputError(where(label, feature->GetFID()) + ": study-area polygon has zero area");
+    if (!(area > 0.0) || !std::isfinite(area)) throw InputError(context + ": study-area polygon has zero area");
+    BgMultiPolygon shape;
+    std::unique_ptr<OGRGeometry> linear(copy->getLinearGeometry());
+    const auto add = [&shape](const OGRPolygon& p) {
+      BgPolygon b;
+      for (const auto& v : *p.getExteriorRing()) b.outer().emplace_back(v.getX(), v.getY());
+      for (int i = 0; i < p.getNumInteriorRings(); ++i) {
+        b.inners().emplace_back();
+        for (const auto& v : *p.getInteriorRing(i)) b.inners().back().emplace_back(v.getX(), v.getY());
+      }
+      shape.push_back(std::move(b));
+    };
+    const auto type = wkbFlatten(linear->getGeometryType());
+    if (type == wkbPolygon) add(*linear->toPolygon());
+    else if (type == wkbMultiPolygon)
+      for (const auto* part : *linear->toMultiPolygon()) add(*part);
+    const double geodesic = geodesic_area(shape, target, context);
+    if (geodesic > 0.0) worst_error = std::max(worst_error, std::abs(area / geodesic - 1.0));
     total += area;
-    if (const auto s = text(*feature, stratum_index)) by_stratum[*s] += area;
-  }
+    if (const auto s = text(feature, stratum_index, decode)) by_stratum[*s] += area;
+  });
   return total;
+}
+
+
+void check_envelope(const OGRGeometry& geometry, const OGRSpatialReference& crs, const std::string& context);
+
+std::vector<std::pair<double, double>> transect_vertices(OGRLayer& layer, const OGRSpatialReference& crs,
+                                                         const std::string& label) {
+  std::vector<std::pair<double, double>> points;
+  layer.ResetReading();
+  for (auto& feature : layer) {
+    const OGRGeometry* g = feature->GetGeometryRef();
+    if (g == nullptr || g->IsEmpty()) continue;
+    check_envelope(*g, crs, where(label, feature->GetFID()));
+    OGREnvelope e;
+    g->getEnvelope(&e);
+    points.emplace_back(e.MinX, e.MinY);
+    points.emplace_back(e.MaxX, e.MaxY);
+    if (points.size() > 8192) break;
+  }
+  return points;
+}
+
+// Refuses sightings whose transect ids match none of the transects' ids.
+void check_some_ids_match(OGRLayer& layer, const std::string& label, int index,
+                          const std::map<std::string, std::size_t>& ids, const std::string& sighting_field,
+                          const std::string& transect_field) {
+  std::set<std::string> values;
+  TextDecoder decode;
+  layer.ResetReading();
+  for (auto& feature : layer) {
+    const auto value = text(*feature, index, decode);
+    if (!value) continue;
+    if (ids.count(*value)) return;
+    if (values.size() < 4) values.insert(*value);
+  }
+  if (values.empty()) return;
+  std::string shown;
+  for (const auto& v : values) shown += (shown.empty() ? "'" : ", '") + v + "'";
+  std::string known;
+  std::size_t n = 0;
+  for (const auto& [id, index_unused] : ids) {
+    if (n++ == 3) break;
+    known += (known.empty() ? "'" : ", '") + id + "'";
+  }
+  throw InputError(label + ": none of the sightings' '" + sighting_field + "' values (" + shown +
+                   ", ...) is a transect id in field '" + transect_field + "' (" + known +
+                   ", ...): assign by location (nearest transect) with --assign location, or name the "
+                   "sightings' field with --sightings-transect-field");
+}
+
+void check_envelope(const OGRGeometry& geometry, const OGRSpatialReference& crs, const std::string& context) {
+  OGREnvelope e;
+  geometry.getEnvelope(&e);
+  check_coordinate(e.MinX, e.MinY, crs, context);
+  check_coordinate(e.MaxX, e.MaxY, crs, context);
 }
 
 }  // namespace
@@ -111,14 +188,15 @@ LoadedTransects load_transects(const TransectReadOptions& options) {
   LoadedTransects loaded;
   loaded.survey.kind = is_line ? TransectKind::line : TransectKind::point;
 
-  DatasetPtr transects_ds = open_vector(spec.path);
+  DatasetPtr transects_ds = open_vector(spec.path, {}, options.encoding);
   OGRLayer& transect_layer = pick_layer(*transects_ds, spec.path, spec.layer,
                                         is_line ? LayerKind::lines : LayerKind::points,
                                         is_line ? "--transects-layer" : "--transects-layer");
   loaded.transects_label = layer_label(spec.path, transect_layer);
   const OGRSpatialReference transect_crs = layer_crs(transect_layer, loaded.transects_label, options.assume_crs);
 
-  DatasetPtr sightings_ds = open_vector(options.sightings.path, CsvColumns{options.x_field, options.y_field});
+  DatasetPtr sightings_ds = open_vector(options.sightings.path, CsvColumns{options.x_field, options.y_field},
+                                        options.encoding);
   OGRLayer& sightings_layer = pick_layer(*sightings_ds, options.sightings.path, options.sightings.layer,
                                          LayerKind::points, "--layer");
   loaded.sightings_label = layer_label(options.sightings.path, sightings_layer);
@@ -133,9 +211,9 @@ LoadedTransects load_transects(const TransectReadOptions& options) {
       options.target_crs,
       {{&transect_crs, is_line ? "transect lines" : "point stations"},
        {sightings_crs ? &*sightings_crs : nullptr, "sightings"}},
-      transect_crs, (extent.MinX + extent.MaxX) / 2.0, (extent.MinY + extent.MaxY) / 2.0,
-      loaded.transects_label);
-  loaded.crs = AnalysisCrs{chosen.code, chosen.name, chosen.reason, chosen.wkt};
+      {CentreSample{&transect_crs, transect_vertices(transect_layer, transect_crs, loaded.transects_label)}},
+      nullptr, loaded.transects_label);
+  loaded.crs = AnalysisCrs{chosen.code, chosen.name, chosen.reason, chosen.wkt, 0.0};
   const OGRSpatialReference& target = chosen.srs;
 
   // Transects.
@@ -148,10 +226,11 @@ LoadedTransects load_transects(const TransectReadOptions& options) {
   const TransformPtr to_target = make_transform(transect_crs, target, tl);
   std::vector<TransectGeometry> geometries;
   std::map<std::string, std::size_t> by_id;
-  transect_layer.ResetReading();
-  for (auto& feature : transect_layer) {
+  TextDecoder decode(options.encoding);
+  scan_layer(transect_layer, tl, is_csv_path(spec.path), [&](OGRFeature& f) {
+    OGRFeature* feature = &f;
     const std::string context = where(tl, feature->GetFID());
-    const auto id = text(*feature, id_index);
+    const auto id = text(*feature, id_index, decode);
     if (!id) throw InputError(context + ": transect field '" + options.transect_field + "' is empty");
     const OGRGeometry* g = feature->GetGeometryRef();
     if (effort_index < 0 || !is_line) {
@@ -160,7 +239,7 @@ LoadedTransects load_transects(const TransectReadOptions& options) {
     auto [it, inserted] = by_id.emplace(*id, geometries.size());
     if (inserted) geometries.push_back(TransectGeometry{*id, std::nullopt, {}, BgPoint(0, 0), 0.0, std::nullopt, 1.0});
     TransectGeometry& t = geometries[it->second];
-    if (stratum_index >= 0) t.stratum = text(*feature, stratum_index);
+    if (stratum_index >= 0) t.stratum = text(*feature, stratum_index, decode);
     if (visits_index >= 0) {
       const auto v = number(*feature, visits_index, context, "visits");
       if (v) {
@@ -169,6 +248,7 @@ LoadedTransects load_transects(const TransectReadOptions& options) {
       }
     }
     if (g != nullptr && !g->IsEmpty()) {
+      check_envelope(*g, transect_crs, context);
       std::unique_ptr<OGRGeometry> copy(g->clone());
       if (to_target && copy->transform(to_target.get()) != OGRERR_NONE)
         throw InputError(context + ": cannot be reprojected to the analysis CRS");
@@ -193,7 +273,7 @@ LoadedTransects load_transects(const TransectReadOptions& options) {
       if (!e) throw InputError(context + " (transect '" + *id + "'): effort field '" + *options.effort_field + "' is empty");
       t.effort_km = t.effort_km.value_or(0.0) + *e;
     }
-  }
+  });
   if (geometries.empty()) throw InputError(tl + ": holds no transects");
   for (const auto& t : geometries) {
     TransectUnit unit{t.id, t.stratum, 0.0};
@@ -210,7 +290,14 @@ LoadedTransects load_transects(const TransectReadOptions& options) {
   // Sightings.
   const std::string& sl = loaded.sightings_label;
   const int species_index = required_field(sightings_layer, sl, options.species_field, "--species-field");
-  const int sighting_transect_index = field_index(sightings_layer, options.transect_field);
+  const std::string sighting_transect_field = options.sighting_transect_field.value_or(options.transect_field);
+  const int sighting_transect_index =
+      options.assignment == Assignment::location ? -1 : field_index(sightings_layer, sighting_transect_field);
+  if (sighting_transect_index < 0 && options.assignment == Assignment::attribute)
+    throw InputError(sl + ": no transect field '" + sighting_transect_field + "' (fields: " + field_list(sightings_layer) +
+                     "); name it with --sightings-transect-field, or assign by location with --assign location");
+  if (sighting_transect_index >= 0)
+    check_some_ids_match(sightings_layer, sl, sighting_transect_index, by_id, sighting_transect_field, options.transect_field);
   const int distance_index = options.distance_field ? required_field(sightings_layer, sl, *options.distance_field, "--distance-field") : -1;
   const int angle_index = options.angle_field ? required_field(sightings_layer, sl, *options.angle_field, "--angle-field") : -1;
   const int size_index = options.size_field ? required_field(sightings_layer, sl, *options.size_field, "--size-field") : -1;
@@ -218,19 +305,20 @@ LoadedTransects load_transects(const TransectReadOptions& options) {
     throw InputError(sl + ": has neither locations nor a distance field; name the distances with --distance-field");
   if (distance_index >= 0 && sighting_transect_index < 0 && !sightings_have_geometry)
     throw InputError(sl + ": recorded distances need the transect of each sighting: no field '" +
-                     options.transect_field + "' (fields: " + field_list(sightings_layer) + ")");
+                     sighting_transect_field + "' (fields: " + field_list(sightings_layer) +
+                     "); name it with --sightings-transect-field");
   TransformPtr sightings_to_target;
   if (sightings_crs) sightings_to_target = make_transform(*sightings_crs, target, sl);
 
-  sightings_layer.ResetReading();
-  for (auto& feature : sightings_layer) {
+  const LayerScan scan = scan_layer(sightings_layer, sl, is_csv_path(options.sightings.path), [&](OGRFeature& f) {
+    OGRFeature* feature = &f;
     const std::string context = where(sl, feature->GetFID());
     TransectObservation o;
-    const auto species = text(*feature, species_index);
+    const auto species = text(*feature, species_index, decode);
     if (!species) throw InputError(context + ": species field '" + options.species_field + "' is empty");
     o.species = *species;
     std::optional<std::size_t> named;
-    if (const auto id = text(*feature, sighting_transect_index)) {
+    if (const auto id = text(*feature, sighting_transect_index, decode)) {
       const auto found = by_id.find(*id);
       if (found == by_id.end())
         throw InputError(context + ": transect '" + *id + "' is not in " + tl);
@@ -244,6 +332,7 @@ LoadedTransects load_transects(const TransectReadOptions& options) {
       double x = g->toPoint()->getX();
       double y = g->toPoint()->getY();
       if (!std::isfinite(x) || !std::isfinite(y)) throw InputError(context + ": coordinate is NaN or infinite");
+      check_coordinate(x, y, *sightings_crs, context);
       if (sightings_to_target && !sightings_to_target->Transform(1, &x, &y))
         throw InputError(context + ": cannot be reprojected to the analysis CRS");
       location = BgPoint(x, y);
@@ -280,7 +369,7 @@ LoadedTransects load_transects(const TransectReadOptions& options) {
                            " m from the nearest transect, more than --max-offset " +
                            format_general(options.max_offset_m) + " m (wrong CRS or wrong transect file?)");
       } else {
-        throw InputError(context + ": has neither a transect id ('" + options.transect_field +
+        throw InputError(context + ": has neither a transect id ('" + sighting_transect_field +
                          "') nor a location, so its transect is unknown");
       }
     } else {
@@ -321,18 +410,24 @@ LoadedTransects load_transects(const TransectReadOptions& options) {
       o.size = *s;
     }
     loaded.survey.observations.push_back(o);
-  }
+  });
+  if (scan.blank_rows > 0)
+    loaded.notes.push_back(sl + ": " + std::to_string(scan.blank_rows) + " blank row(s) (every field empty) skipped");
+  if (const std::string w = decode.warning(sl); !w.empty()) loaded.warnings.push_back(w);
   if (distance_index < 0)
     loaded.notes.push_back("distances computed from sighting locations to the " +
                            std::string(is_line ? "nearest (or named) transect line" : "nearest (or named) station"));
 
   if (options.study_area) {
-    DatasetPtr area_ds = open_vector(options.study_area->path);
+    DatasetPtr area_ds = open_vector(options.study_area->path, {}, options.encoding);
     OGRLayer& area_layer = pick_layer(*area_ds, options.study_area->path, options.study_area->layer,
                                       LayerKind::polygons, "--study-area-layer");
     const std::string al = layer_label(options.study_area->path, area_layer);
     loaded.study_area_m2 = polygon_area(area_layer, layer_crs(area_layer, al, options.assume_crs), target, al,
-                                        options.stratum_field, loaded.stratum_area_m2);
+                                        options.stratum_field, loaded.stratum_area_m2, loaded.crs.max_area_error);
+    if (loaded.crs.max_area_error > max_crs_area_error)
+      loaded.warnings.push_back("study-area polygons in " + loaded.crs.code + " differ from their geodesic areas by up to " +
+                                format_significant(100.0 * loaded.crs.max_area_error, 2) + "% (choose an equal-area CRS with --crs)");
   }
   return loaded;
 }

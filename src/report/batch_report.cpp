@@ -9,6 +9,7 @@
 
 #include <nlohmann/json.hpp>
 
+#include "json_text.hpp"
 #include "stipple/error.hpp"
 #include "stipple/format.hpp"
 #include "stipple/report/density_report.hpp"
@@ -58,7 +59,7 @@ std::string cell(const Json& v, int digits = 4) {
   if (v.is_number_float()) return format_significant(v.get<double>(), digits);
   if (v.is_number()) return std::to_string(v.get<long long>());
   if (v.is_string()) return escape(v.get<std::string>());
-  return escape(v.dump());
+  return escape(json_text(v, -1));
 }
 
 std::string svg_inline(const fs::path& path) {

@@ -5,6 +5,8 @@
 
 #include <nlohmann/json.hpp>
 
+#include "json_text.hpp"
+#include "report/input_summary.hpp"
 #include "stipple/format.hpp"
 
 namespace stipple {
@@ -12,6 +14,8 @@ namespace stipple {
 namespace {
 
 using Json = nlohmann::ordered_json;
+using report_detail::crs_area_note;
+using report_detail::duplicate_locations_json;
 
 Json interval_json(const Interval& ci) { return Json::array({ci.lower, ci.upper}); }
 
@@ -114,6 +118,7 @@ std::string density_json(const LoadedSurvey& survey, const DensityResult& result
   doc["crs"] = survey.crs.code;
   doc["crs_name"] = survey.crs.name;
   doc["crs_reason"] = survey.crs.reason;
+  doc["crs_max_area_error"] = survey.crs.max_area_error;
   doc["unit"] = std::string(unit_name(result.unit));
   doc["confidence"] = result.confidence;
   doc["alpha"] = result.alpha;
@@ -198,13 +203,14 @@ std::string density_json(const LoadedSurvey& survey, const DensityResult& result
   assignment["outside_own_plot_feature_ids"] = ids_json(s.off_window_feature_ids);
   doc["assignment"] = std::move(assignment);
   doc["detection_method"] = method_line(result);
+  doc["duplicate_locations"] = duplicate_locations_json(survey);
   doc["notes"] = survey.notes;
   Json warnings = Json::array();
   for (const auto& w : survey.warnings) warnings.push_back(w);
   for (const auto& w : density_warnings(result)) warnings.push_back(w);
   doc["warnings"] = std::move(warnings);
   doc["cautions"] = density_cautions();
-  return doc.dump(2) + "\n";
+  return json_text(doc);
 }
 
 std::string density_table(const LoadedSurvey& survey, const DensityResult& result) {
@@ -217,7 +223,7 @@ std::string density_table(const LoadedSurvey& survey, const DensityResult& resul
   out << "  sightings: " << survey.sightings_label << "\n";
   if (!survey.plots_label.empty()) out << "  plots:     " << survey.plots_label << "\n";
   out << "  CRS:       " << survey.crs.code << " (" << survey.crs.name << "), "
-      << survey.crs.reason << "\n";
+      << survey.crs.reason << "; " << crs_area_note(survey.crs) << "\n";
   out << "  intensity per " << unit << "; " << level
       << " exact Poisson (Garwood) intervals; " << method_line(result) << "\n\n";
 

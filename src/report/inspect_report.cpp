@@ -4,6 +4,7 @@
 
 #include <nlohmann/json.hpp>
 
+#include "json_text.hpp"
 #include "stipple/format.hpp"
 
 namespace stipple {
@@ -15,6 +16,13 @@ std::string inspect_table(const SourceSummary& source) {
     out << "\nlayer '" << layer.name << "': " << layer.geometry_type << ", "
         << layer.feature_count << " feature(s), CRS " << layer.crs;
     if (!layer.crs_name.empty() && layer.crs_name != layer.crs) out << " (" << layer.crs_name << ")";
+    if (layer.declared_count >= 0 && layer.declared_count != layer.feature_count)
+      out << "\n  WARNING: the header declares " << layer.declared_count << " features but "
+          << layer.feature_count << " could be read (truncated or damaged file?); analyses refuse it";
+    if (!layer.read_error.empty()) out << "\n  WARNING: reading stopped on an error: " << layer.read_error;
+    if (layer.undecodable_values > 0)
+      out << "\n  WARNING: " << layer.undecodable_values
+          << " text value(s) are not valid UTF-8 (shown with U+FFFD); give the encoding with --encoding";
     out << "\n  fields: ";
     for (std::size_t i = 0; i < layer.fields.size(); ++i)
       out << (i ? ", " : "") << layer.fields[i].name << " (" << layer.fields[i].type << ")";
@@ -28,7 +36,8 @@ std::string inspect_table(const SourceSummary& source) {
       out << table.render("    ");
     }
     if (!layer.plots.empty()) {
-      out << "  plots (areas in " << layer.area_crs << "):\n";
+      out << "  plots (areas in " << layer.area_crs << ", within "
+          << format_significant(100.0 * layer.max_area_error, 2) << "% of geodesic areas):\n";
       TextTable table({"plot", "area_ha", "area_m2", "valid"});
       for (const auto& plot : layer.plots)
         table.add_row({plot.id, format_fixed(plot.area_m2 / 1e4, 4), format_fixed(plot.area_m2, 1),
@@ -52,6 +61,9 @@ std::string inspect_json(const SourceSummary& source) {
     j["name"] = layer.name;
     j["geometry_type"] = layer.geometry_type;
     j["feature_count"] = layer.feature_count;
+    j["declared_feature_count"] = layer.declared_count >= 0 ? Json(layer.declared_count) : Json(nullptr);
+    j["read_error"] = layer.read_error.empty() ? Json(nullptr) : Json(layer.read_error);
+    j["undecodable_values"] = layer.undecodable_values;
     j["crs"] = layer.crs;
     j["crs_name"] = layer.crs_name;
     Json fields = Json::array();
@@ -63,10 +75,11 @@ std::string inspect_json(const SourceSummary& source) {
       plots.push_back({{"plot", p.id}, {"area_m2", p.area_m2}, {"valid", p.valid}});
     j["plots"] = std::move(plots);
     j["area_crs"] = layer.area_crs;
+    j["crs_max_area_error"] = layer.plots.empty() ? Json(nullptr) : Json(layer.max_area_error);
     layers.push_back(std::move(j));
   }
   doc["layers"] = std::move(layers);
-  return doc.dump(2) + "\n";
+  return json_text(doc);
 }
 
 }  // namespace stipple

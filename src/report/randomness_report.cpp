@@ -7,6 +7,8 @@
 
 #include <nlohmann/json.hpp>
 
+#include "json_text.hpp"
+#include "report/input_summary.hpp"
 #include "stipple/format.hpp"
 #include "stipple/report/figure.hpp"
 
@@ -15,6 +17,8 @@ namespace stipple {
 namespace {
 
 using Json = nlohmann::ordered_json;
+using report_detail::crs_area_note;
+using report_detail::duplicate_locations_json;
 
 Json number_or_null(double v) { return std::isfinite(v) ? Json(v) : Json(nullptr); }
 Json optional_json(const std::optional<double>& v) { return v ? number_or_null(*v) : Json(nullptr); }
@@ -96,6 +100,7 @@ std::string randomness_json(const LoadedSurvey& survey, const RandomnessResult& 
   doc["stipple_version"] = STIPPLE_VERSION;
   doc["command"] = "randomness";
   doc["crs"] = survey.crs.code;
+  doc["crs_max_area_error"] = survey.crs.max_area_error;
   doc["simulations"] = result.simulations;
   doc["seed"] = result.seed;
   doc["alpha"] = result.alpha;
@@ -156,10 +161,11 @@ std::string randomness_json(const LoadedSurvey& survey, const RandomnessResult& 
     skipped.push_back({{"plot", s.plot}, {"species", s.species ? Json(*s.species) : Json(nullptr)},
                        {"n", s.n}, {"reason", s.reason}});
   doc["skipped"] = std::move(skipped);
+  doc["duplicate_locations"] = duplicate_locations_json(survey);
   doc["notes"] = survey.notes;
   doc["warnings"] = survey.warnings;
   doc["cautions"] = randomness_cautions();
-  return doc.dump(2) + "\n";
+  return json_text(doc);
 }
 
 std::string randomness_table(const LoadedSurvey& survey, const RandomnessResult& result) {
@@ -167,7 +173,8 @@ std::string randomness_table(const LoadedSurvey& survey, const RandomnessResult&
   out << "stipple randomness\n";
   out << "  sightings: " << survey.sightings_label << "\n";
   if (!survey.plots_label.empty()) out << "  plots:     " << survey.plots_label << "\n";
-  out << "  CRS:       " << survey.crs.code << " (" << survey.crs.name << ")\n";
+  out << "  CRS:       " << survey.crs.code << " (" << survey.crs.name << "); "
+      << crs_area_note(survey.crs) << "\n";
   out << "  " << result.simulations << " CSR simulations (binomial process, same n and window), seed "
       << result.seed << ", alpha " << format_general(result.alpha) << "\n\n";
   TextTable table({"plot", "species", "n", "quadrat p", "CE ratio", "CE p", "edge", "L rmax_m",

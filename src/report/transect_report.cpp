@@ -9,6 +9,7 @@
 
 #include <nlohmann/json.hpp>
 
+#include "json_text.hpp"
 #include "stipple/format.hpp"
 #include "stipple/report/figure.hpp"
 
@@ -66,6 +67,7 @@ std::string transect_json(const LoadedTransects& input, const TransectResult& re
   doc["command"] = "transect";
   doc["unit"] = std::string(unit_name(result.unit));
   doc["crs"] = input.crs.code;
+  doc["crs_max_area_error"] = input.study_area_m2 ? Json(input.crs.max_area_error) : Json(nullptr);
   doc["survey"] = result.kind == TransectKind::line ? "line" : "point";
   doc["confidence"] = result.confidence;
   doc["truncation"] = num(result.truncation_m);
@@ -127,8 +129,9 @@ std::string transect_json(const LoadedTransects& input, const TransectResult& re
   for (const auto& n : input.notes) notes.push_back(n);
   for (const auto& n : result.notes) notes.push_back(n);
   doc["notes"] = std::move(notes);
+  doc["warnings"] = input.warnings;
   doc["cautions"] = transect_cautions();
-  return doc.dump(2) + "\n";
+  return json_text(doc);
 }
 
 std::string transect_table(const LoadedTransects& input, const TransectResult& result) {
@@ -180,6 +183,10 @@ std::string transect_table(const LoadedTransects& input, const TransectResult& r
     out << "  " << label(e.species, "(all)") << ": b = " << format_fixed(e.dispersion, 2) << ", "
         << format_significant(*e.effort_for_target, 4) << (lines ? " km" : " visits") << "\n";
   }
+  if (!input.warnings.empty()) {
+    out << "\nWarnings:\n";
+    for (const auto& w : input.warnings) out << "  - " << w << "\n";
+  }
   if (!input.notes.empty() || !result.notes.empty()) {
     out << "\nNotes\n";
     for (const auto& n : input.notes) out << "  - " << n << "\n";
@@ -202,7 +209,7 @@ std::string effort_json(double pilot_detections, double pilot_effort, double tar
   doc["effort_needed"] = effort_needed;
   doc["detections_expected"] = effort_needed / pilot_effort * pilot_detections;
   doc["method"] = "L = (b / CV^2) (L0 / n0) (Buckland et al. 2001)";
-  return doc.dump(2) + "\n";
+  return json_text(doc);
 }
 
 std::string transect_csv(const TransectResult& result) {

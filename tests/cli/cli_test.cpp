@@ -135,13 +135,15 @@ TEST(Cli, GpsLonLatCsvIsReprojectedAndStraysAreReported) {
   EXPECT_NE(r.err.find("outside every plot"), std::string::npos);
 }
 
-TEST(Cli, GeographicInputWithoutPlotsGetsUtmAndModelBasedWarning) {
+TEST(Cli, GeographicInputWithoutPlotsGetsLocalEqualAreaAndModelBasedWarning) {
   const auto r = run_cli(sample("gps-sightings.csv") +
                          " --assume-crs EPSG:4326 --window convex-hull --json -");
   ASSERT_EQ(r.exit_code, 0) << r.err;
   const auto doc = parse(r.out);
-  EXPECT_EQ(doc["crs"], "EPSG:32630");
-  EXPECT_NE(doc["crs_reason"].get<std::string>().find("UTM zone"), std::string::npos);
+  // A Lambert azimuthal equal-area CRS centred on the sightings; its PROJ string is the code.
+  EXPECT_EQ(doc["crs"].get<std::string>().rfind("+proj=laea +lat_0=", 0), 0u) << doc["crs"];
+  EXPECT_NE(doc["crs_reason"].get<std::string>().find("equal-area"), std::string::npos);
+  EXPECT_LT(doc["crs_max_area_error"].get<double>(), 1e-6);
   EXPECT_EQ(doc["window"], "convex-hull");
   EXPECT_NE(r.err.find("model-based"), std::string::npos);
 }

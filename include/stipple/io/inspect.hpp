@@ -23,13 +23,17 @@ struct PlotAreaSummary {
 struct LayerSummary {
   std::string name;
   std::string geometry_type;
-  std::int64_t feature_count = 0;
+  std::int64_t feature_count = 0;    ///< features actually read
+  std::int64_t declared_count = -1;  ///< features the header declares; -1 = no header count
+  std::string read_error;            ///< GDAL's message when reading stopped on an error
+  std::int64_t undecodable_values = 0;  ///< text values that were not valid UTF-8
   std::string crs;       ///< "EPSG:N", a CRS name, or "none"
   std::string crs_name;
   std::vector<FieldSummary> fields;
   std::optional<std::map<std::string, std::int64_t>> species_counts;  ///< when the field exists
   std::vector<PlotAreaSummary> plots;  ///< polygon layers
-  std::string area_crs;  ///< CRS the plot areas were measured in
+  std::string area_crs;  ///< CRS the plot areas were measured in (the analysis rule)
+  double max_area_error = 0.0;  ///< largest |planar / geodesic - 1| of the plots in area_crs
 };
 
 struct SourceSummary {
@@ -44,10 +48,13 @@ struct InspectOptions {
   std::optional<std::string> x_field;
   std::optional<std::string> y_field;
   std::optional<std::string> assume_crs;
+  std::optional<std::string> encoding;
 };
 
-/// Layers, geometry types, fields, CRS, feature and species counts, and plot areas (in the
-/// layer's CRS when projected in metres, else in the UTM zone of the layer's centre).
+/// Layers, geometry types, fields, CRS, feature and species counts (read, and declared by
+/// the header when the format has one), and plot areas in the CRS the analysis would use
+/// (the layer's own when projected in metres and within 0.1% of geodesic areas, else a local
+/// Lambert azimuthal equal-area CRS).
 /// Throws InputError when the source cannot be opened.
 [[nodiscard]] SourceSummary inspect_source(const std::string& path, const InspectOptions& options);
 

@@ -24,13 +24,23 @@ enum class WindowMode {
   convex_hull,  ///< Ripley-Rasson enlarged convex hull of the sightings (model-based)
 };
 
+/// How sightings are assigned to plots (or transects).
+enum class Assignment {
+  automatic,  ///< by the sightings' plot attribute when the layer has it, else by location
+  attribute,  ///< by the sightings' plot attribute (the field must exist)
+  location,   ///< by point-in-polygon (nearest transect), ignoring the sightings' attribute
+};
+
 struct SurveyReadOptions {
   SourceSpec sightings;
   std::optional<SourceSpec> plots;
   WindowMode window = WindowMode::plots;
   std::string species_field = "species";
-  std::string plot_field = "plot";
-  bool plot_field_given = false;      ///< the user named --plot-field explicitly
+  std::string plot_field = "plot";     ///< plot id of the plot polygons
+  bool plot_field_given = false;      ///< the user named the plot field explicitly
+  std::optional<std::string> sighting_plot_field;  ///< the sightings' plot attribute; default plot_field
+  Assignment assignment = Assignment::automatic;
+  std::optional<std::string> encoding;  ///< text encoding of the sources (CPLRecode name); default UTF-8
   std::optional<std::string> x_field; ///< CSV coordinate columns; default x/lon/longitude/easting
   std::optional<std::string> y_field; ///< default y/lat/latitude/northing
   std::optional<std::string> target_crs;  ///< --crs: analysis CRS, projected, metres
@@ -44,6 +54,15 @@ struct AnalysisCrs {
   std::string name;    ///< "WGS 84 / UTM zone 30N"
   std::string reason;  ///< how it was chosen, for the output
   std::string wkt;     ///< WKT, for GIS outputs
+  /// Largest |planar area / geodesic area - 1| of any plot window in this CRS (0 when
+  /// there are no windows to measure).
+  double max_area_error = 0.0;
+};
+
+/// Several sightings recorded at exactly the same coordinates.
+struct DuplicateLocation {
+  Point location;                       ///< in the analysis CRS
+  std::vector<std::int64_t> feature_ids;
 };
 
 /// A survey read from its sources and assigned to plots.
@@ -53,12 +72,16 @@ struct LoadedSurvey {
   std::string plots_label;      ///< empty for convex-hull windows
   WindowMode window = WindowMode::plots;
   Survey survey;
+  std::vector<DuplicateLocation> duplicate_locations;  ///< zero nearest-neighbour distances
   std::vector<std::string> notes;     ///< facts worth printing (reprojection, repairs)
   std::vector<std::string> warnings;  ///< things the user must know (exclusions, model-based)
 };
 
 /// Reads sightings and windows, reprojects them to the analysis CRS and assigns every
-/// sighting to a plot. Throws InputError naming the file, layer, field or feature.
+/// sighting to a plot. Throws InputError naming the file, layer, field or feature, and
+/// when no sighting, or fewer than half of them, fall in a plot (wrong CRS or plots file).
+/// Blank CSV rows are skipped with a note; sightings at identical coordinates and species
+/// names that differ only in case or surrounding spaces are listed in warnings.
 [[nodiscard]] LoadedSurvey load_survey(const SurveyReadOptions& options);
 
 /// Reads a CSV (or any OGR table) of detection probabilities with columns `species`,

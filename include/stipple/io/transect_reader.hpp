@@ -16,7 +16,10 @@ struct TransectReadOptions {
   SourceSpec sightings;
   std::optional<SourceSpec> lines;     ///< --lines: line layer, one or more features per transect
   std::optional<SourceSpec> stations;  ///< --stations: point layer, one feature per station
-  std::string transect_field = "transect";
+  std::string transect_field = "transect";  ///< transect id of the lines or stations
+  std::optional<std::string> sighting_transect_field;  ///< the sightings' one; default transect_field
+  Assignment assignment = Assignment::automatic;  ///< location = nearest transect
+  std::optional<std::string> encoding;            ///< text encoding of the sources
   std::optional<std::string> effort_field;   ///< line length in km instead of the geometry's
   std::optional<std::string> visits_field;   ///< default: field 'visits' when present, else 1
   std::optional<std::string> distance_field; ///< recorded distance (m); else from locations
@@ -41,6 +44,7 @@ struct LoadedTransects {
   std::optional<double> study_area_m2;
   std::map<std::string, double> stratum_area_m2;
   std::vector<std::string> notes;
+  std::vector<std::string> warnings;  ///< things the user must know (undecodable text, area error)
 };
 
 /// Reads transects and sightings. Throws InputError naming the file, layer, field and
