@@ -1,6 +1,7 @@
 #include "stipple/batch/batch.hpp"
 
 #include <algorithm>
+#include <cctype>
 #include <filesystem>
 #include <fstream>
 #include <map>
@@ -255,6 +256,15 @@ std::vector<std::string> read_lines(const fs::path& path, std::string& header) {
   return lines;
 }
 
+// A file whose extension names a vector format: an input, never a list of inputs.
+bool is_vector_file(const std::string& path) {
+  std::string ext = fs::path(path).extension().string();
+  for (char& c : ext) c = static_cast<char>(std::tolower(static_cast<unsigned char>(c)));
+  for (const char* known : {".csv", ".gpkg", ".shp", ".dbf", ".geojson", ".json", ".kml", ".gpx", ".gml", ".fgb"})
+    if (ext == known) return true;
+  return false;
+}
+
 }  // namespace
 
 std::vector<BatchInput> discover_inputs(const std::string& root, const std::string& pattern,
@@ -278,6 +288,10 @@ std::vector<BatchInput> discover_inputs(const std::string& root, const std::stri
       inputs.push_back({it->path().string(), fs::relative(it->path(), root, ec).generic_string(),
                         plots_for(it->path(), capture)});
     }
+  } else if (is_vector_file(root)) {
+    // One survey file given directly: a batch of one.
+    const fs::path path(root);
+    inputs.push_back({path.string(), path.filename().string(), plots_for(path, path.stem().string())});
   } else {
     std::ifstream list(root);
     std::string line;

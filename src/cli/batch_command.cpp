@@ -192,6 +192,11 @@ int run_batch_command(BatchCommandOptions& o, CLI::App& command) {
     protect.push_back(in.plots_path);
   }
   const std::filesystem::path out(o.out);
+  {
+    std::error_code ec;
+    if (std::filesystem::exists(out, ec) && !std::filesystem::is_directory(out, ec))
+      throw InputError(o.out + ": exists and is not a folder; --out names the output folder");
+  }
   for (const auto& in : inputs) {
     std::error_code ec;
     if (std::filesystem::equivalent(out, std::filesystem::path(in.path).parent_path(), ec))

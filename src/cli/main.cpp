@@ -2,8 +2,10 @@
 // exit codes (0 ok, 1 some batch inputs failed, 2 bad input or usage, 70 internal error,
 // 74 standard output could not be written).
 
+#include <algorithm>
 #include <exception>
 #include <iostream>
+#include <string>
 #include <vector>
 
 #include <CLI/CLI.hpp>
@@ -11,6 +13,37 @@
 #include "commands.hpp"
 #include "stipple/error.hpp"
 #include "stipple/io/gdal_session.hpp"
+
+namespace {
+
+std::size_t edit_distance(const std::string& a, const std::string& b) {
+  std::vector<std::size_t> row(b.size() + 1);
+  for (std::size_t j = 0; j <= b.size(); ++j) row[j] = j;
+  for (std::size_t i = 1; i <= a.size(); ++i) {
+    std::size_t diagonal = row[0];
+    row[0] = i;
+    for (std::size_t j = 1; j <= b.size(); ++j) {
+      const std::size_t above = row[j];
+      row[j] = std::min({row[j] + 1, row[j - 1] + 1, diagonal + (a[i - 1] == b[j - 1] ? 0u : 1u)});
+      diagonal = above;
+    }
+  }
+  return row[b.size()];
+}
+
+// "unknown command 'densty' (did you mean 'density'?)", or empty for a known command.
+std::string unknown_command(const CLI::App& app, const std::string& word) {
+  std::string best;
+  std::size_t best_distance = 3;  // suggest only close matches
+  for (const CLI::App* command : app.get_subcommands([](const CLI::App*) { return true; })) {
+    if (command->get_name() == word) return {};
+    const std::size_t d = edit_distance(word, command->get_name());
+    if (d < best_distance) best_distance = d, best = command->get_name();
+  }
+  return "unknown command '" + word + "'" + (best.empty() ? "" : " (did you mean '" + best + "'?)");
+}
+
+}  // namespace
 
 int main(int argc, char** argv) {
   using stipple::ExitCode;
@@ -27,6 +60,12 @@ int main(int argc, char** argv) {
                                             stipple::cli::add_report_command(app),
                                             stipple::cli::add_surface_command(app),
                                             stipple::cli::add_inspect_command(app)};
+  if (argc > 1 && argv[1][0] != '-') {
+    if (const std::string problem = unknown_command(app, argv[1]); !problem.empty()) {
+      std::cerr << "error: " << problem << " (see stipple --help)\n";
+      return static_cast<int>(ExitCode::bad_input);
+    }
+  }
   try {
     app.parse(argc, argv);
   } catch (const CLI::CallForHelp& e) {

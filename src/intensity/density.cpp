@@ -133,7 +133,13 @@ DensityResult estimate_density(const Survey& survey, const DensityOptions& optio
     e.intensity = static_cast<double>(e.count) / area;
     const Interval exact = garwood_interval(e.count, options.confidence);
     e.ci = {exact.lower / area, exact.upper / area};
-    e.corrected = correct_for_detection(by_species, dets, area, options.confidence);
+    if (by_species.empty()) {
+      // No species at all (no sightings): a count of 0 under the table's general p, if any.
+      const Detection general = options.detection.fallback().value_or(Detection{});
+      e.corrected = correct_for_detection({0}, {general}, area, options.confidence);
+    } else {
+      e.corrected = correct_for_detection(by_species, dets, area, options.confidence);
+    }
     return e;
   };
 
@@ -144,11 +150,10 @@ DensityResult estimate_density(const Survey& survey, const DensityOptions& optio
       e.species = survey.species[s];
       result.estimates.push_back(std::move(e));
     }
-    if (n_species > 0) {
-      DensityEstimate e = make_estimate(counts[i], detections, areas[i]);
-      e.plot = survey.plots[i].id;
-      result.estimates.push_back(std::move(e));
-    }
+    // All species together, also for a plot (or a survey) with no sightings at all.
+    DensityEstimate e = make_estimate(counts[i], detections, areas[i]);
+    e.plot = survey.plots[i].id;
+    result.estimates.push_back(std::move(e));
   }
 
   const double total_area = std::accumulate(areas.begin(), areas.end(), 0.0);
@@ -190,7 +195,7 @@ DensityResult estimate_density(const Survey& survey, const DensityOptions& optio
   };
   if (n_plots > 0) {
     for (std::size_t s = 0; s < n_species; ++s) result.pooled.push_back(pool(s));
-    if (n_species > 0) result.pooled.push_back(pool(std::nullopt));
+    result.pooled.push_back(pool(std::nullopt));
   }
 
   // Species composition across plots: needs two plots and two species with sightings.

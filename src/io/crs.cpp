@@ -233,7 +233,7 @@ ChosenCrs choose_analysis_crs(const std::optional<std::string>& target,
       chosen.srs = local_equal_area(samples, *datum, label, centre);
       local = true;
       chosen.reason = "chosen automatically: Lambert azimuthal equal-area centred on the data (" +
-                      centre + "), which keeps areas exact anywhere on Earth (" +
+                      centre + "), areas exact anywhere on Earth (" +
                       (rejected.empty() ? "input is " + crs_code(*datum) + ", not projected in metres"
                                         : rejected) +
                       "); override with --crs";

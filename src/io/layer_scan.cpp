@@ -87,7 +87,9 @@ LayerScan scan_layer(OGRLayer& layer, const std::string& label, bool csv,
     visit(*feature);
   }
   if (CPLGetLastErrorType() >= CE_Failure)
-    throw InputError(label + ": read error after " + std::to_string(read) + " feature(s): " +
+    throw InputError(label + (declared >= 0 ? ": declares " + std::to_string(declared) + " features but only "
+                                            : ": only ") +
+                     std::to_string(read) + " could be read (truncated or damaged file?): " +
                      last_gdal_message());
   if (declared >= 0 && declared != read)
     throw InputError(label + ": declares " + std::to_string(declared) + " features but " +

@@ -149,8 +149,9 @@ GroupResult analyse_pattern(const std::vector<Point>& points, const Window& wind
       const std::vector<Point> pattern = simulate_binomial(window, n, engine);
       simulated[s] = summary_functions(pattern, context);
       simulated_ce[s] = clark_evans_mean(simulated[s].nearest, simulated[s].boundary, window, ce_correction);
-      simulated[s].nearest.clear();
-      simulated[s].boundary.clear();
+      // Release the per-point vectors (clear() would keep their memory): only the curves stay.
+      std::vector<double>().swap(simulated[s].nearest);
+      std::vector<double>().swap(simulated[s].boundary);
     });
     if (g.clark_evans) {
       g.clark_evans->monte_carlo_p_value = two_sided_monte_carlo(g.clark_evans->mean_distance, simulated_ce);
@@ -194,13 +195,7 @@ InteractionResult random_labelling_test(const std::vector<Point>& a, const std::
   std::vector<double> r(steps);
   for (std::size_t k = 0; k < steps; ++k) r[k] = dr * static_cast<double>(k + 1);
 
-  // Pairs of the fixed locations with Ripley's isotropic weights, centred on each end.
-  struct Pair {
-    std::uint32_t i, j;
-    std::size_t bin;
-    double w_i, w_j;
-  };
-  std::vector<Pair> pairs;
+  // Ripley's isotropic weights of a pair, centred on each end.
   std::vector<double> boundary(n);
   for (std::size_t i = 0; i < n; ++i) boundary[i] = window.boundary_distance(all[i]);
   const auto weight = [&](std::size_t centre, double d) {
@@ -208,18 +203,8 @@ InteractionResult random_labelling_test(const std::vector<Point>& a, const std::
     return 1.0 / std::max(window.circle_fraction_inside(all[centre], d), 1e-6);
   };
   const PointGrid grid(all);
-  grid.for_each_pair_within(result.rmax_m, [&](std::size_t i, std::size_t j, double d) {
-    const double bin = std::ceil(d / dr - 1e-12);
-    pairs.push_back({static_cast<std::uint32_t>(i), static_cast<std::uint32_t>(j),
-                     bin < 1.0 ? std::size_t{1} : static_cast<std::size_t>(bin), weight(i, d), weight(j, d)});
-  });
   const double scale = window.area_m2() / (static_cast<double>(a.size()) * static_cast<double>(b.size()));
-  const auto cross_l = [&](const std::vector<std::uint8_t>& is_a) {
-    std::vector<double> hist(steps + 2, 0.0);
-    for (const auto& p : pairs) {
-      if (is_a[p.i] && !is_a[p.j]) hist[p.bin] += p.w_i;
-      else if (!is_a[p.i] && is_a[p.j]) hist[p.bin] += p.w_j;
-    }
+  const auto to_l = [&](const std::vector<double>& hist) {
     std::vector<double> l(steps);
     double cumulative = 0.0;
     for (std::size_t k = 1; k <= steps; ++k) {
@@ -228,18 +213,60 @@ InteractionResult random_labelling_test(const std::vector<Point>& a, const std::
     }
     return l;
   };
+  // Up to 64 labellings at once, one bit each per point: the pairs are enumerated afresh
+  // for every batch instead of stored, so memory grows with n, not with the number of
+  // pairs (clustered patterns have millions). Each labelling sums its pairs in the grid's
+  // fixed order, so results do not depend on the batching or the thread count.
+  const auto cross_l_batch = [&](const std::vector<std::vector<std::uint8_t>>& labellings) {
+    const std::size_t m = labellings.size();
+    std::vector<std::uint64_t> is_a(n, 0);
+    for (std::size_t s = 0; s < m; ++s)
+      for (std::size_t i = 0; i < n; ++i)
+        if (labellings[s][i]) is_a[i] |= std::uint64_t{1} << s;
+    std::vector<std::vector<double>> hist(m, std::vector<double>(steps + 2, 0.0));
+    grid.for_each_pair_within(result.rmax_m, [&](std::size_t i, std::size_t j, double d) {
+      const std::uint64_t from_i = is_a[i] & ~is_a[j];  // i is a, j is b: centred on i
+      const std::uint64_t from_j = is_a[j] & ~is_a[i];
+      if ((from_i | from_j) == 0) return;
+      const double raw_bin = std::ceil(d / dr - 1e-12);
+      const std::size_t bin = raw_bin < 1.0 ? std::size_t{1} : static_cast<std::size_t>(raw_bin);
+      if (from_i != 0) {
+        const double w = weight(i, d);
+        for (std::uint64_t bits = from_i; bits != 0; bits &= bits - 1)
+          hist[static_cast<std::size_t>(__builtin_ctzll(bits))][bin] += w;
+      }
+      if (from_j != 0) {
+        const double w = weight(j, d);
+        for (std::uint64_t bits = from_j; bits != 0; bits &= bits - 1)
+          hist[static_cast<std::size_t>(__builtin_ctzll(bits))][bin] += w;
+      }
+    });
+    std::vector<std::vector<double>> curves;
+    curves.reserve(m);
+    for (const auto& h : hist) curves.push_back(to_l(h));
+    return curves;
+  };
   std::vector<std::uint8_t> labels(n, 0);
   std::fill(labels.begin(), labels.begin() + static_cast<std::ptrdiff_t>(a.size()), 1);
-  const std::vector<double> observed = cross_l(labels);
+  const std::vector<double> observed = cross_l_batch({labels}).front();
+  constexpr std::size_t batch = 64;
+  const std::size_t batches = (options.simulations + batch - 1) / batch;
   std::vector<std::vector<double>> simulated(options.simulations);
-  parallel_for(options.simulations, options.threads, [&](std::size_t s) {
-    Engine engine(derive_seed(options.seed, key + "/labelling/" + std::to_string(s)));
-    std::vector<std::uint8_t> shuffled = labels;
-    for (std::size_t i = shuffled.size(); i > 1; --i) {
-      boost::random::uniform_int_distribution<std::size_t> pick(0, i - 1);
-      std::swap(shuffled[i - 1], shuffled[pick(engine)]);
+  parallel_for(batches, options.threads, [&](std::size_t k) {
+    const std::size_t first = k * batch;
+    const std::size_t last = std::min(options.simulations, first + batch);
+    std::vector<std::vector<std::uint8_t>> labellings;
+    for (std::size_t s = first; s < last; ++s) {
+      Engine engine(derive_seed(options.seed, key + "/labelling/" + std::to_string(s)));
+      std::vector<std::uint8_t> shuffled = labels;
+      for (std::size_t i = shuffled.size(); i > 1; --i) {
+        boost::random::uniform_int_distribution<std::size_t> pick(0, i - 1);
+        std::swap(shuffled[i - 1], shuffled[pick(engine)]);
+      }
+      labellings.push_back(std::move(shuffled));
     }
-    simulated[s] = cross_l(shuffled);
+    auto curves = cross_l_batch(labellings);
+    for (std::size_t s = first; s < last; ++s) simulated[s] = std::move(curves[s - first]);
   });
   result.cross_l = envelope_test(r, observed, r, simulated, options.alpha);
   result.p_value = result.cross_l.dclf_p_value;
@@ -270,13 +297,27 @@ RandomnessResult analyse_randomness(const Survey& survey, const RandomnessOption
       by_species[pattern.marks[i]].push_back(pattern.points[i]);
     const auto run = [&](const std::vector<Point>& points, const std::optional<std::string>& species) {
       if (points.size() < options.min_points) {
-        result.skipped.push_back({plot.id, species, points.size(),
-                                  "fewer than " + std::to_string(options.min_points) + " sightings"});
+        const std::string why = "fewer than " + std::to_string(options.min_points) + " sightings";
+        result.skipped.push_back({plot.id, species, points.size(), why});
+        GroupResult g;
+        g.plot = plot.id;
+        g.species = species;
+        g.n = points.size();
+        g.verdict = "too few to tell";
+        g.notes.push_back(why + ": no test can run");
+        result.results.push_back(std::move(g));
         return;
       }
       GroupResult g = analyse_pattern(points, plot.window, options, group_key(plot.id, species));
       g.plot = plot.id;
       g.species = species;
+      if (g.verdict == "random" && points.size() < options.min_points_for_random) {
+        g.verdict = "too few to tell";
+        g.notes.push_back("no departure from CSR found, but with fewer than " +
+                          std::to_string(options.min_points_for_random) +
+                          " sightings the tests have almost no power: that is not evidence of "
+                          "randomness");
+      }
       result.results.push_back(std::move(g));
     };
     for (std::size_t s = 0; s < survey.species.size(); ++s) {

@@ -25,7 +25,8 @@ struct BatchInput {
 };
 
 /// Finds the inputs: every file under `root` (recursively) whose file name matches `pattern`
-/// (shell glob with * and ?), or, when `root` is a file, the paths it lists one per line
+/// (shell glob with * and ?); when `root` is a vector file (by extension: .csv, .gpkg, .shp,
+/// .geojson, ...) that file alone; when it is any other file, the paths it lists one per line
 /// (blank lines and lines starting with # skipped). `plots_template` names each input's
 /// plots file beside it, with {*} standing for the text the pattern's first * matched
 /// (e.g. pattern "*-sightings.shp", template "{*}-plot.shp"); empty = the same file.

@@ -43,6 +43,8 @@ class DetectionTable {
   [[nodiscard]] Detection for_species(const std::string& species) const;
   /// True when no correction is asked for.
   [[nodiscard]] bool is_certain() const;
+  /// The probability for species not listed (none when every species must be listed).
+  [[nodiscard]] std::optional<Detection> fallback() const { return fallback_; }
   /// Species listed in the table.
   [[nodiscard]] std::vector<std::string> listed_species() const;
 

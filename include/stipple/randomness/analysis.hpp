@@ -32,7 +32,10 @@ struct RandomnessOptions {
   bool run_clark_evans = true;
   bool run_envelope = true;
   bool run_interactions = true;
-  std::size_t min_points = 3;            ///< smaller groups are skipped and listed
+  std::size_t min_points = 3;            ///< smaller groups get no test (listed as skipped)
+  /// Below this many sightings a test that does not reject says `too few to tell`, not
+  /// `random`: no CSR test has useful power there (README "Randomness", power table).
+  std::size_t min_points_for_random = 10;
 };
 
 /// One summary function with its Monte Carlo envelope.
@@ -51,7 +54,7 @@ struct GroupResult {
   PairCorrection pair_correction = PairCorrection::isotropic;
   DistanceCorrection distance_correction = DistanceCorrection::kaplan_meier;
   std::vector<FunctionEnvelope> functions;  ///< L first; empty when the envelope did not run
-  std::string verdict = "random";           ///< clustered | regular | random | undetermined, at alpha
+  std::string verdict = "random";  ///< clustered | regular | random | undetermined | too few to tell
   std::string verdict_basis;                ///< which test decided
   std::vector<std::string> notes;
   /// The L envelope, when it ran.
