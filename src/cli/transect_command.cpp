@@ -33,7 +33,7 @@ struct TransectCommandOptions {
   std::string size_field;
   std::string stratum_field;
   std::string truncate;
-  std::vector<double> bins;
+  std::string bins;
   std::vector<std::string> models{"half-normal", "hazard-rate", "uniform"};
   std::vector<std::string> adjustments{"cosine"};
   std::size_t max_terms = 2;
@@ -79,14 +79,13 @@ int run_transect(const TransectCommandOptions& o) {
   read.assume_crs = opt(o.common.assume_crs);
   if (!(o.max_offset > 0.0)) throw InputError("--max-offset must be positive");
   read.max_offset_m = o.max_offset;
-  if (!o.bins.empty()) {
-    if (o.bins.size() < 2) throw InputError("--bins needs at least two edges, e.g. 0,10,25,50");
-    for (std::size_t k = 0; k < o.bins.size(); ++k) {
-      if (o.bins[k] < 0.0 || (k > 0 && !(o.bins[k] > o.bins[k - 1])))
-        throw InputError("--bins must be non-negative and strictly increasing");
-    }
+  std::vector<double> bins;
+  try {
+    bins = parse_bin_edges(o.bins);
+  } catch (const InputError& e) {
+    throw InputError(std::string("--bins ") + e.what());
   }
-  read.bin_edges = o.bins;
+  read.bin_edges = bins;
 
   TransectOptions options;
   options.keys.clear();
@@ -97,7 +96,7 @@ int run_transect(const TransectCommandOptions& o) {
   options.truncation = parse_truncation(o.truncate);
   if (!o.bins.empty() && !o.truncate.empty())
     throw InputError("--truncate and --bins both set the truncation distance; give one (the last bin edge truncates)");
-  options.bin_edges = o.bins;
+  options.bin_edges = bins;
   options.unit = parse_area_unit(o.common.unit);
   options.confidence = o.common.confidence;
   check_confidence(options.confidence);
@@ -164,7 +163,7 @@ Action add_transect_command(CLI::App& app) {
   c->add_option("--size-field", o->size_field, "Cluster size (default 1)");
   c->add_option("--stratum-field", o->stratum_field, "Stratum field of the transects (and of --study-area polygons)");
   c->add_option("--truncate", o->truncate, "Right truncation: a distance in m, a percentage of the largest distances (5%), or none");
-  c->add_option("--bins", o->bins, "Distance bin edges in m (binned analysis), e.g. 0,10,25,50,100")->delimiter(',');
+  c->add_option("--bins", o->bins, "Distance bin edges in m (binned analysis), 2-1000 increasing numbers >= 0, e.g. 0,10,25,50,100 (default: exact distances)");
   c->add_option("--models", o->models, "Key functions: half-normal, hazard-rate, uniform")->delimiter(',')
       ->capture_default_str();
   c->add_option("--adjustments", o->adjustments, "Adjustment series: none, cosine, polynomial, hermite")->delimiter(',')

@@ -10,6 +10,7 @@
 #include <boost/random/uniform_int_distribution.hpp>
 
 #include "stipple/error.hpp"
+#include "stipple/format.hpp"
 #include "stipple/parallel.hpp"
 #include "stipple/quantile.hpp"
 
@@ -146,6 +147,28 @@ Truncation parse_truncation(const std::string& text) {
   if (!w || !(*w > 0.0)) throw InputError("--truncate " + text + ": give a distance in metres, a percentage like 5%, or none");
   t.distance_m = *w;
   return t;
+}
+
+std::vector<double> parse_bin_edges(const std::string& text) {
+  std::vector<double> edges;
+  if (text.empty()) return edges;
+  const std::string quoted = "bin edges '" + (text.size() > 60 ? text.substr(0, 60) + "..." : text) + "'";
+  std::size_t start = 0;
+  while (true) {
+    const std::size_t comma = text.find(',', start);
+    const std::string item = text.substr(start, comma == std::string::npos ? std::string::npos : comma - start);
+    const auto value = parse_finite_number(item);
+    if (!value) throw InputError(quoted + ": '" + item + "' is not a number (give metres, e.g. 0,10,25,50)");
+    if (*value < 0.0) throw InputError(quoted + ": " + item + " is negative");
+    if (!edges.empty() && !(*value > edges.back()))
+      throw InputError(quoted + ": edges must be strictly increasing");
+    edges.push_back(*value);
+    if (edges.size() > 1000) throw InputError(quoted + ": more than 1000 edges");
+    if (comma == std::string::npos) break;
+    start = comma + 1;
+  }
+  if (edges.size() < 2) throw InputError(quoted + ": needs at least two edges, e.g. 0,10,25,50");
+  return edges;
 }
 
 EncounterRate encounter_rate(const std::vector<double>& effort, const std::vector<double>& counts) {

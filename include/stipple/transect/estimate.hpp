@@ -73,6 +73,11 @@ struct Truncation {
 /// or "none" (infinite). Throws InputError otherwise.
 [[nodiscard]] Truncation parse_truncation(const std::string& text);
 
+/// Parses distance bin edges in metres, "0,10,25,50": 2 to 1000 finite, non-negative,
+/// strictly increasing numbers separated by commas. Empty text gives no bins. Throws
+/// InputError quoting the text otherwise.
+[[nodiscard]] std::vector<double> parse_bin_edges(const std::string& text);
+
 struct TransectOptions {
   std::vector<KeyFunction> keys{KeyFunction::half_normal, KeyFunction::hazard_rate, KeyFunction::uniform};
   std::vector<Adjustment> adjustments{Adjustment::cosine};
