@@ -77,10 +77,21 @@ void TextTable::add_row(std::vector<std::string> row) {
   rows_.push_back(std::move(row));
 }
 
+namespace {
+
+// Columns on a terminal: UTF-8 code points (continuation bytes 10xxxxxx do not count).
+std::size_t display_width(const std::string& text) {
+  std::size_t n = 0;
+  for (const char c : text) n += (static_cast<unsigned char>(c) & 0xC0u) != 0x80u ? 1u : 0u;
+  return n;
+}
+
+}  // namespace
+
 std::string TextTable::render(const std::string& indent) const {
   std::vector<std::size_t> width(header_.size(), 0);
   const auto measure = [&](const std::vector<std::string>& row) {
-    for (std::size_t c = 0; c < row.size(); ++c) width[c] = std::max(width[c], row[c].size());
+    for (std::size_t c = 0; c < row.size(); ++c) width[c] = std::max(width[c], display_width(row[c]));
   };
   measure(header_);
   for (const auto& row : rows_) measure(row);
@@ -88,7 +99,7 @@ std::string TextTable::render(const std::string& indent) const {
   const auto emit = [&](const std::vector<std::string>& row) {
     std::string line = indent;
     for (std::size_t c = 0; c < row.size(); ++c) {
-      const std::string pad(width[c] - row[c].size(), ' ');
+      const std::string pad(width[c] - display_width(row[c]), ' ');
       line += c < left_aligned_ ? row[c] + pad : pad + row[c];
       if (c + 1 < row.size()) line += "  ";
     }
@@ -99,6 +110,21 @@ std::string TextTable::render(const std::string& indent) const {
   for (const auto& row : rows_) emit(row);
   return out.str();
 }
+
+namespace {
+
+std::string short_hash(const std::string& text) {
+  std::uint64_t hash = 14695981039346656037ULL;  // FNV-1a, 64 bit
+  for (const char c : text) {
+    hash ^= static_cast<unsigned char>(c);
+    hash *= 1099511628211ULL;
+  }
+  char digits[17];
+  std::snprintf(digits, sizeof digits, "%016llx", static_cast<unsigned long long>(hash));
+  return std::string(digits, 10);
+}
+
+}  // namespace
 
 std::string file_name_safe(const std::string& text) {
   constexpr std::size_t longest = 60;
@@ -111,17 +137,29 @@ std::string file_name_safe(const std::string& text) {
     changed = changed || !kept;
   }
   if (!changed && !out.empty() && out.front() != '.' && out.size() <= longest) return out;
-  // FNV-1a (64 bit) of the original text: enough to tell apart the names of one survey.
-  std::uint64_t hash = 14695981039346656037ULL;
-  for (const char c : text) {
-    hash ^= static_cast<unsigned char>(c);
-    hash *= 1099511628211ULL;
-  }
-  char digits[17];
-  std::snprintf(digits, sizeof digits, "%016llx", static_cast<unsigned long long>(hash));
+  // A hash of the original text: enough to tell apart the names of one survey.
   if (out.size() > longest) out.resize(longest);
   if (!out.empty() && out.front() == '.') out.front() = '_';
-  return out + (out.empty() ? "" : "-") + std::string(digits, 10);
+  return out + (out.empty() ? "" : "-") + short_hash(text);
+}
+
+std::string FileNamer::stem(const std::string& prefix, const std::vector<std::string>& parts) {
+  std::string key = prefix;
+  std::string name = prefix;
+  for (const auto& part : parts) {
+    key += '\x1f' + part;
+    name += "-" + file_name_safe(part);
+  }
+  for (const auto& [used_name, used_key] : used_)
+    if (used_key == key) return used_name;
+  bool taken = name.size() > 150;
+  for (const auto& entry : used_) taken = taken || entry.first == name;
+  if (taken) {
+    if (name.size() > 139) name.resize(139);
+    name += "-" + short_hash(key);
+  }
+  used_.emplace_back(name, key);
+  return name;
 }
 
 std::string repair_utf8(std::string_view text, std::size_t* replaced) {

@@ -5,6 +5,7 @@
 #include <optional>
 #include <string>
 #include <string_view>
+#include <utility>
 #include <vector>
 
 namespace stipple {
@@ -47,6 +48,20 @@ class TextTable {
 /// the whole text is appended, so different names never give the same file name ("a/b" and
 /// "a_b" differ) and names stay far below file-name length limits.
 [[nodiscard]] std::string file_name_safe(const std::string& text);
+
+/// File names for one output folder built from several names (plot, species, ...): the
+/// file_name_safe parts joined by '-', made unique within the folder (two different name
+/// lists that would give one file name get a hash of the names appended), at most 150
+/// bytes, and listed for a manifest.
+class FileNamer {
+ public:
+  /// The stem for `parts` after `prefix` ("L" + {"north", "birch"} -> "L-north-birch");
+  /// the same parts always give the same stem.
+  [[nodiscard]] std::string stem(const std::string& prefix, const std::vector<std::string>& parts);
+
+ private:
+  std::vector<std::pair<std::string, std::string>> used_;  // stem, joined parts
+};
 
 /// `text` as valid UTF-8: every byte that does not start a well-formed UTF-8 sequence
 /// (overlong forms, surrogates and code points above U+10FFFF included) becomes U+FFFD.

@@ -303,6 +303,8 @@ std::string randomness_curves_csv(const RandomnessResult& result) {
 
 std::vector<std::pair<std::string, std::string>> randomness_figures(const RandomnessResult& result) {
   std::vector<std::pair<std::string, std::string>> files;
+  FileNamer namer;
+  std::string manifest = "file,plot,species,figure\n";
   const auto add = [&](const std::string& stem, const std::string& title, const std::string& y_label,
                        const EnvelopeResult& e, const std::string& caption) {
     EnvelopeFigure f{title, y_label, e.r, e.observed, e.theoretical, e.pointwise_low,
@@ -311,21 +313,31 @@ std::vector<std::pair<std::string, std::string>> randomness_figures(const Random
     files.emplace_back(stem + ".svg", chart_svg(chart));
     files.emplace_back(stem + ".png", chart_png(chart));
   };
+  const auto list = [&](const std::string& stem, const std::string& plot, const std::string& species,
+                        const std::string& figure) {
+    for (const char* extension : {".svg", ".png"})
+      manifest += csv_field(stem + extension) + "," + csv_field(plot) + "," + csv_field(species) + "," + figure + "\n";
+  };
   for (const auto& g : result.results) {
     const EnvelopeResult* l = g.l_envelope();
     if (!l) continue;
     const std::string species = g.species.value_or("all-species");
-    add("L-" + file_name_safe(g.plot) + "-" + file_name_safe(species), g.plot + " - " + species_text(g.species),
+    const std::string stem = namer.stem("L", {g.plot, species});
+    list(stem, g.plot, g.species.value_or(""), "L envelope");
+    add(stem, g.plot + " - " + species_text(g.species),
         "L(r) (m)", *l,
         std::to_string(l->simulations) + " CSR simulations; MAD p = " + format_p_value(l->mad_p_value) +
             ", DCLF p = " + format_p_value(l->dclf_p_value) + "; verdict: " + g.verdict);
   }
   for (const auto& i : result.interactions) {
-    add("cross-L-" + file_name_safe(i.plot) + "-" + file_name_safe(i.species_a) + "-" + file_name_safe(i.species_b),
-        i.plot + " - " + i.species_b + " around " + i.species_a, "cross-L(r) (m)", i.cross_l,
+    const std::string stem = namer.stem("cross-L", {i.plot, i.species_a, i.species_b});
+    list(stem, i.plot, i.species_a + " x " + i.species_b, "cross-L random labelling");
+    add(stem, i.plot + " - " + i.species_b + " around " + i.species_a, "cross-L(r) (m)", i.cross_l,
         std::to_string(i.cross_l.simulations) + " random labellings; p = " + format_p_value(i.p_value) +
             "; " + i.direction);
   }
+  // Which file shows which plot and species: names are shortened or hashed when needed.
+  if (!files.empty()) files.emplace_back("figures.csv", manifest);
   return files;
 }
 

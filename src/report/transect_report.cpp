@@ -239,6 +239,8 @@ std::vector<std::pair<std::string, std::string>> transect_figures(const LoadedTr
                                                                  const TransectResult& result) {
   std::vector<std::pair<std::string, std::string>> files;
   std::set<std::string> done;
+  FileNamer namer;
+  std::string manifest = "file,species,figure\n";
   const bool lines = result.kind == TransectKind::line;
   for (const auto& e : result.results) {
     if (e.stratum) continue;
@@ -274,7 +276,9 @@ std::vector<std::pair<std::string, std::string>> transect_figures(const LoadedTr
                         format_fixed(fit.detection_probability, 3) +
                         (gof.chi_square_p ? "; chi-square p = " + format_p_value(*gof.chi_square_p) : std::string());
     detection.series = {bars, curve};
-    const std::string stem = "detection-" + file_name_safe(name);
+    const std::string stem = namer.stem("detection", {name});
+    manifest += csv_field(stem + ".svg") + "," + csv_field(name) + ",detection function\n" +
+                csv_field(stem + ".png") + "," + csv_field(name) + ",detection function\n";
     files.emplace_back(stem + ".svg", chart_svg(detection));
     files.emplace_back(stem + ".png", chart_png(detection));
 
@@ -297,9 +301,14 @@ std::vector<std::pair<std::string, std::string>> transect_figures(const LoadedTr
                                 format_p_value(gof.cvm_p.value_or(1.0))
                           : std::string();
     qq.series = {ChartSeries{ChartSeries::Kind::dashed_line, {0.0, 1.0}, {0.0, 1.0}, {}, 1, "1:1"}, points};
-    files.emplace_back("qq-" + file_name_safe(name) + ".svg", chart_svg(qq));
-    files.emplace_back("qq-" + file_name_safe(name) + ".png", chart_png(qq));
+    const std::string qq_stem = namer.stem("qq", {name});
+    files.emplace_back(qq_stem + ".svg", chart_svg(qq));
+    files.emplace_back(qq_stem + ".png", chart_png(qq));
+    manifest += csv_field(qq_stem + ".svg") + "," + csv_field(name) + ",Q-Q plot\n" +
+                csv_field(qq_stem + ".png") + "," + csv_field(name) + ",Q-Q plot\n";
   }
+  // Which file shows which species: names are shortened or hashed when needed.
+  if (!files.empty()) files.emplace_back("figures.csv", manifest);
   return files;
 }
 
