@@ -1,15 +1,22 @@
 #!/usr/bin/env bash
 # Installs dependencies, configures with warnings as errors, builds and runs the whole test
-# suite under CTest. Pass --sanitize for an AddressSanitizer + UBSan build in build-asan/.
+# suite under CTest. --sanitize: an AddressSanitizer + UBSan build in build-asan/ instead.
+# --quick: only the tests labelled quick (the CI runs them under the sanitizers).
 set -euo pipefail
 cd "$(dirname "$0")/.."
 bash scripts/install-deps.sh
 build=build
 flags=(-DSTIPPLE_WERROR=ON -DCMAKE_BUILD_TYPE=RelWithDebInfo)
-if [ "${1:-}" = "--sanitize" ]; then
-  build=build-asan
-  flags=(-DSTIPPLE_WERROR=ON -DSTIPPLE_SANITIZE=ON -DCMAKE_BUILD_TYPE=Debug)
-fi
+labels=()
+for arg in "$@"; do
+  case "$arg" in
+    --sanitize)
+      build=build-asan
+      flags=(-DSTIPPLE_WERROR=ON -DSTIPPLE_SANITIZE=ON -DCMAKE_BUILD_TYPE=Debug) ;;
+    --quick) labels=(-L quick) ;;
+    *) echo "scripts/test.sh: unknown option '$arg' (use --sanitize, --quick)" >&2; exit 2 ;;
+  esac
+done
 cmake -S . -B "$build" "${flags[@]}"
 cmake --build "$build" -j "$(nproc)"
-ctest --test-dir "$build" --output-on-failure -j "$(nproc)"
+ctest --test-dir "$build" --output-on-failure -j "$(nproc)" "${labels[@]}"

@@ -267,8 +267,8 @@ Action add_batch_command(CLI::App& app) {
   c->add_option("--distance-field", o->distance_field, "transect: recorded distance field (else from locations)");
   c->add_option("--size-field", o->size_field, "transect: cluster size field");
   c->add_option("--transect-field", o->transect_field, "transect: transect id field")->capture_default_str();
-  c->add_option("--truncate", o->truncate, "transect: truncation distance (m) or percentage (5%)");
-  c->add_option("--shard", o->shard_text, "Process only the K-th of N deterministic slices, K/N");
+  c->add_option("--truncate", o->truncate, "transect: truncation distance (m > 0), percentage in [0, 100) (5%) or none (default: the largest distance)");
+  c->add_option("--shard", o->shard_text, "Process only the K-th of N deterministic slices, K/N with 1 <= K <= N (default: all inputs)");
   c->add_option("--threads", o->threads, "Files processed in parallel (0 = all cores)")->check(whole_number(0, 1024))->capture_default_str();
   c->add_flag("--quiet", o->quiet, "No progress output");
   c->add_option("--run-file", o->run_file, "TOML run file with the analyses and options (the command line wins)");
@@ -291,23 +291,27 @@ Action add_batch_command(CLI::App& app) {
   c->add_option("--encoding", o->common.encoding,
                 "Text encoding of the inputs' attributes, e.g. LATIN1 (default: UTF-8; invalid bytes shown as U+FFFD)");
   c->add_option("--species-field", o->common.species_field, "Species attribute")->capture_default_str();
-  c->add_option("--crs", o->common.crs, "Analysis CRS, projected in metres");
-  c->add_option("--assume-crs", o->common.assume_crs, "CRS of layers that carry none");
+  c->add_option("--crs", o->common.crs, "Analysis CRS, projected in metres (default: as for density)");
+  c->add_option("--assume-crs", o->common.assume_crs, "CRS of layers that carry none (default: none; such layers are refused)");
   c->add_option("--unit", o->common.unit, "Area unit: m2, ha or km2")->check(CLI::IsMember({"m2", "ha", "km2"}))
       ->capture_default_str();
   c->add_option("--confidence", o->common.confidence, "Two-sided confidence level")
       ->check(number_between(0.0, 1.0, "e.g. 0.95"))
       ->capture_default_str();
   c->add_option("--detection", o->detection_file, "CSV of detection probabilities: species, p, optional se");
-  c->add_option("--detection-prob", o->detection_prob, "One detection probability for every species");
-  c->add_option("--detection-se", o->detection_se, "Standard error of --detection-prob");
+  c->add_option("--detection-prob", o->detection_prob, "One detection probability for every species (default: 1, no correction)")
+      ->check(probability());
+  c->add_option("--detection-se", o->detection_se, "Standard error of --detection-prob (default: 0)")->check(non_negative_number());
   c->add_option("--simulations", o->simulations, "CSR simulations per group")->check(whole_number(0, 1000000))->capture_default_str();
   c->add_option("--seed", o->seed, "Seed; each plot's simulations derive their own from it")->check(whole_number(0, 18446744073709551615ULL))
       ->capture_default_str();
-  c->add_option("--quadrats", o->quadrats, "Quadrat grid NxM")->capture_default_str();
+  c->add_option("--quadrats", o->quadrats, "Quadrat grid NxM: 1-10000 cells a side, 2-10000 in all")->capture_default_str();
   c->add_option("--edge-correction", o->edge_correction, "Clark-Evans edge correction: none, donnelly, border")
       ->check(CLI::IsMember({"none", "donnelly", "border"}));
-  c->add_option("--rmax", o->rmax, "Largest distance of the summary functions, metres")->check(positive_number());
+  c->add_option("--rmax", o->rmax,
+                "Largest distance of the summary functions, metres (default: the smaller of a quarter of the window's "
+                "shorter side and 4/sqrt(intensity))")
+      ->check(positive_number());
   return [c, o] {
     if (!c->parsed()) return -1;
     return run_batch_command(*o, *c);

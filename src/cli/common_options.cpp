@@ -31,9 +31,11 @@ void add_sighting_options(CLI::App& command, CommonOptions& o) {
                      "CSV column of y or latitude (default: y, lat, latitude or northing)");
   command.add_option("--crs", o.crs,
                      "Analysis CRS, projected in metres, e.g. EPSG:32630 (default: the data's "
-                     "own, or the UTM zone of a geographic input)");
+                     "own projected CRS when plot areas in it are within 0.1% of the geodesic "
+                     "ones, else a Lambert azimuthal equal-area CRS centred on the data)");
   command.add_option("--assume-crs", o.assume_crs,
-                     "CRS of layers that carry none, e.g. EPSG:4326 for GPS longitude/latitude");
+                     "CRS of layers that carry none, e.g. EPSG:4326 for GPS longitude/latitude "
+                     "(default: none; a layer without a CRS is refused)");
   command.add_option("--encoding", o.encoding,
                      "Text encoding of the inputs' attributes, e.g. LATIN1 or CP1252 (default: "
                      "UTF-8, or what a Shapefile's .cpg says; invalid bytes are shown as U+FFFD "
@@ -84,8 +86,8 @@ void add_output_options(CLI::App& command, CommonOptions& o) {
   command.add_option("--confidence", o.confidence, "Two-sided confidence level of intervals")
       ->check(number_between(0.0, 1.0, "e.g. 0.95"))
       ->capture_default_str();
-  command.add_option("--json", o.json, "Write JSON results to FILE ('-' = standard output)");
-  command.add_option("--csv", o.csv, "Write CSV results to FILE ('-' = standard output)");
+  command.add_option("--json", o.json, "Write JSON results to FILE ('-' = standard output; default: none)");
+  command.add_option("--csv", o.csv, "Write CSV results to FILE ('-' = standard output; default: none)");
 }
 
 void add_common_options(CLI::App& command, CommonOptions& o) {
@@ -138,6 +140,26 @@ CLI::Validator positive_number() {
         return {};
       },
       "number > 0");
+}
+
+CLI::Validator probability() {
+  return CLI::Validator(
+      [](std::string& text) -> std::string {
+        const auto value = parse_finite_number(text);
+        if (!value || !(*value > 0.0 && *value <= 1.0)) return "must be a probability in (0, 1] (got '" + text + "')";
+        return {};
+      },
+      "number in (0, 1]");
+}
+
+CLI::Validator non_negative_number() {
+  return CLI::Validator(
+      [](std::string& text) -> std::string {
+        const auto value = parse_finite_number(text);
+        if (!value || !(*value >= 0.0)) return "must be a number >= 0 (got '" + text + "')";
+        return {};
+      },
+      "number >= 0");
 }
 
 CLI::Validator number_between(double low, double high, std::string hint) {

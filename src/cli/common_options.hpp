@@ -42,6 +42,10 @@ struct CommonOptions {
 [[nodiscard]] CLI::Validator whole_number(std::uint64_t min, std::uint64_t max);
 /// A finite number strictly greater than 0 (0, negative values and NaN are refused).
 [[nodiscard]] CLI::Validator positive_number();
+/// A detection probability: a finite number in (0, 1].
+[[nodiscard]] CLI::Validator probability();
+/// A finite number >= 0 (a standard error).
+[[nodiscard]] CLI::Validator non_negative_number();
 /// A finite number strictly between `low` and `high`; `hint` is added to the refusal.
 [[nodiscard]] CLI::Validator number_between(double low, double high, std::string hint = {});
 

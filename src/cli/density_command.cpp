@@ -72,12 +72,14 @@ Action add_density_command(CLI::App& app) {
       "intervals, homogeneity and composition tests, corrected for detection");
   add_common_options(*command, options->common);
   command->add_option("--detection", options->detection_file,
-                      "CSV of detection probabilities: columns species, p, optional se");
+                      "CSV of detection probabilities: columns species, p, optional se (default: none)");
   options->prob_option = command->add_option(
       "--detection-prob", options->detection_prob,
-      "One detection probability for every species (or for species not in --detection)");
+      "One detection probability for every species (or for species not in --detection); "
+      "default: 1, no correction")->check(probability());
   options->se_option = command->add_option("--detection-se", options->detection_se,
-                                           "Standard error of --detection-prob");
+                                           "Standard error of --detection-prob (default: 0, p known exactly)")
+                          ->check(non_negative_number());
   command->add_option("--seed", options->seed, "Seed of the Monte Carlo p-values")
       ->check(whole_number(0, 18446744073709551615ULL))
       ->capture_default_str();

@@ -87,7 +87,8 @@ Action add_randomness_command(CLI::App& app) {
       "Tests of complete spatial randomness per plot and species (quadrats, Clark-Evans, "
       "summary functions with Monte Carlo envelopes) and random-labelling tests between species");
   add_common_options(*command, o->common);
-  command->add_option("--quadrats", o->quadrats, "Quadrat grid NxM over the window's bounding box")
+  command->add_option("--quadrats", o->quadrats,
+                      "Quadrat grid NxM over the window's bounding box: 1-10000 cells a side, 2-10000 in all")
       ->capture_default_str();
   command->add_flag("--quadrat-monte-carlo", o->quadrat_monte_carlo,
                     "Monte Carlo quadrat p-value even when every expected count is 5 or more");
@@ -112,7 +113,7 @@ Action add_randomness_command(CLI::App& app) {
                       "Largest distance of the summary functions, metres (default: the smaller of "
                       "a quarter of the window's shorter side and 4/sqrt(intensity))")
       ->check(positive_number());
-  command->add_option("--only", o->only, "Run only these: quadrat, clark-evans, envelope, interactions")
+  command->add_option("--only", o->only, "Run only these: quadrat, clark-evans, envelope, interactions (default: all)")
       ->delimiter(',');
   command->add_option("--curves", o->curves,
                       "CSV of r, observed, theoretical and envelopes per group and function");

@@ -162,7 +162,7 @@ Action add_transect_command(CLI::App& app) {
   c->add_option("--angle-field", o->angle_field, "Sighting angle (degrees) for radial distances: x = r sin(angle)");
   c->add_option("--size-field", o->size_field, "Cluster size (default 1)");
   c->add_option("--stratum-field", o->stratum_field, "Stratum field of the transects (and of --study-area polygons)");
-  c->add_option("--truncate", o->truncate, "Right truncation: a distance in m, a percentage of the largest distances (5%), or none");
+  c->add_option("--truncate", o->truncate, "Right truncation: a distance in m (> 0), a percentage in [0, 100) of the largest distances (5%), or none (default: the largest distance)");
   c->add_option("--bins", o->bins, "Distance bin edges in m (binned analysis), 2-1000 increasing numbers >= 0, e.g. 0,10,25,50,100 (default: exact distances)");
   c->add_option("--models", o->models, "Key functions: half-normal, hazard-rate, uniform")->delimiter(',')
       ->capture_default_str();
@@ -171,7 +171,7 @@ Action add_transect_command(CLI::App& app) {
   c->add_option("--max-terms", o->max_terms, "Most adjustment terms per model")->check(whole_number(0, 5))->capture_default_str();
   c->add_flag("--pool-detection", o->pool_detection,
               "One detection function shared by all species and strata; encounter rates stay specific");
-  c->add_option("--study-area", o->study_area, "Study area for abundance: a number (in --unit) or a polygon layer");
+  c->add_option("--study-area", o->study_area, "Study area for abundance: a number (in --unit) or a polygon layer (default: none, density only)");
   c->add_option("--study-area-layer", o->study_area_layer, "Layer of --study-area");
   c->add_option("--bootstrap", o->bootstrap, "Non-parametric bootstrap replicates over transects (0 = none)")
       ->check(whole_number(0, 100000))
@@ -181,7 +181,7 @@ Action add_transect_command(CLI::App& app) {
   c->add_option("--max-offset", o->max_offset, "Sightings farther than this (m) from every transect are refused")
       ->check(positive_number())
       ->capture_default_str();
-  c->add_option("--target-cv", o->target_cv, "Also report the effort needed for this CV of density (a fraction, e.g. 0.15)")
+  c->add_option("--target-cv", o->target_cv, "Also report the effort needed for this CV of density, a fraction in (0, 1), e.g. 0.15 (default: none)")
       ->check(number_between(0.0, 1.0, "a CV is a fraction: 0.15 for 15%"));
   c->add_option("--figures", o->figures, "Folder for detection-function and Q-Q figures (SVG and PNG)");
   return [c, o] {

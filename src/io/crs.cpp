@@ -249,9 +249,11 @@ ChosenCrs choose_analysis_crs(const std::optional<std::string>& target,
   if (chosen.code.empty()) chosen.code = crs_code(chosen.srs);
   chosen.name = crs_name(chosen.srs);
   char* wkt = nullptr;
-  chosen.srs.exportToWkt(&wkt);
+  const OGRErr exported = chosen.srs.exportToWkt(&wkt);
   chosen.wkt = wkt ? wkt : "";
   CPLFree(wkt);
+  if (exported != OGRERR_NONE || chosen.wkt.empty())
+    throw InputError(label + ": the analysis CRS " + chosen.code + " cannot be written as WKT");
   return chosen;
 }
 

@@ -72,9 +72,12 @@ double geodesic_area(const BgMultiPolygon& shape, const OGRSpatialReference& srs
                      const std::string& label) {
   const OGRSpatialReference geographic = geographic_of(srs);
   const TransformPtr to_geographic = make_transform(srs, geographic, label);
-  OGRErr error = OGRERR_NONE;
-  const double a = srs.GetSemiMajor(&error);
-  const double inverse_f = srs.GetInvFlattening(&error);
+  OGRErr major_error = OGRERR_NONE;
+  OGRErr flattening_error = OGRERR_NONE;
+  const double a = srs.GetSemiMajor(&major_error);
+  const double inverse_f = srs.GetInvFlattening(&flattening_error);
+  if (major_error != OGRERR_NONE || flattening_error != OGRERR_NONE || !(a > 0.0))
+    throw InputError(label + ": the ellipsoid of " + crs_name(srs) + " is unknown; areas cannot be checked");
   geod_geodesic g;
   geod_init(&g, a, inverse_f > 0.0 ? 1.0 / inverse_f : 0.0);
   const auto ring_area = [&](const auto& ring) {

@@ -70,7 +70,7 @@ void write_features(const std::string& path, const std::string& crs_wkt,
   OGRSpatialReference srs;
   if (srs.importFromWkt(crs_wkt.c_str()) != OGRERR_NONE) throw Error("invalid CRS for the GeoPackage");
   OGRLayer* layer = ds->CreateLayer("plot_results", &srs, wkbMultiPolygon, nullptr);
-  if (layer == nullptr) throw InputError(path + ": cannot create layer (" + last_gdal_message() + ")");
+  if (layer == nullptr) throw InputError(path + ": cannot create layer plot_results (" + last_gdal_message() + ")");
   for (const auto& f : fields) {
     OGRFieldDefn defn(f.name, f.type);
     if (layer->CreateField(&defn) != OGRERR_NONE) throw InputError(path + ": cannot create field " + f.name);
@@ -107,7 +107,7 @@ void write_features(const std::string& path, const std::string& crs_wkt,
     }
   }
   if (layer->CommitTransaction() != OGRERR_NONE) throw InputError(path + ": cannot finish writing (" + last_gdal_message() + ")");
-  ds.reset();
+  close_checked(std::move(ds), path);
   output.commit();
 }
 
@@ -129,11 +129,13 @@ void merge_plot_results(const std::vector<std::string>& inputs, const std::strin
     if (layer == nullptr) throw InputError(input + ": no layer 'plot_results'");
     if (wkt.empty() && layer->GetSpatialRef()) {
       char* text = nullptr;
-      layer->GetSpatialRef()->exportToWkt(&text);
-      wkt = text;
+      const OGRErr exported = layer->GetSpatialRef()->exportToWkt(&text);
+      wkt = text ? text : "";
       CPLFree(text);
+      if (exported != OGRERR_NONE || wkt.empty()) throw InputError(input + ": layer 'plot_results' has a CRS that cannot be written as WKT");
     }
-    for (auto& f : *layer) copies.emplace_back(f->Clone());
+    scan_layer(*layer, input + ": layer 'plot_results'", false,
+               [&](OGRFeature& f) { copies.emplace_back(f.Clone()); });
   }
   std::stable_sort(copies.begin(), copies.end(), [](const auto& a, const auto& b) {
     return std::string(a->GetFieldAsString("file")) < std::string(b->GetFieldAsString("file"));
@@ -154,16 +156,17 @@ void write_geotiff(const std::string& path, const IntensityRaster& raster, const
                                GDT_Float64, options.List()));
   if (!ds) throw InputError(path + ": cannot create GeoTIFF (" + last_gdal_message() + ")");
   double transform[6] = {raster.x_min, raster.pixel_m, 0.0, raster.y_max, 0.0, -raster.pixel_m};
-  ds->SetGeoTransform(transform);
-  ds->SetProjection(crs_wkt.c_str());
+  if (ds->SetGeoTransform(transform) != CE_None || ds->SetProjection(crs_wkt.c_str()) != CE_None)
+    throw InputError(path + ": cannot record the grid and CRS (" + last_gdal_message() + ")");
   GDALRasterBand* band = ds->GetRasterBand(1);
-  band->SetNoDataValue(std::numeric_limits<double>::quiet_NaN());
+  if (band == nullptr || band->SetNoDataValue(std::numeric_limits<double>::quiet_NaN()) != CE_None)
+    throw InputError(path + ": cannot set the no-data value (" + last_gdal_message() + ")");
   band->SetDescription(description.c_str());
   std::vector<double> values = raster.values;
   if (band->RasterIO(GF_Write, 0, 0, static_cast<int>(raster.width), static_cast<int>(raster.height), values.data(),
                      static_cast<int>(raster.width), static_cast<int>(raster.height), GDT_Float64, 0, 0) != CE_None)
     throw InputError(path + ": write failed (" + last_gdal_message() + ")");
-  ds.reset();
+  close_checked(std::move(ds), path);
   output.commit();
 }
 

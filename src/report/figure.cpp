@@ -9,6 +9,7 @@
 #include <cairo-svg.h>
 #include <cairo.h>
 
+#include "stipple/error.hpp"
 #include "stipple/format.hpp"
 
 namespace stipple {
@@ -231,6 +232,19 @@ void draw(cairo_t* cr, const Chart& chart) {
   }
 }
 
+// Ends drawing on `surface` and checks that cairo reported no failure on the way (a failed
+// allocation or an invalid font leaves the image incomplete without any other sign).
+void finish_drawing(cairo_t* cr, cairo_surface_t* surface, const std::string& figure) {
+  const cairo_status_t drawing = cairo_status(cr);
+  cairo_destroy(cr);
+  cairo_surface_finish(surface);
+  const cairo_status_t writing = cairo_surface_status(surface);
+  cairo_surface_destroy(surface);
+  const cairo_status_t status = drawing != CAIRO_STATUS_SUCCESS ? drawing : writing;
+  if (status != CAIRO_STATUS_SUCCESS)
+    throw Error("figure '" + figure + "' could not be drawn: " + cairo_status_to_string(status));
+}
+
 }  // namespace
 
 std::string chart_svg(const Chart& chart) {
@@ -238,9 +252,7 @@ std::string chart_svg(const Chart& chart) {
   cairo_surface_t* surface = cairo_svg_surface_create_for_stream(append_to_string, &out, width_px, height_px);
   cairo_t* cr = cairo_create(surface);
   draw(cr, chart);
-  cairo_destroy(cr);
-  cairo_surface_finish(surface);
-  cairo_surface_destroy(surface);
+  finish_drawing(cr, surface, chart.title);
   return stable_ids(out);
 }
 
@@ -250,9 +262,14 @@ std::string chart_png(const Chart& chart) {
       cairo_image_surface_create(CAIRO_FORMAT_RGB24, static_cast<int>(width_px), static_cast<int>(height_px));
   cairo_t* cr = cairo_create(surface);
   draw(cr, chart);
+  const cairo_status_t drawing = cairo_status(cr);
   cairo_destroy(cr);
-  cairo_surface_write_to_png_stream(surface, append_to_string, &out);
+  const cairo_status_t writing = drawing == CAIRO_STATUS_SUCCESS
+                                     ? cairo_surface_write_to_png_stream(surface, append_to_string, &out)
+                                     : drawing;
   cairo_surface_destroy(surface);
+  if (writing != CAIRO_STATUS_SUCCESS)
+    throw Error("figure '" + chart.title + "' could not be drawn: " + cairo_status_to_string(writing));
   return out;
 }
 
@@ -345,9 +362,7 @@ std::string plot_map_svg(const Plot& plot, const MarkedPattern& pattern, const s
   cairo_fill(cr);
   cairo_move_to(cr, bx + length * scale + 8, by + 7);
   cairo_show_text(cr, (format_general(length) + " m").c_str());
-  cairo_destroy(cr);
-  cairo_surface_finish(surface);
-  cairo_surface_destroy(surface);
+  finish_drawing(cr, surface, "map of plot " + plot.id);
   return stable_ids(out);
 }
 

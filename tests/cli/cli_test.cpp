@@ -283,9 +283,11 @@ TEST(CliBadInput, NanOrInfiniteCoordinates) {
 TEST(CliBadInput, DetectionProbabilityOutsideUnitInterval) {
   Fixture f;
   expect_refused(run_cli(f.sightings + " --plots " + f.plots + " --detection-prob 1.5"),
-                 "--detection-prob: detection probability 1.5 is outside (0, 1]");
+                 "--detection-prob: must be a probability in (0, 1] (got '1.5')");
   expect_refused(run_cli(f.sightings + " --plots " + f.plots + " --detection-prob 0"),
-                 "detection probability 0 is outside (0, 1]");
+                 "--detection-prob: must be a probability in (0, 1] (got '0')");
+  expect_refused(run_cli(f.sightings + " --plots " + f.plots + " --detection-prob 0.8 --detection-se -0.1"),
+                 "--detection-se: must be a number >= 0 (got '-0.1')");
   const auto table = f.dir.write("p.csv", "species,p,se\noak,0.9,0.02\nash,0,0\n");
   expect_refused(run_cli(f.sightings + " --plots " + f.plots + " --detection " + table),
                  "p.csv: line 3 (species 'ash'): detection probability 0 is outside (0, 1]");
