@@ -38,17 +38,17 @@ def thomas(n, parents_n, sigma):
 
 print("n   strong  moderate  (share called clustered; %d patterns each)" % reps)
 for n in (4, 6, 8, 10, 15, 20, 30):
-  row = []
-  for parents_n, sigma in ((2, 4.0), (4, 8.0)):
-    hits = 0
-    for r in range(reps):
-        csv = os.path.join(work, "s.csv")
-        with open(csv, "w") as f:
-            f.write("x,y,species\n" + "".join("%.3f,%.3f,a\n" % p for p in thomas(n, parents_n, sigma)))
-        out = subprocess.run([stipple, "randomness", csv, "--plots", plots, "--assume-crs", "EPSG:32630",
-                              "--simulations", "199", "--seed", str(r), "--json", "-"],
-                             capture_output=True, text=True, check=True).stdout
-        groups = [g for g in json.loads(out)["results"] if g["species"] is None]
-        hits += groups[0]["verdict"] == "clustered"
-    row.append(hits / reps)
-  print("%-3d %7.2f %9.2f" % (n, row[0], row[1]), flush=True)
+    row = []
+    for parents_n, sigma in ((2, 4.0), (4, 8.0)):
+        hits = 0
+        for r in range(reps):
+            csv = os.path.join(work, "s.csv")
+            with open(csv, "w") as f:
+                f.write("x,y,species\n" + "".join("%.3f,%.3f,a\n" % p for p in thomas(n, parents_n, sigma)))
+            out = subprocess.run([stipple, "randomness", csv, "--plots", plots, "--assume-crs", "EPSG:32630",
+                                  "--simulations", "199", "--seed", str(r), "--json", "-"],
+                                 capture_output=True, text=True, check=True).stdout
+            groups = [g for g in json.loads(out)["results"] if g["species"] is None]
+            hits += groups[0]["verdict"] == "clustered"
+        row.append(hits / reps)
+    print("%-3d %7.2f %9.2f" % (n, row[0], row[1]), flush=True)
