@@ -4,6 +4,7 @@
 #include <filesystem>
 #include <fstream>
 #include <map>
+#include <regex>
 #include <set>
 #include <sstream>
 
@@ -62,10 +63,26 @@ std::string cell(const Json& v, int digits = 4) {
   return escape(json_text(v, -1));
 }
 
-std::string svg_inline(const fs::path& path) {
+// An SVG file's <svg> element for inlining into the page. Cairo names the glyphs, clips and
+// surfaces of every figure alike (glyph0-1, clip1, ...), and ids are global in an HTML page:
+// without a prefix every figure after the first would draw its text with the first one's
+// glyphs. Each figure's ids and references get the prefix "f<number>-".
+std::string svg_inline(const fs::path& path, std::size_t figure) {
   std::string svg = read_text(path);
   const auto start = svg.find("<svg");
-  return start == std::string::npos ? std::string() : svg.substr(start);
+  if (start == std::string::npos) return {};
+  svg = svg.substr(start);
+  static const std::regex reference(R"((\bid=")|(href="#)|(url\(#))");
+  const std::string prefix = "f" + std::to_string(figure) + "-";
+  std::string out;
+  auto last = svg.cbegin();
+  for (auto it = std::sregex_iterator(svg.begin(), svg.end(), reference); it != std::sregex_iterator(); ++it) {
+    out.append(last, svg.cbegin() + it->position() + it->length());
+    out += prefix;
+    last = svg.cbegin() + it->position() + it->length();
+  }
+  out.append(last, svg.cend());
+  return out;
 }
 
 }  // namespace
@@ -176,6 +193,7 @@ std::string batch_report_html(const std::string& out_dir) {
     }
     h << "</table>\n";
   }
+  std::size_t figures = 0;  // numbers the inlined figures: their ids must be unique in the page
   const auto section = [&](const char* sub, const char* prefix, const char* title, const char* intro) {
     std::error_code ec;
     const fs::path root = dir / sub;
@@ -188,7 +206,7 @@ std::string batch_report_html(const std::string& out_dir) {
     std::sort(files.begin(), files.end());
     if (files.empty()) return;
     h << "<h2>" << title << "</h2>\n<p>" << intro << "</p>\n<div class=figs>\n";
-    for (const auto& f : files) h << svg_inline(f) << "\n";
+    for (const auto& f : files) h << svg_inline(f, ++figures) << "\n";
     h << "</div>\n";
   };
   section("maps", "", "Plot maps",

@@ -3,6 +3,8 @@
 #include <cairo.h>
 #include <filesystem>
 #include <fstream>
+#include <regex>
+#include <set>
 #include <sstream>
 
 #include <gdal_priv.h>
@@ -195,6 +197,27 @@ TEST(BatchCli, ReportRendersInHeadlessChromium) {
   cairo_surface_destroy(image);
   // A blank page has no dark pixels; the report's text and tables cover several percent.
   EXPECT_GT(static_cast<double>(ink) / (static_cast<double>(width) * height), 0.02);
+}
+
+// Inlined SVGs share cairo's glyph and clip names; ids are global in an HTML page, so
+// without per-figure prefixes every figure drew its text with the first figure's glyphs.
+TEST(BatchCli, ReportIdsAreUniqueAndEveryReferenceResolves) {
+  TempDir out;
+  ASSERT_EQ(run_cli(batch(sample("season"), out.file("o"), "--report")).exit_code, 0);
+  const std::string html = read(out.file("o/report.html"));
+  std::set<std::string> ids;
+  std::size_t count = 0;
+  static const std::regex id_attribute(R"re(\bid="([^"]+)")re");
+  for (auto it = std::sregex_iterator(html.begin(), html.end(), id_attribute); it != std::sregex_iterator(); ++it) {
+    ++count;
+    EXPECT_TRUE(ids.insert((*it)[1].str()).second) << "duplicate id " << (*it)[1].str();
+  }
+  EXPECT_GT(count, 100u);  // the figures' glyphs
+  static const std::regex reference(R"re((?:href="#|url\(#)([^")]+))re");
+  std::size_t references = 0;
+  for (auto it = std::sregex_iterator(html.begin(), html.end(), reference); it != std::sregex_iterator(); ++it, ++references)
+    EXPECT_TRUE(ids.count((*it)[1].str())) << "unresolved reference #" << (*it)[1].str();
+  EXPECT_GT(references, 100u);
 }
 
 TEST(BatchCli, RunFileSetsAnalysesAndOptions) {
