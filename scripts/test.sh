@@ -12,7 +12,8 @@ for arg in "$@"; do
   case "$arg" in
     --sanitize)
       build=build-asan
-      flags=(-DSTIPPLE_WERROR=ON -DSTIPPLE_SANITIZE=ON -DCMAKE_BUILD_TYPE=Debug) ;;
+      # -O1: the usual optimisation for sanitizer runs (several times faster than -O0).
+      flags=(-DSTIPPLE_WERROR=ON -DSTIPPLE_SANITIZE=ON -DCMAKE_BUILD_TYPE=Debug "-DCMAKE_CXX_FLAGS_DEBUG=-g -O1") ;;
     --quick) labels=(-L quick) ;;
     *) echo "scripts/test.sh: unknown option '$arg' (use --sanitize, --quick)" >&2; exit 2 ;;
   esac
