@@ -1,6 +1,7 @@
 // `stipple batch`, `stipple merge` and `stipple report`: parse options, call the library,
 // show progress.
 
+#include <algorithm>
 #include <chrono>
 #include <filesystem>
 #include <iostream>
@@ -52,6 +53,48 @@ struct BatchCommandOptions {
   double bandwidth = 0.0;
 };
 
+std::size_t edit_distance(const std::string& a, const std::string& b) {
+  std::vector<std::size_t> row(b.size() + 1);
+  for (std::size_t j = 0; j <= b.size(); ++j) row[j] = j;
+  for (std::size_t i = 1; i <= a.size(); ++i) {
+    std::size_t diagonal = row[0];
+    row[0] = i;
+    for (std::size_t j = 1; j <= b.size(); ++j) {
+      const std::size_t above = row[j];
+      row[j] = std::min({row[j] + 1, row[j - 1] + 1, diagonal + (a[i - 1] == b[j - 1] ? 0u : 1u)});
+      diagonal = above;
+    }
+  }
+  return row[b.size()];
+}
+
+// Refuses a key the run file format does not have, naming the nearest valid one: a typing
+// error must not silently leave an option at its default.
+void check_run_file_keys(const toml::table& file, const std::string& path) {
+  static const std::vector<std::string> top{"analyses", "pattern", "plots_name", "species_field", "plot_field",
+                                            "sightings_plot_field", "assign", "encoding", "unit", "crs",
+                                            "assume_crs", "confidence", "gis", "surface", "density", "randomness"};
+  static const std::vector<std::string> density{"detection", "detection_prob", "detection_se"};
+  static const std::vector<std::string> randomness{"simulations", "seed", "quadrats", "edge_correction", "rmax"};
+  const auto check = [&](const toml::table& table, const std::vector<std::string>& known, const std::string& where) {
+    for (const auto& [key, value] : table) {
+      const std::string name(key.str());
+      if (std::find(known.begin(), known.end(), name) != known.end()) continue;
+      std::string best;
+      std::size_t best_distance = 4;
+      for (const auto& candidate : known) {
+        const std::size_t d = edit_distance(name, candidate);
+        if (d < best_distance) best_distance = d, best = candidate;
+      }
+      throw InputError(path + ": unknown key '" + where + name + "'" +
+                       (best.empty() ? "" : " (did you mean '" + where + best + "'?)"));
+    }
+  };
+  check(file, top, "");
+  if (const auto* t = file["density"].as_table()) check(*t, density, "density.");
+  if (const auto* t = file["randomness"].as_table()) check(*t, randomness, "randomness.");
+}
+
 // Values of the run file, applied unless the command line names the same option.
 void apply_run_file(BatchCommandOptions& o, CLI::App& command) {
   toml::table file;
@@ -62,6 +105,7 @@ void apply_run_file(BatchCommandOptions& o, CLI::App& command) {
     message << o.run_file << ": line " << e.source().begin.line << ": " << e.description();
     throw InputError(message.str());
   }
+  check_run_file_keys(file, o.run_file);
   const auto given = [&](const char* option) { return command.get_option(option)->count() > 0; };
   const auto text = [&](const toml::node_view<toml::node> node, std::string& target, const char* option) {
     if (!node) return;
@@ -118,6 +162,11 @@ void apply_run_file(BatchCommandOptions& o, CLI::App& command) {
   text(file["assume_crs"], o.common.assume_crs, "--assume-crs");
   real(file["confidence"], o.common.confidence, "--confidence");
   text(file["density"]["detection"], o.detection_file, "--detection");
+  // A relative path in a run file is relative to the run file's folder, not to where the
+  // command happens to run.
+  if (file["density"]["detection"] && !given("--detection") && !o.detection_file.empty() &&
+      std::filesystem::path(o.detection_file).is_relative())
+    o.detection_file = (std::filesystem::path(o.run_file).parent_path() / o.detection_file).string();
   real(file["density"]["detection_prob"], o.detection_prob, "--detection-prob");
   real(file["density"]["detection_se"], o.detection_se, "--detection-se");
   whole(file["randomness"]["simulations"], o.simulations, "--simulations");

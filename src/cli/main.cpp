@@ -43,6 +43,33 @@ std::string unknown_command(const CLI::App& app, const std::string& word) {
   return "unknown command '" + word + "'" + (best.empty() ? "" : " (did you mean '" + best + "'?)");
 }
 
+// "unknown option '--confidnce' (did you mean '--confidence'?)" for the first argument of
+// `argv` that starts with "--" and is no option of the chosen subcommand; empty otherwise.
+std::string unknown_option(const CLI::App& app, int argc, char** argv) {
+  const CLI::App* command = nullptr;
+  for (const CLI::App* sub : app.get_subcommands([](const CLI::App*) { return true; }))
+    if (argc > 1 && sub->get_name() == argv[1]) command = sub;
+  if (command == nullptr) return {};
+  std::vector<std::string> names;
+  for (const CLI::Option* option : command->get_options())
+    for (const std::string& name : option->get_lnames()) names.push_back("--" + name);
+  for (int i = 2; i < argc; ++i) {
+    std::string word = argv[i];
+    if (word.rfind("--", 0) != 0 || word == "--") continue;
+    word = word.substr(0, word.find('='));
+    if (std::find(names.begin(), names.end(), word) != names.end()) continue;
+    std::string best;
+    std::size_t best_distance = 4;
+    for (const auto& name : names) {
+      const std::size_t d = edit_distance(word, name);
+      if (d < best_distance) best_distance = d, best = name;
+    }
+    return "unknown option '" + word + "' for stipple " + command->get_name() +
+           (best.empty() ? "" : " (did you mean '" + best + "'?)");
+  }
+  return {};
+}
+
 }  // namespace
 
 int main(int argc, char** argv) {
@@ -75,7 +102,9 @@ int main(int argc, char** argv) {
   } catch (const CLI::CallForVersion& e) {
     return app.exit(e);
   } catch (const CLI::ParseError& e) {
-    std::cerr << "error: " << e.what() << " (see stipple --help)\n";
+    const std::string option = unknown_option(app, argc, argv);
+    std::cerr << "error: " << (option.empty() ? std::string(e.what()) : option) << " (see stipple "
+              << (argc > 1 ? std::string(argv[1]) + " " : std::string()) << "--help)\n";
     return static_cast<int>(ExitCode::bad_input);
   }
   try {

@@ -239,6 +239,25 @@ TEST(BatchCli, RunFileSetsAnalysesAndOptions) {
   const auto rmax = dir.write("rmax.toml", "[randomness]\nrmax = 0\n");
   test::expect_refused(run_cli(batch(sample("season"), dir.file("q"), "--run-file " + rmax)),
                        "rmax.toml: 'rmax' must be a number greater than 0");
+  // A misspelt key is refused, not silently ignored.
+  const auto typo = dir.write("typo.toml", "unti = \"km2\"\n");
+  test::expect_refused(run_cli(batch(sample("season"), dir.file("q"), "--run-file " + typo)),
+                       "typo.toml: unknown key 'unti' (did you mean 'unit'?)");
+}
+
+TEST(BatchCli, RunFilePathsAreRelativeToTheRunFile) {
+  TempDir dir;
+  fs::create_directories(dir.file("config"));
+  (void)dir.write("config/p.csv", "species,p\nbirch,0.5\nhazel,0.5\njuniper,0.5\nwood-ant,0.5\n");
+  const auto run = dir.write("config/run.toml", "analyses = [\"density\"]\n[density]\ndetection = \"p.csv\"\n");
+  const auto r = run_cli(batch(sample("season"), dir.file("o"), "--run-file " + run));
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  const auto density = nlohmann::json::parse(read(dir.file("o/density.json")));
+  ASSERT_FALSE(density.empty());
+  for (const auto& e : density)
+    if (!e["species"].is_null()) {
+      EXPECT_EQ(e["detection_probability"], 0.5) << e.dump();
+    }
 }
 
 TEST(BatchCli, ShapefilePairsAndBadInputs) {

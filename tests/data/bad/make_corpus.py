@@ -198,7 +198,8 @@ case("bandwidth-zero", 2, "must be a number greater than 0", S + " --bandwidth 0
 case("pixel-nan", 2, "must be a number greater than 0", S + " --pixel nan")
 case("pixel-larger-than-bandwidth", 2, "pixel", S + " --pixel 50 --bandwidth 5")
 case("unknown-subcommand", 2, "unknown command 'densty' (did you mean 'density'?)", "densty {bad}/good.csv")
-case("unknown-option", 2, "--simulatons", D % "good.csv" + " --simulatons 99")
+case("unknown-option", 2, "unknown option '--simulatons' for stipple density (did you mean '--simulations'?)", D % "good.csv" + " --simulatons 99")
+case("unknown-option-far-from-any", 2, "unknown option '--colour-scheme' for stipple density", D % "good.csv" + " --colour-scheme dark")
 
 # --- outputs that must not be written ------------------------------------------------------
 case("output-to-device", 2, "/dev/null", D % "good.csv" + " --json /dev/null")
@@ -246,6 +247,9 @@ write("negative-run.toml", "[randomness]\nsimulations = -1\n")
 case("run-file-negative-simulations", 2, "must be a whole number", "batch {bad}/good.csv --out {tmp}/season --run-file {bad}/negative-run.toml")
 write("assign-run.toml", "assign = \"nearest\"\n")
 case("run-file-unknown-assign", 2, "assign", "batch {bad}/good.csv --out {tmp}/season --run-file {bad}/assign-run.toml")
+write("typo-run.toml", "[randomness]\nsimulatons = 99\n")
+case("run-file-unknown-key", 2, "unknown key 'randomness.simulatons' (did you mean 'randomness.simulations'?)",
+     "batch {bad}/good.csv --out {tmp}/season --run-file {bad}/typo-run.toml")
 case("batch-bad-shard", 2, "--shard", "batch {bad}/good.csv --out {tmp}/season --shard 3/2")
 case("batch-zero-shard", 2, "--shard", "batch {bad}/good.csv --out {tmp}/season --shard 0/2")
 case("batch-out-is-a-file", 2, "exists and is not a folder", "batch {bad}/good.csv --out {bad}/good.csv")
