@@ -47,7 +47,6 @@ void summarise_plots(OGRLayer& layer, const std::optional<OGRSpatialReference>& 
   }
   // The analysis rule: the layer's CRS when projected in metres with areas within 0.1% of
   // the geodesic ones, else the local equal-area CRS of the layer.
-  const std::string label = layer_label("", layer);
   std::vector<double> geodesic(shapes.size(), 0.0);
   std::vector<std::pair<double, double>> vertices;
   for (std::size_t i = 0; i < shapes.size(); ++i) {

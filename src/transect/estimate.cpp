@@ -18,7 +18,6 @@ namespace stipple {
 
 namespace {
 
-constexpr double pi = 3.14159265358979323846;
 const double nan_value = std::numeric_limits<double>::quiet_NaN();
 
 using Key = std::optional<std::string>;
