@@ -53,21 +53,6 @@ struct BatchCommandOptions {
   double bandwidth = 0.0;
 };
 
-std::size_t edit_distance(const std::string& a, const std::string& b) {
-  std::vector<std::size_t> row(b.size() + 1);
-  for (std::size_t j = 0; j <= b.size(); ++j) row[j] = j;
-  for (std::size_t i = 1; i <= a.size(); ++i) {
-    std::size_t diagonal = row[0];
-    row[0] = i;
-    for (std::size_t j = 1; j <= b.size(); ++j) {
-      const std::size_t above = row[j];
-      row[j] = std::min({row[j] + 1, row[j - 1] + 1, diagonal + (a[i - 1] == b[j - 1] ? 0u : 1u)});
-      diagonal = above;
-    }
-  }
-  return row[b.size()];
-}
-
 // Refuses a key the run file format does not have, naming the nearest valid one: a typing
 // error must not silently leave an option at its default.
 void check_run_file_keys(const toml::table& file, const std::string& path) {
@@ -80,12 +65,7 @@ void check_run_file_keys(const toml::table& file, const std::string& path) {
     for (const auto& [key, value] : table) {
       const std::string name(key.str());
       if (std::find(known.begin(), known.end(), name) != known.end()) continue;
-      std::string best;
-      std::size_t best_distance = 4;
-      for (const auto& candidate : known) {
-        const std::size_t d = edit_distance(name, candidate);
-        if (d < best_distance) best_distance = d, best = candidate;
-      }
+      const std::string best = nearest_name(name, known);
       throw InputError(path + ": unknown key '" + where + name + "'" +
                        (best.empty() ? "" : " (did you mean '" + where + best + "'?)"));
     }

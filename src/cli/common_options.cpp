@@ -1,5 +1,6 @@
 #include "common_options.hpp"
 
+#include <algorithm>
 #include <filesystem>
 #include <iostream>
 
@@ -40,6 +41,32 @@ void add_sighting_options(CLI::App& command, CommonOptions& o) {
                      "Text encoding of the inputs' attributes, e.g. LATIN1 or CP1252 (default: "
                      "UTF-8, or what a Shapefile's .cpg says; invalid bytes are shown as U+FFFD "
                      "with a warning)");
+}
+
+std::string nearest_name(const std::string& word, const std::vector<std::string>& candidates,
+                         std::size_t max_distance) {
+  // Levenshtein distance, one row at a time.
+  const auto distance = [](const std::string& a, const std::string& b) {
+    std::vector<std::size_t> row(b.size() + 1);
+    for (std::size_t j = 0; j <= b.size(); ++j) row[j] = j;
+    for (std::size_t i = 1; i <= a.size(); ++i) {
+      std::size_t diagonal = row[0];
+      row[0] = i;
+      for (std::size_t j = 1; j <= b.size(); ++j) {
+        const std::size_t above = row[j];
+        row[j] = std::min({row[j] + 1, row[j - 1] + 1, diagonal + (a[i - 1] == b[j - 1] ? 0u : 1u)});
+        diagonal = above;
+      }
+    }
+    return row[b.size()];
+  };
+  std::string best;
+  std::size_t best_distance = max_distance + 1;
+  for (const auto& candidate : candidates) {
+    const std::size_t d = distance(word, candidate);
+    if (d < best_distance) best_distance = d, best = candidate;
+  }
+  return best;
 }
 
 Assignment parse_assignment(const std::string& text) {

@@ -60,6 +60,11 @@ void add_window_options(CLI::App& command, CommonOptions& options);
 /// --unit, --confidence, --json, --csv.
 void add_output_options(CLI::App& command, CommonOptions& options);
 
+/// The candidate closest to `word` by edit distance (Levenshtein 1966), if at most
+/// `max_distance` edits away; empty otherwise. For "did you mean" hints.
+[[nodiscard]] std::string nearest_name(const std::string& word, const std::vector<std::string>& candidates,
+                                       std::size_t max_distance = 3);
+
 /// The --assign option (auto, attribute, location) as the library's value.
 [[nodiscard]] Assignment parse_assignment(const std::string& text);
 /// Adds --assign: how sightings find their plot or transect.

@@ -11,35 +11,20 @@
 #include <CLI/CLI.hpp>
 
 #include "commands.hpp"
+#include "common_options.hpp"
 #include "stipple/error.hpp"
 #include "stipple/io/gdal_session.hpp"
 
 namespace {
 
-std::size_t edit_distance(const std::string& a, const std::string& b) {
-  std::vector<std::size_t> row(b.size() + 1);
-  for (std::size_t j = 0; j <= b.size(); ++j) row[j] = j;
-  for (std::size_t i = 1; i <= a.size(); ++i) {
-    std::size_t diagonal = row[0];
-    row[0] = i;
-    for (std::size_t j = 1; j <= b.size(); ++j) {
-      const std::size_t above = row[j];
-      row[j] = std::min({row[j] + 1, row[j - 1] + 1, diagonal + (a[i - 1] == b[j - 1] ? 0u : 1u)});
-      diagonal = above;
-    }
-  }
-  return row[b.size()];
-}
-
 // "unknown command 'densty' (did you mean 'density'?)", or empty for a known command.
 std::string unknown_command(const CLI::App& app, const std::string& word) {
-  std::string best;
-  std::size_t best_distance = 3;  // suggest only close matches
+  std::vector<std::string> names;
   for (const CLI::App* command : app.get_subcommands([](const CLI::App*) { return true; })) {
     if (command->get_name() == word) return {};
-    const std::size_t d = edit_distance(word, command->get_name());
-    if (d < best_distance) best_distance = d, best = command->get_name();
+    names.push_back(command->get_name());
   }
+  const std::string best = stipple::cli::nearest_name(word, names, 2);
   return "unknown command '" + word + "'" + (best.empty() ? "" : " (did you mean '" + best + "'?)");
 }
 
@@ -58,12 +43,7 @@ std::string unknown_option(const CLI::App& app, int argc, char** argv) {
     if (word.rfind("--", 0) != 0 || word == "--") continue;
     word = word.substr(0, word.find('='));
     if (std::find(names.begin(), names.end(), word) != names.end()) continue;
-    std::string best;
-    std::size_t best_distance = 4;
-    for (const auto& name : names) {
-      const std::size_t d = edit_distance(word, name);
-      if (d < best_distance) best_distance = d, best = name;
-    }
+    const std::string best = stipple::cli::nearest_name(word, names);
     return "unknown option '" + word + "' for stipple " + command->get_name() +
            (best.empty() ? "" : " (did you mean '" + best + "'?)");
   }
