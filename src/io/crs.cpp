@@ -269,6 +269,13 @@ void check_coordinate(double x, double y, const OGRSpatialReference& srs, const 
                    " (wrong CRS, swapped columns or a typing error?)");
 }
 
+void check_envelope(const OGRGeometry& geometry, const OGRSpatialReference& srs, const std::string& where) {
+  OGREnvelope e;
+  geometry.getEnvelope(&e);
+  check_coordinate(e.MinX, e.MinY, srs, where);
+  check_coordinate(e.MaxX, e.MaxY, srs, where);
+}
+
 TransformPtr make_transform(const OGRSpatialReference& from, const OGRSpatialReference& to,
                             const std::string& label) {
   if (from.IsSame(&to)) return nullptr;

@@ -217,14 +217,6 @@ struct PlotLayer {
   std::vector<RawPlot> features;
 };
 
-void check_envelope(const OGRGeometry& geometry, const OGRSpatialReference& crs,
-                    const std::string& where) {
-  OGREnvelope e;
-  geometry.getEnvelope(&e);
-  check_coordinate(e.MinX, e.MinY, crs, where);
-  check_coordinate(e.MaxX, e.MaxY, crs, where);
-}
-
 PlotLayer read_plots(OGRLayer& layer, const std::string& label, const OGRSpatialReference& crs,
                      const SurveyReadOptions& options, std::vector<std::string>& notes,
                      std::vector<std::string>& warnings) {

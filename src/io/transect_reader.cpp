@@ -102,19 +102,7 @@ double polygon_area(OGRLayer& layer, const OGRSpatialReference& source, const OG
     if (!(area > 0.0) || !std::isfinite(area)) throw InputError(context + ": study-area polygon has zero area");
     BgMultiPolygon shape;
     std::unique_ptr<OGRGeometry> linear(copy->getLinearGeometry());
-    const auto add = [&shape](const OGRPolygon& p) {
-      BgPolygon b;
-      for (const auto& v : *p.getExteriorRing()) b.outer().emplace_back(v.getX(), v.getY());
-      for (int i = 0; i < p.getNumInteriorRings(); ++i) {
-        b.inners().emplace_back();
-        for (const auto& v : *p.getInteriorRing(i)) b.inners().back().emplace_back(v.getX(), v.getY());
-      }
-      shape.push_back(std::move(b));
-    };
-    const auto type = wkbFlatten(linear->getGeometryType());
-    if (type == wkbPolygon) add(*linear->toPolygon());
-    else if (type == wkbMultiPolygon)
-      for (const auto* part : *linear->toMultiPolygon()) add(*part);
+    collect_polygons(*linear, shape);
     const double geodesic = geodesic_area(shape, target, context);
     if (geodesic > 0.0) worst_error = std::max(worst_error, std::abs(area / geodesic - 1.0));
     total += area;
@@ -123,8 +111,6 @@ double polygon_area(OGRLayer& layer, const OGRSpatialReference& source, const OG
   return total;
 }
 
-
-void check_envelope(const OGRGeometry& geometry, const OGRSpatialReference& crs, const std::string& context);
 
 std::vector<std::pair<double, double>> transect_vertices(OGRLayer& layer, const OGRSpatialReference& crs,
                                                          const std::string& label) {
@@ -169,13 +155,6 @@ void check_some_ids_match(OGRLayer& layer, const std::string& label, int index,
                    ", ...) is a transect id in field '" + transect_field + "' (" + known +
                    ", ...): assign by location (nearest transect) with --assign location, or name the "
                    "sightings' field with --sightings-transect-field");
-}
-
-void check_envelope(const OGRGeometry& geometry, const OGRSpatialReference& crs, const std::string& context) {
-  OGREnvelope e;
-  geometry.getEnvelope(&e);
-  check_coordinate(e.MinX, e.MinY, crs, context);
-  check_coordinate(e.MaxX, e.MaxY, crs, context);
 }
 
 }  // namespace

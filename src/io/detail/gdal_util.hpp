@@ -120,6 +120,8 @@ inline constexpr double max_crs_area_error = 1e-3;
 /// Refuses (InputError naming `where`) a coordinate no survey can have: beyond +-90 degrees
 /// of latitude or +-540 of longitude in a geographic CRS, beyond 1e9 units in a projected one.
 void check_coordinate(double x, double y, const OGRSpatialReference& srs, const std::string& where);
+/// check_coordinate on the corners of a geometry's envelope.
+void check_envelope(const OGRGeometry& geometry, const OGRSpatialReference& srs, const std::string& where);
 
 /// A transformation between two CRSs, or null when they are the same.
 TransformPtr make_transform(const OGRSpatialReference& from, const OGRSpatialReference& to,
