@@ -1,25 +1,26 @@
+// Batch: each file analysed on typed results, its outputs streamed in input order as it
+// finishes, the season pooled at the end.
+
 #include "stipple/batch/batch.hpp"
 
-#include <algorithm>
-#include <cctype>
 #include <filesystem>
-#include <fstream>
 #include <map>
+#include <memory>
 #include <mutex>
-#include <regex>
-#include <sstream>
-#include <string_view>
 
 #include <nlohmann/json.hpp>
 
 #include "json_text.hpp"
+#include "report/records.hpp"
 #include "stipple/error.hpp"
 #include "stipple/format.hpp"
+#include "stipple/io/inspect.hpp"
 #include "stipple/io/output.hpp"
 #include "stipple/parallel.hpp"
 #include "stipple/report/density_report.hpp"
 #include "stipple/report/figure.hpp"
 #include "stipple/report/randomness_report.hpp"
+#include "stipple/report/tables.hpp"
 #include "stipple/report/transect_report.hpp"
 
 namespace fs = std::filesystem;
@@ -30,31 +31,6 @@ namespace {
 
 using Json = nlohmann::ordered_json;
 
-// Shell-style glob with * and ?; `capture` receives what the first * matched.
-bool glob_match(const std::string& pattern, const std::string& text, std::string* capture) {
-  std::string expression;
-  bool first_star = true;
-  for (const char c : pattern) {
-    if (c == '*') {
-      expression += first_star ? "(.*)" : ".*";
-      first_star = false;
-    } else if (c == '?') {
-      expression += '.';
-    } else if (std::string("\\^$.|+()[]{}").find(c) != std::string::npos) {
-      expression += '\\';
-      expression += c;
-    } else {
-      expression += c;
-    }
-  }
-  std::smatch match;
-  if (!std::regex_match(text, match, std::regex(expression))) return false;
-  if (capture && match.size() > 1) *capture = match[1].str();
-  return true;
-}
-
-std::string number(double v) { return format_round_trip(v); }
-
 std::string stem_of(const std::string& name) {
   std::string s = name;
   for (char& c : s)
@@ -63,23 +39,185 @@ std::string stem_of(const std::string& name) {
   return dot == std::string::npos ? s : s.substr(0, dot);
 }
 
-std::string first_csv_field(const std::string& line) {
-  if (line.empty() || line[0] != '"') return line.substr(0, line.find(','));
-  std::string out;
-  for (std::size_t i = 1; i < line.size(); ++i) {
-    if (line[i] == '"') {
-      if (i + 1 < line.size() && line[i + 1] == '"') {
-        out += '"';
-        ++i;
-      } else {
-        break;
-      }
-    } else {
-      out += line[i];
+struct Figure {
+  SeasonFigure ref;
+  std::string svg;
+};
+
+// One file's typed results: alive only until the writer has streamed them.
+struct FileResults {
+  BatchInput source;
+  SeasonInput input;
+  std::string crs_wkt;
+  std::optional<LoadedSurvey> survey;
+  std::optional<DensityResult> density;
+  std::optional<RandomnessResult> randomness;
+  std::optional<TransectResult> transect;
+  std::vector<Figure> figures;
+  std::vector<std::pair<std::string, IntensityRaster>> surfaces;  // (relative path, raster)
+};
+
+// What the file holds, from its layers' geometry (no features read).
+InputKind judge_kind(const BatchInput& input, const BatchOptions& options, std::string& evidence) {
+  bool polygons = false;
+  bool points = false;
+  std::string line_layer;
+  for (const auto& layer : layer_shapes(input.path)) {
+    if (layer.family == GeometryFamily::line && line_layer.empty()) line_layer = layer.name;
+    polygons = polygons || layer.family == GeometryFamily::polygon;
+    points = points || layer.family == GeometryFamily::point;
+  }
+  if (!line_layer.empty()) {
+    evidence = "holds transect lines (layer '" + line_layer + "')";
+    return InputKind::transects;
+  }
+  if (polygons || (points && (options.shared_plots || input.plots_path != input.path))) {
+    evidence = "holds plots and sightings";
+    return InputKind::plots;
+  }
+  evidence = points ? "holds points but no plot polygons (give --plots or --plots-name)"
+                    : "holds neither plot polygons nor transect lines";
+  return InputKind::unknown;
+}
+
+void analyse_plots(FileResults& r, const BatchOptions& options) {
+  SurveyReadOptions read = options.read;
+  read.sightings = SourceSpec{r.source.path, options.read.sightings.layer};
+  if (options.shared_plots) read.plots = *options.shared_plots;
+  else read.plots = SourceSpec{r.source.plots_path, options.read.plots ? options.read.plots->layer : std::nullopt};
+  read.window = WindowMode::plots;
+  r.survey = load_survey(read);
+  r.input.crs = r.survey->crs.code;
+  r.crs_wkt = r.survey->crs.wkt;
+  r.input.warnings = r.survey->warnings;
+  const Survey& s = r.survey->survey;
+  const std::string stem = stem_of(r.source.name);
+  if (options.run_density) {
+    r.density = estimate_density(s, options.density);
+    for (const auto& w : density_warnings(*r.density)) r.input.warnings.push_back(w);
+  }
+  if (options.run_randomness) {
+    RandomnessOptions ro = options.randomness;
+    ro.threads = 1;  // files run in parallel already
+    r.randomness = analyse_randomness(s, ro);
+    if (options.figures)
+      for (auto& [file, svg] : randomness_figures(*r.randomness))
+        if (file.size() > 4 && file.substr(file.size() - 4) == ".svg" && file.rfind("L-", 0) == 0)
+          r.figures.push_back({{"L", "figures/" + stem + "/" + file, r.source.name + ": " + file.substr(0, file.size() - 4)},
+                               std::move(svg)});
+  }
+  if (options.surfaces) {
+    const double per_unit = square_metres_per(options.density.unit);
+    for (std::size_t k = 0; k <= s.species.size(); ++k) {
+      const std::optional<std::size_t> species = k < s.species.size() ? std::optional<std::size_t>(k) : std::nullopt;
+      const std::string name = species ? file_name_safe(s.species[k]) : std::string("all-species");
+      IntensityRaster raster = intensity_surface(s, species, per_unit, options.pixel_m, options.bandwidth_m);
+      for (const auto& w : raster.warnings) r.input.warnings.push_back("surface of " + name + ": " + w);
+      r.surfaces.emplace_back("surfaces/" + stem + "/" + name + ".tif", std::move(raster));
     }
   }
-  return out;
+  if (options.figures)
+    for (std::size_t p = 0; p < s.plots.size(); ++p)
+      r.figures.push_back({{"map", "maps/" + stem + "/" + file_name_safe(s.plots[p].id) + ".svg",
+                            r.source.name + ": plot " + s.plots[p].id},
+                           plot_map_svg(s.plots[p], s.patterns[p], s.species)});
 }
+
+void analyse_transect_file(FileResults& r, const BatchOptions& options) {
+  TransectReadOptions tr = options.transect_read;
+  tr.sightings = SourceSpec{r.source.path, options.transect_read.sightings.layer};
+  tr.lines = SourceSpec{r.source.path, options.transect_read.lines ? options.transect_read.lines->layer : std::nullopt};
+  const LoadedTransects loaded = load_transects(tr);
+  r.transect = analyse_transects(loaded.survey, options.transect);
+  r.input.crs = loaded.crs.code;
+  if (r.crs_wkt.empty()) r.crs_wkt = loaded.crs.wkt;
+  r.input.warnings.insert(r.input.warnings.end(), loaded.warnings.begin(), loaded.warnings.end());
+  if (options.figures) {
+    const std::string stem = stem_of(r.source.name);
+    for (auto& [file, svg] : transect_figures(loaded, *r.transect))
+      if (file.size() > 4 && file.substr(file.size() - 4) == ".svg")
+        r.figures.push_back({{"detection", "figures/" + stem + "/" + file,
+                              r.source.name + ": " + file.substr(0, file.size() - 4)},
+                             std::move(svg)});
+  }
+}
+
+// Analyses one input; every failure becomes the file's status, never the batch's.
+FileResults analyse_file(const BatchInput& source, const BatchOptions& options) {
+  FileResults r;
+  r.source = source;
+  r.input.name = source.name;
+  r.input.plots = source.plots_path == source.path ? std::string() : fs::path(source.plots_path).filename().string();
+  r.input.status = "ok";
+  try {
+    // Checksums first, inside the per-file isolation: an unreadable file fails alone.
+    std::error_code ec;
+    if (fs::is_regular_file(source.path, ec)) r.input.sha256 = sha256_file(source.path);
+    std::string evidence;
+    const InputKind kind = judge_kind(source, options, evidence);
+    r.input.kind = input_kind_name(kind);
+    const bool plots_wanted = options.run_density || options.run_randomness;
+    if (kind == InputKind::plots && plots_wanted) {
+      analyse_plots(r, options);
+    } else if (kind == InputKind::transects && options.run_transect) {
+      analyse_transect_file(r, options);
+    } else {
+      r.input.status = "skipped";
+      r.input.reason = evidence + "; " +
+                       (kind == InputKind::transects ? "not a plot file: analyse it with --analyses transect"
+                        : kind == InputKind::plots   ? "not a transect file: analyse it with --analyses density,randomness"
+                                                     : "nothing to analyse");
+    }
+  } catch (const Error& e) {
+    r = FileResults{};
+    r.source = source;
+    r.input.name = source.name;
+    r.input.status = "failed";
+    r.input.reason = e.what();
+  } catch (const std::exception& e) {
+    r = FileResults{};
+    r.source = source;
+    r.input.name = source.name;
+    r.input.status = "failed";
+    r.input.reason = std::string("internal error: ") + e.what();
+  }
+  if (r.input.kind.empty()) r.input.kind = "unknown";
+  return r;
+}
+
+// A JSON array written record by record.
+class JsonArrayFile {
+ public:
+  JsonArrayFile(const std::string& path, const std::vector<std::string>& protect) : file_(path, protect) {
+    file_.write("[");
+  }
+  void add(const Json& record) {
+    file_.write((first_ ? "\n" : ",\n") + json_text(record, -1));
+    first_ = false;
+  }
+  void commit() {
+    file_.write(first_ ? "]\n" : "\n]\n");
+    file_.commit();
+  }
+
+ private:
+  StreamedFile file_;
+  bool first_ = true;
+};
+
+// One table's CSV and JSON twin.
+struct TableFiles {
+  TableFiles(const fs::path& dir, const std::string& name, const Table& empty, const std::vector<std::string>& protect)
+      : csv((dir / (name + ".csv")).string(), protect), json((dir / (name + ".json")).string(), protect) {
+    csv.write(csv_header_with_file(empty));
+  }
+  StreamedFile csv;
+  JsonArrayFile json;
+  void commit() {
+    csv.commit();
+    json.commit();
+  }
+};
 
 Json with_file(const std::string& name, const Json& record) {
   Json out;
@@ -88,488 +226,307 @@ Json with_file(const std::string& name, const Json& record) {
   return out;
 }
 
-BatchFileResult run_one(const BatchInput& input, const BatchOptions& options) {
-  BatchFileResult r;
-  r.input = input;
-  // Checksums first, inside the per-file isolation: an unreadable file fails alone.
-  std::error_code ec;
-  if (fs::is_regular_file(input.path, ec)) r.sha256 = sha256_file(input.path);
-  if (input.plots_path != input.path && fs::is_regular_file(input.plots_path, ec))
-    r.plots_sha256 = sha256_file(input.plots_path);
-  SurveyReadOptions read = options.read;
-  read.sightings = SourceSpec{input.path, options.read.sightings.layer};
-  read.plots = SourceSpec{input.plots_path, options.read.plots ? options.read.plots->layer : std::nullopt};
-  read.window = WindowMode::plots;
-  const std::string stem = stem_of(input.name);
-  if (options.run_transect) {
-    TransectReadOptions tr = options.transect_read;
-    tr.sightings = SourceSpec{input.path, options.transect_read.sightings.layer};
-    tr.lines = SourceSpec{input.path, options.transect_read.lines ? options.transect_read.lines->layer : std::nullopt};
-    const LoadedTransects loaded = load_transects(tr);
-    const TransectResult result = analyse_transects(loaded.survey, options.transect);
-    const Json doc = Json::parse(transect_json(loaded, result));
-    r.crs = loaded.crs.code;
-    for (const auto& e : doc["results"]) {
-      r.transect_records.push_back(json_text(with_file(input.name, e), -1));
-      const auto v = [](const Json& x) { return x.is_null() ? std::string() : number(x.get<double>()); };
-      std::ostringstream row;
-      row << csv_field(input.name) << "," << csv_field(e["species"].is_null() ? "" : e["species"].get<std::string>()) << ","
-          << csv_field(e["stratum"].is_null() ? "" : e["stratum"].get<std::string>()) << "," << e["model"].get<std::string>()
-          << "," << e["n"].get<std::size_t>() << "," << v(e["effort"]) << "," << v(e["esw"]) << "," << v(e["effective_area"])
-          << "," << v(e["detection_probability"]) << "," << v(e["encounter_rate"]) << "," << v(e["density"]) << ","
-          << v(e["density_cv"]) << "," << v(e["density_ci"][0]) << "," << v(e["density_ci"][1]) << "," << v(e["abundance"])
-          << "," << doc["unit"].get<std::string>();
-      r.transect_rows.push_back(row.str());
-    }
-    if (options.figures)
-      for (const auto& [file, content] : transect_figures(loaded, result))
-        if (file.size() > 4 && file.substr(file.size() - 4) == ".svg") r.figures.emplace_back("figures/" + stem + "/" + file, content);
-    if (!options.run_density && !options.run_randomness) {
-      r.ok = true;
-      return r;
-    }
-  }
-  r.survey = load_survey(read);
-  r.crs = r.survey.crs.code;
-  r.warnings = r.survey.warnings;
-  if (options.run_density) {
-    const DensityResult d = estimate_density(r.survey.survey, options.density);
-    const Json doc = Json::parse(density_json(r.survey, d));
-    for (const auto& e : doc["estimates"]) {
-      r.density_records.push_back(json_text(with_file(input.name, e), -1));
-      std::ostringstream row;
-      row << csv_field(input.name) << "," << csv_field(e["plot"].get<std::string>()) << ","
-          << csv_field(e["species"].is_null() ? "" : e["species"].get<std::string>()) << ","
-          << e["count"].get<std::uint64_t>() << "," << number(e["area"]) << "," << number(e["intensity"]) << ","
-          << number(e["ci"][0]) << "," << number(e["ci"][1]) << "," << number(e["detection_probability"]) << ","
-          << number(e["corrected_intensity"]) << "," << number(e["corrected_ci"][0]) << ","
-          << number(e["corrected_ci"][1]) << "," << doc["unit"].get<std::string>();
-      r.density_rows.push_back(row.str());
-    }
-    for (const auto& w : density_warnings(d)) r.warnings.push_back(w);
-  }
-  if (options.run_randomness) {
-    RandomnessOptions ro = options.randomness;
-    ro.threads = 1;  // files run in parallel already
-    const RandomnessResult rr = analyse_randomness(r.survey.survey, ro);
-    const Json doc = Json::parse(randomness_json(r.survey, rr));
-    for (const auto& g : doc["results"]) {
-      r.randomness_records.push_back(json_text(with_file(input.name, g), -1));
-      const auto p = [](const Json& v) { return v.is_null() ? std::string() : number(v.get<double>()); };
-      std::ostringstream row;
-      row << csv_field(input.name) << "," << csv_field(g["plot"].get<std::string>()) << ","
-          << csv_field(g["species"].is_null() ? "" : g["species"].get<std::string>()) << "," << g["n"].get<std::size_t>()
-          << "," << (g["quadrat"].is_null() ? "" : p(g["quadrat"]["monte_carlo_p_value"].is_null() ? g["quadrat"]["p_value"] : g["quadrat"]["monte_carlo_p_value"]))
-          << "," << (g["clark_evans"].is_null() ? "" : p(g["clark_evans"]["ratio"]))
-          << "," << (g["clark_evans"].is_null() ? "" : p(g["clark_evans"]["monte_carlo_p_value"].is_null() ? g["clark_evans"]["p_value"] : g["clark_evans"]["monte_carlo_p_value"]))
-          << "," << (g["envelope"].is_null() ? "" : p(g["envelope"]["mad_p_value"]))
-          << "," << (g["envelope"].is_null() ? "" : p(g["envelope"]["dclf_p_value"])) << "," << g["verdict"].get<std::string>();
-      r.randomness_rows.push_back(row.str());
-    }
-    if (options.figures) {
-      for (const auto& [file, svg] : randomness_figures(rr))
-        if (file.size() > 4 && file.substr(file.size() - 4) == ".svg" && file.rfind("L-", 0) == 0)
-          r.figures.emplace_back("figures/" + stem + "/" + file, svg);
-    }
-  }
-  if (options.gis) {
-    // One feature per plot x species: the density row joined with the randomness result.
-    const Survey& s = r.survey.survey;
-    std::map<std::pair<std::string, std::string>, Json> tests;
-    for (const auto& record : r.randomness_records) {
-      const Json g = Json::parse(record);
-      tests[{g["plot"].get<std::string>(), g["species"].is_null() ? std::string() : g["species"].get<std::string>()}] = g;
-    }
-    std::map<std::string, std::size_t> plot_index;
-    for (std::size_t p = 0; p < s.plots.size(); ++p) plot_index[s.plots[p].id] = p;
-    for (const auto& record : r.density_records) {
-      const Json e = Json::parse(record);
-      PlotResultFeature f;
-      f.plot = e["plot"].get<std::string>();
-      f.shape = s.plots[plot_index.at(f.plot)].window.shape();
-      f.file = input.name;
-      if (!e["species"].is_null()) f.species = e["species"].get<std::string>();
-      f.count = e["count"].get<long long>();
-      f.area = e["area"].get<double>();
-      f.intensity = e["intensity"].get<double>();
-      f.ci_low = e["ci"][0].get<double>();
-      f.ci_high = e["ci"][1].get<double>();
-      f.corrected_intensity = e["corrected_intensity"].get<double>();
-      const auto t = tests.find({f.plot, f.species.value_or("")});
-      if (t != tests.end()) {
-        const Json& g = t->second;
-        const auto value = [](const Json& v) { return v.is_null() ? std::nullopt : std::optional<double>(v.get<double>()); };
-        if (!g["quadrat"].is_null()) f.quadrat_p = value(g["quadrat"]["monte_carlo_p_value"].is_null() ? g["quadrat"]["p_value"] : g["quadrat"]["monte_carlo_p_value"]);
-        if (!g["clark_evans"].is_null()) {
-          f.clark_evans_ratio = value(g["clark_evans"]["ratio"]);
-          f.clark_evans_p = value(g["clark_evans"]["monte_carlo_p_value"].is_null() ? g["clark_evans"]["p_value"] : g["clark_evans"]["monte_carlo_p_value"]);
-        }
-        if (!g["envelope"].is_null()) f.dclf_p = value(g["envelope"]["dclf_p_value"]);
-        f.verdict = g["verdict"].get<std::string>();
+std::vector<PlotResultFeature> gis_features(const FileResults& r, const std::string& unit) {
+  std::vector<PlotResultFeature> features;
+  if (!r.survey || !r.density) return features;
+  const Survey& s = r.survey->survey;
+  std::map<std::pair<std::string, std::string>, const GroupResult*> tests;
+  if (r.randomness)
+    for (const auto& g : r.randomness->results) tests[{g.plot, g.species.value_or("")}] = &g;
+  std::map<std::string, std::size_t> plot_index;
+  for (std::size_t p = 0; p < s.plots.size(); ++p) plot_index[s.plots[p].id] = p;
+  for (const auto& e : r.density->estimates) {
+    PlotResultFeature f;
+    f.plot = e.plot;
+    f.shape = s.plots[plot_index.at(e.plot)].window.shape();
+    f.file = r.source.name;
+    f.species = e.species;
+    f.count = static_cast<long long>(e.count);
+    f.area = e.area;
+    f.unit = unit;
+    f.intensity = e.intensity;
+    f.ci_low = e.ci.lower;
+    f.ci_high = e.ci.upper;
+    f.detection_probability = e.corrected.detection_probability;
+    f.corrected_intensity = e.corrected.intensity;
+    f.corrected_ci_low = e.corrected.ci.lower;
+    f.corrected_ci_high = e.corrected.ci.upper;
+    const auto t = tests.find({e.plot, e.species.value_or("")});
+    if (t != tests.end()) {
+      const GroupResult& g = *t->second;
+      if (g.quadrat) f.quadrat_p = g.quadrat->p_value;
+      if (g.clark_evans) {
+        f.clark_evans_ratio = g.clark_evans->ratio;
+        const double p = g.clark_evans->monte_carlo_p_value.value_or(g.clark_evans->p_value);
+        if (std::isfinite(p)) f.clark_evans_p = p;
       }
-      r.gis_features.push_back(std::move(f));
+      if (const EnvelopeResult* l = g.l_envelope()) f.dclf_p = l->dclf_p_value;
+      f.verdict = g.verdict;
     }
+    features.push_back(std::move(f));
   }
-  if (options.surfaces) {
-    const Survey& s = r.survey.survey;
-    const double per_unit = square_metres_per(options.density.unit);
-    for (std::size_t k = 0; k <= s.species.size(); ++k) {
-      const std::optional<std::size_t> species = k < s.species.size() ? std::optional<std::size_t>(k) : std::nullopt;
-      const std::string name = species ? file_name_safe(s.species[k]) : std::string("all-species");
-      IntensityRaster raster = intensity_surface(s, species, per_unit, options.pixel_m, options.bandwidth_m);
-      for (const auto& w : raster.warnings) r.warnings.push_back("surface of " + name + ": " + w);
-      r.surfaces.emplace_back("surfaces/" + stem + "/" + name + ".tif", std::move(raster));
+  return features;
+}
+
+// Streams each file's outputs as it arrives (in input order) and pools the season.
+class SeasonWriter {
+ public:
+  SeasonWriter(const std::string& out_dir, const BatchOptions& options, const std::vector<std::string>& protect)
+      : dir_(out_dir), options_(options), protect_(protect) {
+    make_folder(out_dir);
+    if (options.run_density) density_ = std::make_unique<TableFiles>(dir_, "density", density_rows({}), protect);
+    if (options.run_randomness) {
+      randomness_ = std::make_unique<TableFiles>(dir_, "randomness", randomness_rows({}), protect);
+      interactions_ = std::make_unique<TableFiles>(dir_, "interactions", interaction_rows({}), protect);
     }
+    if (options.run_transect) transect_ = std::make_unique<TableFiles>(dir_, "transect", transect_rows({}), protect);
+    failures_ = std::make_unique<StreamedFile>((dir_ / "failures.csv").string(), protect);
+    failures_->write("file,status,reason\n");
+    figures_ = std::make_unique<StreamedFile>((dir_ / "figures.csv").string(), protect);
+    figures_->write("section,path,title\n");
+    summary_.report.run = options.run;
   }
-  if (options.figures) {
-    const Survey& s = r.survey.survey;
-    for (std::size_t p = 0; p < s.plots.size(); ++p)
-      r.figures.emplace_back("maps/" + stem + "/" + file_name_safe(s.plots[p].id) + ".svg",
-                             plot_map_svg(s.plots[p], s.patterns[p], s.species));
+
+  void set_batch_crs(std::string code, std::string name, std::string wkt) {
+    crs_code_ = std::move(code);
+    crs_name_ = std::move(name);
+    crs_wkt_ = std::move(wkt);
   }
-  r.ok = true;
-  return r;
-}
 
-void write_lines(const std::string& path, const std::string& header, const std::vector<std::string>& rows,
-                 const std::vector<std::string>& protected_paths) {
-  std::string text = header + "\n";
-  for (const auto& row : rows) text += row + "\n";
-  write_file_safely(path, text, protected_paths);
-}
+  void consume(FileResults& r) {
+    if (crs_wkt_.empty() && !r.crs_wkt.empty())
+      set_batch_crs(r.input.crs, r.survey ? r.survey->crs.name : r.input.crs, r.crs_wkt);
+    if (!r.crs_wkt.empty() && r.input.crs != crs_code_ && (r.survey || r.transect))
+      r.input.warnings.push_back("analysed in its own CRS " + r.input.crs + "; its GIS features are reprojected to the batch CRS " +
+                                 crs_code_);
+    const std::string& name = r.source.name;
+    if (r.density) {
+      density_->csv.write(csv_rows_with_file(density_rows(*r.density), name));
+      for (const auto& e : r.density->estimates) density_->json.add(with_file(name, report_detail::density_estimate_record(e)));
+      const auto rows = season_density_rows(name, *r.density);
+      summary_.report.densities.insert(summary_.report.densities.end(), rows.begin(), rows.end());
+      season_counts_.append(PlotCounts::of(r.survey->survey), name + ":");
+      plots_pooled_ += r.survey->survey.plots.size();
+    }
+    if (r.randomness) {
+      randomness_->csv.write(csv_rows_with_file(randomness_rows(*r.randomness), name));
+      for (const auto& g : r.randomness->results) randomness_->json.add(with_file(name, report_detail::randomness_group_record(g)));
+      interactions_->csv.write(csv_rows_with_file(interaction_rows(*r.randomness), name));
+      for (const auto& i : r.randomness->interactions) interactions_->json.add(with_file(name, report_detail::interaction_record(i)));
+      const auto rows = season_randomness_rows(name, *r.randomness);
+      summary_.report.randomness.insert(summary_.report.randomness.end(), rows.begin(), rows.end());
+      const auto pairs = season_interaction_rows(name, *r.randomness);
+      summary_.report.interactions.insert(summary_.report.interactions.end(), pairs.begin(), pairs.end());
+    }
+    if (r.transect) {
+      transect_->csv.write(csv_rows_with_file(transect_rows(*r.transect), name));
+      for (const auto& e : r.transect->results)
+        transect_->json.add(with_file(name, report_detail::transect_estimate_record(*r.transect, e)));
+      const auto rows = season_transect_rows(name, *r.transect);
+      summary_.report.transects.insert(summary_.report.transects.end(), rows.begin(), rows.end());
+    }
+    for (const auto& f : r.figures) {
+      const fs::path target = dir_ / f.ref.path;
+      make_folder(target.parent_path().string());
+      write_file_safely(target.string(), f.svg, protect_);
+      figures_->write(csv_field(f.ref.section) + "," + csv_field(f.ref.path) + "," + csv_field(f.ref.title) + "\n");
+      summary_.report.figures.push_back(f.ref);
+    }
+    if (options_.gis && r.density) {
+      if (!gis_) gis_ = std::make_unique<PlotResultsWriter>((dir_ / "plot-results.gpkg").string(), crs_wkt_, protect_);
+      gis_->add(gis_features(r, std::string(unit_name(options_.density.unit))), r.crs_wkt);
+    }
+    for (const auto& [path, raster] : r.surfaces) {
+      const fs::path target = dir_ / path;
+      make_folder(target.parent_path().string());
+      write_geotiff(target.string(), raster, r.crs_wkt,
+                    "intensity per " + std::string(unit_name(options_.density.unit)) +
+                        ", Gaussian kernel, Scott bandwidth per plot, local edge correction (Jones 1993), in the CRS of " +
+                        name + " (" + r.input.crs + ")",
+                    protect_);
+    }
+    if (r.input.status != "ok") {
+      failures_->write(csv_field(name) + "," + r.input.status + "," + csv_field(r.input.reason) + "\n");
+      (r.input.status == "failed" ? summary_.failed : summary_.skipped) += 1;
+    }
+    Json in;
+    in["name"] = name;
+    std::error_code ec;
+    in["path"] = fs::absolute(r.source.path, ec).lexically_normal().string();
+    in["plots_path"] = options_.shared_plots ? fs::absolute(options_.shared_plots->path, ec).lexically_normal().string()
+                                             : fs::absolute(r.source.plots_path, ec).lexically_normal().string();
+    in["sha256"] = r.input.sha256.empty() ? Json(nullptr) : Json(r.input.sha256);
+    in["plots"] = r.input.plots.empty() ? Json(nullptr) : Json(r.input.plots);
+    in["kind"] = r.input.kind;
+    in["crs"] = r.input.crs.empty() ? Json(nullptr) : Json(r.input.crs);
+    in["status"] = r.input.status;
+    in["reason"] = r.input.reason.empty() ? Json(nullptr) : Json(r.input.reason);
+    in["warnings"] = r.input.warnings;
+    inputs_.push_back(std::move(in));
+    summary_.report.inputs.push_back(r.input);
+  }
 
-void write_records(const std::string& path, const std::vector<std::string>& records,
-                   const std::vector<std::string>& protected_paths) {
-  Json array = Json::array();
-  for (const auto& r : records) array.push_back(Json::parse(r));
-  write_file_safely(path, json_text(array), protected_paths);
-}
+  BatchSummary finish() {
+    SeasonRun& run = summary_.report.run;
+    run.crs = crs_code_;
+    run.crs_name = crs_name_;
+    std::vector<std::string> warnings;
+    if (options_.run_density) {
+      DensityResult pooled = estimate_density(season_counts_, options_.density);
+      pooled.estimates.clear();  // the per-plot rows are in density.csv
+      write_pooled(pooled);
+      for (const auto& w : density_warnings(pooled)) warnings.push_back("season: " + w);
+      summary_.report.pooled = std::move(pooled);
+      density_->commit();
+    }
+    summary_.report.warnings = warnings;
+    if (randomness_) {
+      randomness_->commit();
+      interactions_->commit();
+    }
+    if (transect_) transect_->commit();
+    failures_->commit();
+    figures_->commit();
+    if (gis_) gis_->commit();
+    write_run(warnings);
+    return std::move(summary_);
+  }
 
-std::vector<std::string> read_lines(const fs::path& path, std::string& header) {
-  std::ifstream in(path);
-  if (!in) throw InputError(path.string() + ": missing from the shard output");
-  std::vector<std::string> lines;
-  std::string line;
-  std::getline(in, header);
-  while (std::getline(in, line))
-    if (!line.empty()) lines.push_back(line);
-  return lines;
-}
+ private:
+  void write_pooled(const DensityResult& pooled) {
+    const Table table = pooled_rows(pooled);
+    write_file_safely((dir_ / "pooled.csv").string(), csv_text(table), protect_);
+    Json doc;
+    doc["stipple_version"] = STIPPLE_VERSION;
+    doc["command"] = "batch";
+    doc["crs"] = crs_code_;
+    doc["unit"] = std::string(unit_name(pooled.unit));
+    doc["confidence"] = pooled.confidence;
+    doc["alpha"] = pooled.alpha;
+    doc["seed"] = pooled.seed;
+    doc["simulations"] = pooled.simulations;
+    doc["plots"] = plots_pooled_;
+    doc["plot_ids"] = "file:plot";
+    Json records = Json::array();
+    for (const auto& p : pooled.pooled) records.push_back(report_detail::pooled_record(p));
+    doc["pooled"] = std::move(records);
+    doc["composition"] = report_detail::composition_record(pooled.composition);
+    doc["warnings"] = density_warnings(pooled);
+    doc["cautions"] = density_cautions();
+    write_file_safely((dir_ / "pooled.json").string(), json_text(doc), protect_);
+  }
 
-// A file whose extension names a vector format: an input, never a list of inputs.
-bool is_vector_file(const std::string& path) {
-  std::string ext = fs::path(path).extension().string();
-  for (char& c : ext) c = static_cast<char>(std::tolower(static_cast<unsigned char>(c)));
-  for (const char* known : {".csv", ".gpkg", ".shp", ".dbf", ".geojson", ".json", ".kml", ".gpx", ".gml", ".fgb"})
-    if (ext == known) return true;
-  return false;
-}
+  void write_run(const std::vector<std::string>& season_warnings) {
+    const SeasonRun& run = summary_.report.run;
+    Json doc;
+    doc["stipple_version"] = STIPPLE_VERSION;
+    doc["options"] = run.options_text;
+    doc["analyses"] = Json::array();
+    if (run.density) doc["analyses"].push_back("density");
+    if (run.randomness) doc["analyses"].push_back("randomness");
+    if (run.transect) doc["analyses"].push_back("transect");
+    doc["seed"] = run.seed;
+    doc["simulations"] = run.simulations;
+    doc["unit"] = run.unit;
+    doc["transect_unit"] = run.transect_unit;
+    doc["confidence"] = run.confidence;
+    doc["crs"] = crs_code_.empty() ? Json(nullptr) : Json(crs_code_);
+    doc["crs_name"] = crs_name_.empty() ? Json(nullptr) : Json(crs_name_);
+    doc["methods"] = {{"quadrats", run.quadrats},
+                      {"edge_correction", run.edge_correction.empty() ? Json(nullptr) : Json(run.edge_correction)},
+                      {"pair_correction", run.pair_correction},
+                      {"distance_correction", run.distance_correction},
+                      {"rmax", run.rmax_m ? Json(*run.rmax_m) : Json(nullptr)},
+                      {"detection", run.detection},
+                      {"transect_models", run.transect_models},
+                      {"truncation", run.truncation},
+                      {"bootstrap", run.bootstrap}};
+    // The detection probabilities pooling used, so `stipple merge` pools shards alike.
+    Json detection = Json::array();
+    for (const auto& species : season_counts_.species) {
+      const Detection d = options_.density.detection.for_species(species);
+      detection.push_back({{"species", species}, {"p", d.probability}, {"se", d.standard_error}});
+    }
+    doc["detection_table"] = std::move(detection);
+    doc["inputs"] = inputs_;
+    Json warnings = Json::array();
+    for (const auto& in : summary_.report.inputs)
+      for (const auto& w : in.warnings) warnings.push_back(in.name + ": " + w);
+    for (const auto& w : season_warnings) warnings.push_back(w);
+    doc["warnings"] = std::move(warnings);
+    Json cautions = Json::array();
+    if (run.density) for (const auto& c : density_cautions()) cautions.push_back(c);
+    if (run.randomness) for (const auto& c : randomness_cautions()) cautions.push_back(c);
+    if (run.transect) for (const auto& c : transect_cautions()) cautions.push_back(c);
+    doc["cautions"] = std::move(cautions);
+    write_file_safely((dir_ / "run.json").string(), json_text(doc), protect_);
+  }
+
+  fs::path dir_;
+  const BatchOptions& options_;
+  std::vector<std::string> protect_;
+  std::unique_ptr<TableFiles> density_, randomness_, interactions_, transect_;
+  std::unique_ptr<StreamedFile> failures_, figures_;
+  std::unique_ptr<PlotResultsWriter> gis_;
+  std::string crs_code_, crs_name_, crs_wkt_;
+  PlotCounts season_counts_;
+  std::size_t plots_pooled_ = 0;
+  Json inputs_ = Json::array();
+  BatchSummary summary_;
+};
 
 }  // namespace
 
-std::vector<BatchInput> discover_inputs(const std::string& root, const std::string& pattern,
-                                        const std::string& plots_template) {
-  std::error_code ec;
-  if (!fs::exists(root, ec)) throw InputError(root + ": no such file or folder");
-  std::vector<BatchInput> inputs;
-  const auto plots_for = [&](const fs::path& file, const std::string& capture) {
-    if (plots_template.empty()) return file.string();
-    std::string name = plots_template;
-    const auto at = name.find("{*}");
-    if (at != std::string::npos) name.replace(at, 3, capture);
-    return (file.parent_path() / name).string();
-  };
-  if (fs::is_directory(root, ec)) {
-    for (auto it = fs::recursive_directory_iterator(root, ec); it != fs::recursive_directory_iterator(); ++it) {
-      if (!it->is_regular_file(ec)) continue;
-      std::string capture;
-      const std::string file_name = it->path().filename().string();
-      if (!glob_match(pattern, file_name, &capture)) continue;
-      inputs.push_back({it->path().string(), fs::relative(it->path(), root, ec).generic_string(),
-                        plots_for(it->path(), capture)});
-    }
-  } else if (is_vector_file(root)) {
-    // One survey file given directly: a batch of one.
-    const fs::path path(root);
-    inputs.push_back({path.string(), path.filename().string(), plots_for(path, path.stem().string())});
-  } else {
-    std::ifstream list(root);
-    std::string line;
-    const fs::path base = fs::path(root).parent_path();
-    while (std::getline(list, line)) {
-      const auto first = line.find_first_not_of(" \t\r");
-      if (first == std::string::npos || line[first] == '#') continue;
-      const auto last = line.find_last_not_of(" \t\r");
-      const std::string entry = line.substr(first, last - first + 1);
-      const fs::path path = fs::path(entry).is_absolute() ? fs::path(entry) : base / entry;
-      std::string capture;
-      glob_match(pattern, path.filename().string(), &capture);
-      inputs.push_back({path.string(), entry, plots_for(path, capture)});
-    }
+const char* input_kind_name(InputKind kind) {
+  switch (kind) {
+    case InputKind::plots: return "plots";
+    case InputKind::transects: return "transects";
+    case InputKind::unknown: break;
   }
-  if (inputs.empty()) throw InputError(root + ": no input matches '" + pattern + "'");
-  std::sort(inputs.begin(), inputs.end(), [](const BatchInput& a, const BatchInput& b) { return a.name < b.name; });
-  return inputs;
+  return "unknown";
 }
 
-std::vector<BatchInput> shard(const std::vector<BatchInput>& inputs, std::size_t k, std::size_t n) {
-  std::vector<BatchInput> out;
-  for (std::size_t i = 0; i < inputs.size(); ++i)
-    if (i % n == k - 1) out.push_back(inputs[i]);
-  return out;
-}
-
-std::pair<std::size_t, std::size_t> parse_shard(const std::string& text) {
-  const auto slash = text.find('/');
-  try {
-    if (slash == std::string::npos) throw std::invalid_argument(text);
-    const auto whole = [](std::string_view digits) {
-      const auto value = parse_whole_number(digits);
-      if (!value) throw std::invalid_argument(std::string(digits));
-      return static_cast<std::size_t>(*value);
-    };
-    const std::size_t k = whole(std::string_view(text).substr(0, slash));
-    const std::size_t n = whole(std::string_view(text).substr(slash + 1));
-    if (k < 1 || n < 1 || k > n) throw std::invalid_argument(text);
-    return {k, n};
-  } catch (const std::exception&) {
-    throw InputError("--shard must be K/N with 1 <= K <= N (got '" + text + "')");
+BatchSummary run_batch(const std::vector<BatchInput>& inputs, const BatchOptions& options, const std::string& out_dir,
+                       const std::vector<std::string>& protected_paths, const BatchProgress& progress) {
+  SeasonWriter writer(out_dir, options, protected_paths);
+  // The batch CRS: the reference input's analysis CRS (the first of all inputs), so every
+  // shard of a run agrees; else the first file that loads.
+  if (options.crs_reference) {
+    const FileResults reference = analyse_file(*options.crs_reference, [&] {
+      BatchOptions probe = options;
+      probe.run_randomness = false;
+      probe.figures = probe.gis = probe.surfaces = false;
+      return probe;
+    }());
+    if (!reference.crs_wkt.empty())
+      writer.set_batch_crs(reference.input.crs, reference.survey ? reference.survey->crs.name : reference.input.crs,
+                           reference.crs_wkt);
   }
-}
-
-std::vector<BatchFileResult> run_batch(const std::vector<BatchInput>& inputs, const BatchOptions& options,
-                                       const BatchProgress& progress) {
-  std::vector<BatchFileResult> results(inputs.size());
+  // Results are handed to the writer strictly in input order: a file that finishes early
+  // waits in `pending` for those before it, so outputs never depend on thread timing.
   std::mutex mutex;
-  std::size_t done = 0;
+  std::map<std::size_t, FileResults> pending;
+  std::size_t next = 0;
+  std::exception_ptr write_error;
   parallel_for(inputs.size(), options.threads, [&](std::size_t i) {
-    BatchFileResult r;
-    // Any failure of one input, of any type, is recorded; the other inputs go on.
-    const auto failed = [&](const std::string& reason) {
-      r = BatchFileResult{};
-      r.input = inputs[i];
-      r.ok = false;
-      r.failure = reason;
-    };
-    try {
-      r = run_one(inputs[i], options);
-    } catch (const Error& e) {
-      failed(e.what());
-    } catch (const std::exception& e) {
-      failed(std::string("internal error: ") + e.what());
-    } catch (...) {
-      failed("internal error of unknown type");
-    }
-    results[i] = std::move(r);
+    FileResults r = analyse_file(inputs[i], options);
     const std::lock_guard<std::mutex> lock(mutex);
-    ++done;
-    if (progress) progress(done, inputs.size(), results[i]);
+    pending.emplace(i, std::move(r));
+    while (!write_error && !pending.empty() && pending.begin()->first == next) {
+      FileResults ready = std::move(pending.begin()->second);
+      pending.erase(pending.begin());
+      try {
+        writer.consume(ready);
+      } catch (...) {
+        write_error = std::current_exception();  // an output problem stops the batch
+        return;
+      }
+      ++next;
+      if (progress) progress(next, inputs.size(), ready.input);
+    }
   });
-  return results;
-}
-
-std::string density_table_header() {
-  return "file,plot,species,count,area,intensity,ci_low,ci_high,detection_probability,corrected_intensity,"
-         "corrected_ci_low,corrected_ci_high,unit";
-}
-
-std::string transect_table_header() {
-  return "file,species,stratum,model,n,effort,esw,effective_area,detection_probability,encounter_rate,density,"
-         "density_cv,density_ci_low,density_ci_high,abundance,unit";
-}
-
-std::string randomness_table_header() {
-  return "file,plot,species,n,quadrat_p,clark_evans_ratio,clark_evans_p,mad_p,dclf_p,verdict";
-}
-
-void write_batch_outputs(const std::string& out_dir, const std::vector<BatchFileResult>& results,
-                         const BatchOptions& options, const std::string& options_text,
-                         const std::vector<std::string>& protected_paths) {
-  make_folder(out_dir);
-  std::vector<std::string> density_rows, density_records, randomness_rows, randomness_records, failures;
-  std::vector<std::string> transect_rows, transect_records;
-  Json inputs = Json::array();
-  for (const auto& r : results) {
-    density_rows.insert(density_rows.end(), r.density_rows.begin(), r.density_rows.end());
-    density_records.insert(density_records.end(), r.density_records.begin(), r.density_records.end());
-    randomness_rows.insert(randomness_rows.end(), r.randomness_rows.begin(), r.randomness_rows.end());
-    randomness_records.insert(randomness_records.end(), r.randomness_records.begin(), r.randomness_records.end());
-    transect_rows.insert(transect_rows.end(), r.transect_rows.begin(), r.transect_rows.end());
-    transect_records.insert(transect_records.end(), r.transect_records.begin(), r.transect_records.end());
-    if (!r.ok) failures.push_back(csv_field(r.input.name) + "," + csv_field(r.failure));
-    Json in;
-    in["name"] = r.input.name;
-    std::error_code ec;
-    in["path"] = fs::absolute(r.input.path, ec).lexically_normal().string();
-    in["plots_path"] = fs::absolute(r.input.plots_path, ec).lexically_normal().string();
-    in["sha256"] = r.sha256 ? Json(*r.sha256) : Json(nullptr);
-    in["plots"] = r.input.plots_path == r.input.path ? Json(nullptr) : Json(fs::path(r.input.plots_path).filename().string());
-    in["plots_sha256"] = r.plots_sha256 ? Json(*r.plots_sha256) : Json(nullptr);
-    in["crs"] = r.ok ? Json(r.crs) : Json(nullptr);
-    in["status"] = r.ok ? "ok" : "failed";
-    in["warnings"] = r.warnings;
-    inputs.push_back(std::move(in));
-    for (const auto& [path, svg] : r.figures) {
-      const fs::path target = fs::path(out_dir) / path;
-      make_folder(target.parent_path().string());
-      write_file_safely(target.string(), svg, protected_paths);
-    }
-  }
-  if (options.gis) {
-    std::vector<PlotResultFeature> features;
-    std::string wkt;
-    for (const auto& r : results) {
-      features.insert(features.end(), r.gis_features.begin(), r.gis_features.end());
-      if (wkt.empty() && r.ok) wkt = r.survey.crs.wkt;
-    }
-    if (!wkt.empty()) write_plot_results((fs::path(out_dir) / "plot-results.gpkg").string(), wkt, features, protected_paths);
-  }
-  if (options.surfaces) {
-    for (const auto& r : results) {
-      for (const auto& [path, raster] : r.surfaces) {
-        const fs::path target = fs::path(out_dir) / path;
-        make_folder(target.parent_path().string());
-        write_geotiff(target.string(), raster, r.survey.crs.wkt,
-                      "intensity per " + std::string(unit_name(options.density.unit)) + ", Gaussian kernel, Scott bandwidth per plot, local edge correction (Jones 1993)",
-                      protected_paths);
-      }
-    }
-  }
-  if (options.run_density) {
-    write_lines((fs::path(out_dir) / "density.csv").string(), density_table_header(), density_rows, protected_paths);
-    write_records((fs::path(out_dir) / "density.json").string(), density_records, protected_paths);
-  }
-  if (options.run_randomness) {
-    write_lines((fs::path(out_dir) / "randomness.csv").string(), randomness_table_header(), randomness_rows, protected_paths);
-    write_records((fs::path(out_dir) / "randomness.json").string(), randomness_records, protected_paths);
-  }
-  if (options.run_transect) {
-    write_lines((fs::path(out_dir) / "transect.csv").string(), transect_table_header(), transect_rows, protected_paths);
-    write_records((fs::path(out_dir) / "transect.json").string(), transect_records, protected_paths);
-  }
-  write_lines((fs::path(out_dir) / "failures.csv").string(), "file,reason", failures, protected_paths);
-  Json run;
-  run["stipple_version"] = STIPPLE_VERSION;
-  run["options"] = options_text;
-  run["analyses"] = Json::array();
-  if (options.run_density) run["analyses"].push_back("density");
-  if (options.run_randomness) run["analyses"].push_back("randomness");
-  if (options.run_transect) run["analyses"].push_back("transect");
-  run["seed"] = options.randomness.seed;
-  run["simulations"] = options.randomness.simulations;
-  run["unit"] = std::string(unit_name(options.density.unit));
-  run["confidence"] = options.density.confidence;
-  run["inputs"] = std::move(inputs);
-  write_file_safely((fs::path(out_dir) / "run.json").string(), json_text(run), protected_paths);
-}
-
-void merge_batch_outputs(const std::vector<std::string>& shard_dirs, const std::string& out_dir) {
-  if (shard_dirs.empty()) throw InputError("merge needs at least one shard output folder");
-  make_folder(out_dir);
-  std::vector<std::string> protect = shard_dirs;
-  // Tables: rows of all shards, stably ordered by input name (the first column).
-  for (const char* table : {"density.csv", "randomness.csv", "transect.csv", "failures.csv"}) {
-    std::string header;
-    std::vector<std::string> rows;
-    bool present = false;
-    for (const auto& dir : shard_dirs) {
-      const fs::path path = fs::path(dir) / table;
-      std::error_code ec;
-      if (!fs::exists(path, ec)) continue;
-      present = true;
-      std::string h;
-      auto lines = read_lines(path, h);
-      if (!header.empty() && h != header) throw InputError(path.string() + ": header differs from the other shards'");
-      header = h;
-      rows.insert(rows.end(), lines.begin(), lines.end());
-    }
-    if (!present) continue;
-    std::stable_sort(rows.begin(), rows.end(), [](const std::string& a, const std::string& b) {
-      return first_csv_field(a) < first_csv_field(b);
-    });
-    write_lines((fs::path(out_dir) / table).string(), header, rows, protect);
-  }
-  for (const char* twin : {"density.json", "randomness.json", "transect.json"}) {
-    std::vector<Json> records;
-    bool present = false;
-    for (const auto& dir : shard_dirs) {
-      const fs::path path = fs::path(dir) / twin;
-      std::error_code ec;
-      if (!fs::exists(path, ec)) continue;
-      present = true;
-      std::ifstream in(path);
-      const Json array = Json::parse(in);
-      for (const auto& r : array) records.push_back(r);
-    }
-    if (!present) continue;
-    std::stable_sort(records.begin(), records.end(), [](const Json& a, const Json& b) {
-      return a["file"].get<std::string>() < b["file"].get<std::string>();
-    });
-    Json array = Json::array();
-    for (auto& r : records) array.push_back(std::move(r));
-    write_file_safely((fs::path(out_dir) / twin).string(), json_text(array), protect);
-  }
-  // Manifest: the inputs of every shard, ordered by name; options from the first shard.
-  Json run;
-  std::vector<Json> inputs;
-  for (const auto& dir : shard_dirs) {
-    std::ifstream in(fs::path(dir) / "run.json");
-    if (!in) throw InputError((fs::path(dir) / "run.json").string() + ": missing; is this a batch output folder?");
-    const Json shard_run = Json::parse(in);
-    if (run.is_null()) run = shard_run;
-    for (const auto& i : shard_run["inputs"]) inputs.push_back(i);
-  }
-  std::stable_sort(inputs.begin(), inputs.end(), [](const Json& a, const Json& b) {
-    return a["name"].get<std::string>() < b["name"].get<std::string>();
-  });
-  run["inputs"] = Json::array();
-  for (auto& i : inputs) run["inputs"].push_back(std::move(i));
-  write_file_safely((fs::path(out_dir) / "run.json").string(), json_text(run), protect);
-  // GIS layer: every shard's features, ordered by file.
-  std::vector<std::string> gpkgs;
-  for (const auto& dir : shard_dirs) {
-    std::error_code ec;
-    if (fs::exists(fs::path(dir) / "plot-results.gpkg", ec)) gpkgs.push_back((fs::path(dir) / "plot-results.gpkg").string());
-  }
-  if (!gpkgs.empty()) merge_plot_results(gpkgs, (fs::path(out_dir) / "plot-results.gpkg").string(), protect);
-  // Figures, maps and surfaces: every shard's files, copied.
-  for (const auto& dir : shard_dirs) {
-    for (const char* sub : {"figures", "maps", "surfaces"}) {
-      const fs::path from = fs::path(dir) / sub;
-      std::error_code ec;
-      if (!fs::is_directory(from, ec)) continue;
-      for (auto it = fs::recursive_directory_iterator(from, ec); it != fs::recursive_directory_iterator(); ++it) {
-        if (!it->is_regular_file(ec)) continue;
-        const fs::path target = fs::path(out_dir) / sub / fs::relative(it->path(), from, ec);
-        make_folder(target.parent_path().string());
-        std::ifstream in(it->path(), std::ios::binary);
-        std::stringstream content;
-        content << in.rdbuf();
-        write_file_safely(target.string(), content.str(), protect);
-      }
-    }
-  }
-}
-
-std::vector<std::string> files_a_report_must_not_replace(const std::string& dir) {
-  std::vector<std::string> files;
-  std::error_code ec;
-  for (auto it = fs::recursive_directory_iterator(dir, ec); !ec && it != fs::recursive_directory_iterator();
-       it.increment(ec)) {
-    if (it->path().filename() == "report.html" && it->path().parent_path() == fs::path(dir)) continue;
-    if (it->is_regular_file(ec)) files.push_back(it->path().string());
-  }
-  std::ifstream in(fs::path(dir) / "run.json");
-  if (in) {
-    const Json run = Json::parse(in, nullptr, false);
-    if (!run.is_discarded() && run.contains("inputs")) {
-      for (const auto& input : run["inputs"]) {
-        for (const char* key : {"path", "plots_path"})
-          if (input.contains(key) && input[key].is_string()) files.push_back(input[key].get<std::string>());
-      }
-    }
-  }
-  return files;
+  if (write_error) std::rethrow_exception(write_error);
+  return writer.finish();
 }
 
 }  // namespace stipple

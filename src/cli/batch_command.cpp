@@ -4,6 +4,7 @@
 #include <algorithm>
 #include <chrono>
 #include <filesystem>
+#include <fstream>
 #include <iostream>
 #include <memory>
 #include <sstream>
@@ -18,7 +19,8 @@
 #include "stipple/format.hpp"
 #include "stipple/io/output.hpp"
 #include "stipple/randomness/quadrat.hpp"
-#include "stipple/report/batch_report.hpp"
+#include "stipple/report/season_report.hpp"
+#include "stipple/transect/detection_function.hpp"
 
 namespace stipple::cli {
 
@@ -29,6 +31,7 @@ struct BatchCommandOptions {
   std::string out;
   std::string pattern = "*.gpkg";
   std::string plots_name;
+  std::string plots;  // one plots layer for every input
   std::vector<std::string> analyses{"density", "randomness"};
   std::string shard_text;
   unsigned threads = 0;
@@ -56,7 +59,7 @@ struct BatchCommandOptions {
 // Refuses a key the run file format does not have, naming the nearest valid one: a typing
 // error must not silently leave an option at its default.
 void check_run_file_keys(const toml::table& file, const std::string& path) {
-  static const std::vector<std::string> top{"analyses", "pattern", "plots_name", "species_field", "plot_field",
+  static const std::vector<std::string> top{"analyses", "pattern", "plots_name", "plots", "species_field", "plot_field",
                                             "sightings_plot_field", "assign", "encoding", "unit", "crs",
                                             "assume_crs", "confidence", "gis", "surface", "density", "randomness"};
   static const std::vector<std::string> density{"detection", "detection_prob", "detection_se"};
@@ -131,6 +134,9 @@ void apply_run_file(BatchCommandOptions& o, CLI::App& command) {
   }
   text(file["pattern"], o.pattern, "--pattern");
   text(file["plots_name"], o.plots_name, "--plots-name");
+  text(file["plots"], o.plots, "--plots");
+  if (file["plots"] && !given("--plots") && !o.plots.empty() && std::filesystem::path(o.plots).is_relative())
+    o.plots = (std::filesystem::path(o.run_file).parent_path() / o.plots).string();
   text(file["species_field"], o.common.species_field, "--species-field");
   text(file["plot_field"], o.common.plot_field, "--plot-field");
   text(file["sightings_plot_field"], o.common.sightings_plot_field, "--sightings-plot-field");
@@ -156,6 +162,19 @@ void apply_run_file(BatchCommandOptions& o, CLI::App& command) {
   if (auto gis = file["gis"]; gis && !given("--gis")) o.gis = gis.value_or(false);
   if (auto surfaces = file["surface"]; surfaces && !given("--surface")) o.surfaces = surfaces.value_or(false);
   real(file["randomness"]["rmax"], o.rmax, "--rmax");
+}
+
+// A figure the batch wrote, by its path inside the output folder; a path leaving the folder
+// (a damaged figures.csv) is refused.
+std::string read_output_file(const std::string& dir, const std::string& relative) {
+  const std::filesystem::path path = std::filesystem::path(relative).lexically_normal();
+  if (path.is_absolute() || (!path.empty() && *path.begin() == ".."))
+    throw InputError(dir + "/figures.csv: figure path '" + relative + "' leaves the folder");
+  std::ifstream in(std::filesystem::path(dir) / path, std::ios::binary);
+  if (!in) throw InputError((std::filesystem::path(dir) / path).string() + ": listed in figures.csv but cannot be read");
+  std::stringstream text;
+  text << in.rdbuf();
+  return text.str();
 }
 
 std::string clock_text(double seconds) {
@@ -209,13 +228,20 @@ int run_batch_command(BatchCommandOptions& o, CLI::App& command) {
   if (o.pixel > 0.0) options.pixel_m = o.pixel;
   if (o.bandwidth > 0.0) options.bandwidth_m = o.bandwidth;
 
+  if (!o.plots.empty()) {
+    if (!o.plots_name.empty()) throw InputError("--plots and --plots-name both name the plots; give one");
+    options.shared_plots = SourceSpec{o.plots, o.common.plots_layer.empty() ? std::nullopt : std::optional<std::string>(o.common.plots_layer)};
+  }
   std::vector<BatchInput> inputs = discover_inputs(o.common.sightings, o.pattern, o.plots_name);
   const std::size_t all_inputs = inputs.size();
+  options.crs_reference = inputs.front();
   if (!o.shard_text.empty()) {
     const auto [k, n] = parse_shard(o.shard_text);
     inputs = shard(inputs, k, n);
   }
   std::vector<std::string> protect{o.common.sightings};
+  if (!o.plots.empty()) protect.push_back(o.plots);
+  if (!o.detection_file.empty()) protect.push_back(o.detection_file);
   for (const auto& in : inputs) {
     protect.push_back(in.path);
     protect.push_back(in.plots_path);
@@ -234,7 +260,7 @@ int run_batch_command(BatchCommandOptions& o, CLI::App& command) {
 
   const bool terminal = ::isatty(STDERR_FILENO) != 0;
   const auto start = std::chrono::steady_clock::now();
-  const auto progress = [&](std::size_t done, std::size_t total, const BatchFileResult& r) {
+  const auto progress = [&](std::size_t done, std::size_t total, const SeasonInput& r) {
     if (o.quiet) return;
     const double elapsed = std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
     const double eta = done > 0 ? elapsed / static_cast<double>(done) * static_cast<double>(total - done) : 0.0;
@@ -245,14 +271,14 @@ int run_batch_command(BatchCommandOptions& o, CLI::App& command) {
                 << total << " files, ETA " << clock_text(eta) << "   " << std::flush;
       if (done == total) std::cerr << "\n";
     } else {
-      std::cerr << "stipple batch: " << done << "/" << total << " " << r.input.name << " "
-                << (r.ok ? "ok" : "FAILED") << " (" << format_fixed(elapsed, 1) << " s)\n";
+      std::cerr << "stipple batch: " << done << "/" << total << " " << r.name << " "
+                << (r.status == "ok" ? "ok" : r.status == "skipped" ? "skipped" : "FAILED") << " ("
+                << format_fixed(elapsed, 1) << " s)\n";
     }
   };
   if (!o.quiet)
     std::cerr << "stipple batch: " << inputs.size() << " of " << all_inputs << " input(s)"
               << (o.shard_text.empty() ? "" : " (shard " + o.shard_text + ")") << "\n";
-  const std::vector<BatchFileResult> results = run_batch(inputs, options, progress);
   std::string used = "analyses=";
   for (const auto& a : o.analyses) used += a + ",";
   used += " unit=" + o.common.unit + " confidence=" + format_general(o.common.confidence) +
@@ -261,21 +287,51 @@ int run_batch_command(BatchCommandOptions& o, CLI::App& command) {
           (o.rmax > 0.0 ? " rmax=" + format_general(o.rmax) : "") +
           (o.detection_file.empty() ? "" : " detection=" + std::filesystem::path(o.detection_file).filename().string()) +
           " pattern=" + o.pattern + (o.plots_name.empty() ? "" : " plots-name=" + o.plots_name) +
+          (o.plots.empty() ? "" : " plots=" + std::filesystem::path(o.plots).filename().string()) +
           (o.run_file.empty() ? "" : " run-file=" + std::filesystem::path(o.run_file).filename().string());
-  write_batch_outputs(o.out, results, options, used, protect);
-  if (o.report)
-    write_file_safely((out / "report.html").string(), batch_report_html(o.out), protect);
+  SeasonRun& run = options.run;
+  run.version = STIPPLE_VERSION;
+  run.options_text = used;
+  run.density = options.run_density;
+  run.randomness = options.run_randomness;
+  run.transect = options.run_transect;
+  run.seed = o.seed;
+  run.simulations = o.simulations;
+  run.unit = o.common.unit;
+  run.transect_unit = std::string(unit_name(options.transect.unit));
+  run.confidence = o.common.confidence;
+  run.quadrats = o.quadrats;
+  run.edge_correction = o.edge_correction;
+  run.rmax_m = options.randomness.rmax_m;
+  run.detection = o.detection_file.empty()
+                      ? (single ? "one detection probability p = " + format_general(single->probability) +
+                                      " (se " + format_general(single->standard_error) + ") for every species; intensity divided by p"
+                                : std::string("none (p = 1 for every species)"))
+                      : "per-species probabilities from " + std::filesystem::path(o.detection_file).filename().string() +
+                            "; intensity divided by p";
+  std::string models;
+  for (const auto k : options.transect.keys) models += (models.empty() ? "" : ", ") + std::string(key_function_name(k));
+  for (const auto a : options.transect.adjustments)
+    models += " with up to " + std::to_string(options.transect.max_terms) + " " + std::string(adjustment_name(a)) + " terms";
+  run.transect_models = models;
+  run.truncation = o.truncate.empty() ? "at the largest distance" : o.truncate;
+  const BatchSummary summary = run_batch(inputs, options, o.out, protect, progress);
+  if (o.report) {
+    const std::string out_dir = o.out;
+    write_file_safely((out / "report.html").string(),
+                      season_report_html(summary.report, [&](const std::string& path) { return read_output_file(out_dir, path); }),
+                      protect);
+  }
 
-  std::size_t failed = 0;
-  for (const auto& r : results) {
-    if (r.ok) continue;
-    ++failed;
-    std::cerr << "failed: " << r.input.name << ": " << r.failure << "\n";
+  for (const auto& r : summary.report.inputs) {
+    if (r.status == "ok") continue;
+    std::cerr << r.status << ": " << r.name << ": " << r.reason << "\n";
   }
   if (!o.quiet)
-    std::cerr << "stipple batch: " << results.size() - failed << " ok, " << failed << " failed; tables in " << o.out
+    std::cerr << "stipple batch: " << summary.report.inputs.size() - summary.failed - summary.skipped << " ok, "
+              << summary.skipped << " skipped, " << summary.failed << " failed; tables in " << o.out
               << (o.report ? ", report " + (out / "report.html").string() : std::string()) << "\n";
-  return failed > 0 ? static_cast<int>(ExitCode::some_inputs_failed) : 0;
+  return summary.failed > 0 ? static_cast<int>(ExitCode::some_inputs_failed) : 0;
 }
 
 }  // namespace
@@ -288,6 +344,9 @@ Action add_batch_command(CLI::App& app) {
       ->required();
   c->add_option("--out", o->out, "Output folder")->required();
   c->add_option("--pattern", o->pattern, "File-name pattern of the inputs (* and ?)")->capture_default_str();
+  c->add_option("--plots", o->plots,
+                "One plots layer for every input (a folder of sighting files over one plots file); sightings are "
+                "assigned by their plot attribute or by location (--assign)");
   c->add_option("--plots-name", o->plots_name,
                 "Plots file beside each input, {*} = what the pattern's * matched (default: the input itself)");
   c->add_option("--analyses", o->analyses, "density, randomness, transect (inputs holding transect lines)")
@@ -364,12 +423,17 @@ Action add_report_command(CLI::App& app) {
   auto dir = std::make_shared<std::string>();
   auto output = std::make_shared<std::string>();
   CLI::App* c = app.add_subcommand("report", "Write the self-contained HTML report of a batch output folder");
-  c->add_option("OUT", *dir, "A folder written by `stipple batch` or `stipple merge`")->required();
-  c->add_option("--output", *output, "HTML file (default OUT/report.html)");
+  c->add_option("FOLDER", *dir, "A folder written by `stipple batch` or `stipple merge`")->required();
+  c->add_option("--out", *output, "HTML file (default FOLDER/report.html)");
   return [c, dir, output] {
     if (!c->parsed()) return -1;
     const std::string target = output->empty() ? (std::filesystem::path(*dir) / "report.html").string() : *output;
-    write_file_safely(target, batch_report_html(*dir), files_a_report_must_not_replace(*dir));
+    const std::vector<std::string> protect = files_a_report_must_not_replace(*dir);
+    check_outputs({{"--out", target}}, protect);
+    const SeasonReport report = load_batch_folder(*dir);
+    const std::string folder = *dir;
+    write_file_safely(target, season_report_html(report, [&](const std::string& path) { return read_output_file(folder, path); }),
+                      protect);
     std::cout << "report written to " << target << "\n";
     return 0;
   };

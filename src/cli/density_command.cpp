@@ -22,7 +22,7 @@ struct DensityCommandOptions {
   CLI::Option* prob_option = nullptr;
   CLI::Option* se_option = nullptr;
   std::uint64_t seed = default_seed;
-  std::size_t simulations = 9999;
+  std::size_t simulations = 999;
 };
 
 int run_density(const DensityCommandOptions& o) {

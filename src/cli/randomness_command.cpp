@@ -68,7 +68,7 @@ int run_randomness(const RandomnessCommandOptions& o) {
   const bool stdout_taken = o.common.json == "-" || o.common.csv == "-" || o.curves == "-";
   if (!o.common.json.empty()) write_output(o.common.json, randomness_json(survey, result), inputs);
   if (!o.curves.empty()) write_output(o.curves, randomness_curves_csv(result), inputs);
-  if (!o.common.csv.empty()) write_output(o.common.csv, randomness_curves_csv(result), inputs);
+  if (!o.common.csv.empty()) write_output(o.common.csv, randomness_csv(result), inputs);
   if (!o.figures.empty()) write_folder(o.figures, randomness_figures(result), inputs);
   if (!stdout_taken) {
     std::cout << randomness_table(survey, result);

@@ -1,6 +1,7 @@
 #include "stipple/intensity/density.hpp"
 
 #include <algorithm>
+#include <iterator>
 #include <cmath>
 #include <limits>
 #include <numeric>
@@ -100,7 +101,57 @@ void correct_between_plot(HomogeneityTest& test, const std::vector<std::vector<s
 
 }  // namespace
 
+PlotCounts PlotCounts::of(const Survey& survey) {
+  PlotCounts out;
+  out.species = survey.species;
+  out.plots.reserve(survey.plots.size());
+  for (std::size_t i = 0; i < survey.plots.size(); ++i) {
+    out.plots.push_back(survey.plots[i].id);
+    out.areas_m2.push_back(survey.plots[i].window.area_m2());
+    std::vector<std::uint64_t> row(survey.species.size(), 0);
+    for (const auto mark : survey.patterns[i].marks) ++row[mark];
+    out.counts.push_back(std::move(row));
+  }
+  return out;
+}
+
+void PlotCounts::append(const PlotCounts& other, const std::string& prefix) {
+  std::vector<std::string> merged;
+  std::set_union(species.begin(), species.end(), other.species.begin(), other.species.end(),
+                 std::back_inserter(merged));
+  const auto index_in = [&](const std::vector<std::string>& names) {
+    std::vector<std::size_t> index;
+    for (const auto& name : names)
+      index.push_back(static_cast<std::size_t>(std::lower_bound(merged.begin(), merged.end(), name) - merged.begin()));
+    return index;
+  };
+  if (merged.size() != species.size()) {
+    const std::vector<std::size_t> mine = index_in(species);
+    for (auto& row : counts) {
+      std::vector<std::uint64_t> wide(merged.size(), 0);
+      for (std::size_t s = 0; s < row.size(); ++s) wide[mine[s]] = row[s];
+      row = std::move(wide);
+    }
+  }
+  const std::vector<std::size_t> theirs = index_in(other.species);
+  for (std::size_t i = 0; i < other.plots.size(); ++i) {
+    const std::string id = prefix + other.plots[i];
+    if (std::find(plots.begin(), plots.end(), id) != plots.end())
+      throw InputError("plot '" + id + "' appears twice in the pooled plots");
+    plots.push_back(id);
+    areas_m2.push_back(other.areas_m2[i]);
+    std::vector<std::uint64_t> row(merged.size(), 0);
+    for (std::size_t s = 0; s < other.species.size(); ++s) row[theirs[s]] = other.counts[i][s];
+    counts.push_back(std::move(row));
+  }
+  species = std::move(merged);
+}
+
 DensityResult estimate_density(const Survey& survey, const DensityOptions& options) {
+  return estimate_density(PlotCounts::of(survey), options);
+}
+
+DensityResult estimate_density(const PlotCounts& table, const DensityOptions& options) {
   check_confidence(options.confidence);
   DensityResult result;
   result.unit = options.unit;
@@ -109,21 +160,17 @@ DensityResult estimate_density(const Survey& survey, const DensityOptions& optio
   result.seed = options.seed;
   result.simulations = options.simulations;
 
-  const std::size_t n_species = survey.species.size();
-  const std::size_t n_plots = survey.plots.size();
+  const std::size_t n_species = table.species.size();
+  const std::size_t n_plots = table.plots.size();
   const double per_unit = square_metres_per(options.unit);
 
   std::vector<Detection> detections;
   detections.reserve(n_species);
-  for (const auto& name : survey.species) detections.push_back(options.detection.for_species(name));
+  for (const auto& name : table.species) detections.push_back(options.detection.for_species(name));
 
-  // counts[plot][species]
-  std::vector<std::vector<std::uint64_t>> counts(n_plots, std::vector<std::uint64_t>(n_species));
+  const std::vector<std::vector<std::uint64_t>>& counts = table.counts;  // [plot][species]
   std::vector<double> areas(n_plots);
-  for (std::size_t i = 0; i < n_plots; ++i) {
-    areas[i] = survey.plots[i].window.area_m2() / per_unit;
-    for (const auto mark : survey.patterns[i].marks) ++counts[i][mark];
-  }
+  for (std::size_t i = 0; i < n_plots; ++i) areas[i] = table.areas_m2[i] / per_unit;
 
   const auto make_estimate = [&](const std::vector<std::uint64_t>& by_species,
                                  const std::vector<Detection>& dets, double area) {
@@ -146,13 +193,15 @@ DensityResult estimate_density(const Survey& survey, const DensityOptions& optio
   for (std::size_t i = 0; i < n_plots; ++i) {
     for (std::size_t s = 0; s < n_species; ++s) {
       DensityEstimate e = make_estimate({counts[i][s]}, {detections[s]}, areas[i]);
-      e.plot = survey.plots[i].id;
-      e.species = survey.species[s];
+      e.area_m2 = table.areas_m2[i];
+      e.plot = table.plots[i];
+      e.species = table.species[s];
       result.estimates.push_back(std::move(e));
     }
     // All species together, also for a plot (or a survey) with no sightings at all.
     DensityEstimate e = make_estimate(counts[i], detections, areas[i]);
-    e.plot = survey.plots[i].id;
+    e.area_m2 = table.areas_m2[i];
+    e.plot = table.plots[i];
     result.estimates.push_back(std::move(e));
   }
 
@@ -176,7 +225,7 @@ DensityResult estimate_density(const Survey& survey, const DensityOptions& optio
       used_detections.push_back(detections[s]);
     }
     const DensityEstimate e = make_estimate(used_counts, used_detections, total_area);
-    if (species) pooled.species = survey.species[*species];
+    if (species) pooled.species = table.species[*species];
     pooled.plots = n_plots;
     pooled.count = e.count;
     pooled.area = e.area;

@@ -2,7 +2,9 @@
 
 #include <algorithm>
 #include <filesystem>
+#include <iterator>
 #include <map>
+#include <memory>
 
 #include <cpl_conv.h>
 
@@ -43,10 +45,14 @@ struct Field {
   OGRFieldType type;
 };
 const Field fields[] = {{"file", OFTString},          {"plot", OFTString},         {"species", OFTString},
-                        {"count", OFTInteger64},      {"area", OFTReal},           {"intensity", OFTReal},
-                        {"ci_low", OFTReal},          {"ci_high", OFTReal},        {"corrected_intensity", OFTReal},
+                        {"count", OFTInteger64},      {"area", OFTReal},           {"unit", OFTString},
+                        {"intensity", OFTReal},       {"ci_low", OFTReal},         {"ci_high", OFTReal},
+                        {"detection_probability", OFTReal},                        {"corrected_intensity", OFTReal},
+                        {"corrected_ci_low", OFTReal}, {"corrected_ci_high", OFTReal},
                         {"quadrat_p", OFTReal},       {"clark_evans_ratio", OFTReal}, {"clark_evans_p", OFTReal},
                         {"dclf_p", OFTReal},          {"verdict", OFTString}};
+const Field wide_fields[] = {{"file", OFTString}, {"plot", OFTString}, {"area", OFTReal}, {"unit", OFTString},
+                             {"all_species", OFTReal}};
 
 class FixedDate {
  public:
@@ -57,90 +63,197 @@ class FixedDate {
   FixedDate& operator=(const FixedDate&) = delete;
 };
 
-void write_features(const std::string& path, const std::string& crs_wkt,
-                    const std::vector<std::unique_ptr<OGRFeature>>* copies,
-                    const std::vector<PlotResultFeature>* features, const std::vector<std::string>& protect) {
-  TemporaryOutput output(checked_output_path(path, protect), true);
-  const std::string& temporary = output.path();
-  const FixedDate fixed;
-  GDALDriver* driver = GetGDALDriverManager()->GetDriverByName("GPKG");
-  if (driver == nullptr) throw Error("GDAL has no GeoPackage driver");
-  DatasetPtr ds(driver->Create(temporary.c_str(), 0, 0, 0, GDT_Unknown, nullptr));
-  if (!ds) throw InputError(path + ": cannot create GeoPackage (" + last_gdal_message() + ")");
-  OGRSpatialReference srs;
-  if (srs.importFromWkt(crs_wkt.c_str()) != OGRERR_NONE) throw Error("invalid CRS for the GeoPackage");
-  OGRLayer* layer = ds->CreateLayer("plot_results", &srs, wkbMultiPolygon, nullptr);
-  if (layer == nullptr) throw InputError(path + ": cannot create layer plot_results (" + last_gdal_message() + ")");
-  for (const auto& f : fields) {
-    OGRFieldDefn defn(f.name, f.type);
-    if (layer->CreateField(&defn) != OGRERR_NONE) throw InputError(path + ": cannot create field " + f.name);
+OGRLayer* create_layer(GDALDataset& ds, const char* name, OGRSpatialReference& srs, const Field* begin,
+                       const Field* end, const std::string& path) {
+  OGRLayer* layer = ds.CreateLayer(name, &srs, wkbMultiPolygon, nullptr);
+  if (layer == nullptr) throw InputError(path + ": cannot create layer " + name + " (" + last_gdal_message() + ")");
+  for (const Field* f = begin; f != end; ++f) {
+    OGRFieldDefn defn(f->name, f->type);
+    if (layer->CreateField(&defn) != OGRERR_NONE) throw InputError(path + ": cannot create field " + f->name);
   }
-  if (layer->StartTransaction() != OGRERR_NONE) throw InputError(path + ": cannot start writing");
-  if (copies) {
-    for (const auto& c : *copies) {
-      OGRFeature out(layer->GetLayerDefn());
-      out.SetFrom(c.get());
-      out.SetFID(OGRNullFID);
-      if (layer->CreateFeature(&out) != OGRERR_NONE) throw InputError(path + ": cannot write a feature");
-    }
-  }
-  if (features) {
-    for (const auto& f : *features) {
-      OGRFeature out(layer->GetLayerDefn());
-      out.SetField("file", f.file.c_str());
-      out.SetField("plot", f.plot.c_str());
-      if (f.species) out.SetField("species", f.species->c_str());
-      out.SetField("count", static_cast<GIntBig>(f.count));
-      out.SetField("area", f.area);
-      out.SetField("intensity", f.intensity);
-      out.SetField("ci_low", f.ci_low);
-      out.SetField("ci_high", f.ci_high);
-      out.SetField("corrected_intensity", f.corrected_intensity);
-      if (f.quadrat_p) out.SetField("quadrat_p", *f.quadrat_p);
-      if (f.clark_evans_ratio) out.SetField("clark_evans_ratio", *f.clark_evans_ratio);
-      if (f.clark_evans_p) out.SetField("clark_evans_p", *f.clark_evans_p);
-      if (f.dclf_p) out.SetField("dclf_p", *f.dclf_p);
-      if (f.verdict) out.SetField("verdict", f.verdict->c_str());
-      OGRMultiPolygon geometry = to_ogr(f.shape);
-      out.SetGeometry(&geometry);
-      if (layer->CreateFeature(&out) != OGRERR_NONE) throw InputError(path + ": cannot write a feature");
-    }
-  }
-  if (layer->CommitTransaction() != OGRERR_NONE) throw InputError(path + ": cannot finish writing (" + last_gdal_message() + ")");
-  close_checked(std::move(ds), path);
-  output.commit();
+  return layer;
+}
+
+std::string wkt_of(const OGRSpatialReference& srs, const std::string& where) {
+  char* text = nullptr;
+  const OGRErr exported = srs.exportToWkt(&text);
+  std::string wkt = text ? text : "";
+  CPLFree(text);
+  if (exported != OGRERR_NONE || wkt.empty()) throw InputError(where + ": a CRS that cannot be written as WKT");
+  return wkt;
 }
 
 }  // namespace
 
+std::string species_column_name(const std::string& species) {
+  std::string name = "d_";
+  for (const char c : species) name += (c == ' ' || c == '-' || c == '.' || c == '/') ? '_' : c;
+  return name;
+}
+
+struct PlotResultsWriter::State {
+  std::string path;
+  TemporaryOutput output;
+  DatasetPtr ds;
+  OGRSpatialReference srs;
+  OGRLayer* long_layer = nullptr;
+  OGRLayer* wide_layer = nullptr;
+  std::vector<std::string> species_columns;  // in the order they were created
+  State(const std::string& p, const std::vector<std::string>& protect)
+      : path(p), output(checked_output_path(p, protect), true) {}
+};
+
+PlotResultsWriter::PlotResultsWriter(const std::string& path, const std::string& crs_wkt,
+                                     const std::vector<std::string>& protect)
+    : state_(std::make_unique<State>(path, protect)) {
+  const FixedDate fixed;
+  GDALDriver* driver = GetGDALDriverManager()->GetDriverByName("GPKG");
+  if (driver == nullptr) throw Error("GDAL has no GeoPackage driver");
+  state_->ds.reset(driver->Create(state_->output.path().c_str(), 0, 0, 0, GDT_Unknown, nullptr));
+  if (!state_->ds) throw InputError(path + ": cannot create GeoPackage (" + last_gdal_message() + ")");
+  if (state_->srs.importFromWkt(crs_wkt.c_str()) != OGRERR_NONE) throw Error("invalid CRS for the GeoPackage");
+  state_->srs.SetAxisMappingStrategy(OAMS_TRADITIONAL_GIS_ORDER);
+  state_->long_layer = create_layer(*state_->ds, "plot_results", state_->srs, std::begin(fields), std::end(fields), path);
+  state_->wide_layer =
+      create_layer(*state_->ds, "plot_species", state_->srs, std::begin(wide_fields), std::end(wide_fields), path);
+}
+
+PlotResultsWriter::~PlotResultsWriter() = default;
+
+void PlotResultsWriter::add(const std::vector<PlotResultFeature>& features, const std::string& source_crs_wkt) {
+  State& st = *state_;
+  if (!st.ds) throw InputError(st.path + ": written after it was committed");
+  const FixedDate fixed;
+  OGRSpatialReference source;
+  if (source.importFromWkt(source_crs_wkt.c_str()) != OGRERR_NONE) throw Error("invalid CRS of GIS features");
+  source.SetAxisMappingStrategy(OAMS_TRADITIONAL_GIS_ORDER);
+  const TransformPtr transform = make_transform(source, st.srs, st.path);
+  // New species get their column in the wide layer before any feature is written.
+  for (const auto& f : features) {
+    if (!f.species) continue;
+    const std::string column = species_column_name(*f.species);
+    if (std::find(st.species_columns.begin(), st.species_columns.end(), column) != st.species_columns.end()) continue;
+    OGRFieldDefn defn(column.c_str(), OFTReal);
+    if (st.wide_layer->CreateField(&defn) != OGRERR_NONE) throw InputError(st.path + ": cannot create field " + column);
+    st.species_columns.push_back(column);
+  }
+  if (st.long_layer->StartTransaction() != OGRERR_NONE) throw InputError(st.path + ": cannot start writing");
+  std::map<std::pair<std::string, std::string>, std::unique_ptr<OGRFeature>> wide;  // (file, plot)
+  std::vector<std::pair<std::string, std::string>> wide_order;
+  for (const auto& f : features) {
+    OGRFeature out(st.long_layer->GetLayerDefn());
+    out.SetField("file", f.file.c_str());
+    out.SetField("plot", f.plot.c_str());
+    if (f.species) out.SetField("species", f.species->c_str());
+    out.SetField("count", static_cast<GIntBig>(f.count));
+    out.SetField("area", f.area);
+    out.SetField("unit", f.unit.c_str());
+    out.SetField("intensity", f.intensity);
+    out.SetField("ci_low", f.ci_low);
+    out.SetField("ci_high", f.ci_high);
+    out.SetField("detection_probability", f.detection_probability);
+    out.SetField("corrected_intensity", f.corrected_intensity);
+    out.SetField("corrected_ci_low", f.corrected_ci_low);
+    out.SetField("corrected_ci_high", f.corrected_ci_high);
+    if (f.quadrat_p) out.SetField("quadrat_p", *f.quadrat_p);
+    if (f.clark_evans_ratio) out.SetField("clark_evans_ratio", *f.clark_evans_ratio);
+    if (f.clark_evans_p) out.SetField("clark_evans_p", *f.clark_evans_p);
+    if (f.dclf_p) out.SetField("dclf_p", *f.dclf_p);
+    if (f.verdict) out.SetField("verdict", f.verdict->c_str());
+    OGRMultiPolygon geometry = to_ogr(f.shape);
+    if (transform && geometry.transform(transform.get()) != OGRERR_NONE)
+      throw InputError(st.path + ": cannot reproject plot '" + f.plot + "' of " + f.file + " to the batch CRS");
+    out.SetGeometry(&geometry);
+    if (st.long_layer->CreateFeature(&out) != OGRERR_NONE) throw InputError(st.path + ": cannot write a feature");
+    const auto key = std::make_pair(f.file, f.plot);
+    auto& w = wide[key];
+    if (!w) {
+      wide_order.push_back(key);
+      w = std::make_unique<OGRFeature>(st.wide_layer->GetLayerDefn());
+      w->SetField("file", f.file.c_str());
+      w->SetField("plot", f.plot.c_str());
+      w->SetField("area", f.area);
+      w->SetField("unit", f.unit.c_str());
+      w->SetGeometry(&geometry);
+    }
+    w->SetField(f.species ? species_column_name(*f.species).c_str() : "all_species", f.corrected_intensity);
+  }
+  for (const auto& key : wide_order)
+    if (st.wide_layer->CreateFeature(wide[key].get()) != OGRERR_NONE) throw InputError(st.path + ": cannot write a feature");
+  if (st.long_layer->CommitTransaction() != OGRERR_NONE)
+    throw InputError(st.path + ": cannot finish writing (" + last_gdal_message() + ")");
+}
+
+void PlotResultsWriter::commit() {
+  State& st = *state_;
+  if (!st.ds) throw InputError(st.path + ": committed twice");
+  const FixedDate fixed;
+  close_checked(std::move(st.ds), st.path);
+  st.output.commit();
+}
+
 void write_plot_results(const std::string& path, const std::string& crs_wkt,
                         const std::vector<PlotResultFeature>& features, const std::vector<std::string>& protect) {
-  write_features(path, crs_wkt, nullptr, &features, protect);
+  PlotResultsWriter writer(path, crs_wkt, protect);
+  writer.add(features, crs_wkt);
+  writer.commit();
 }
 
 void merge_plot_results(const std::vector<std::string>& inputs, const std::string& path,
                         const std::vector<std::string>& protect) {
-  std::vector<std::unique_ptr<OGRFeature>> copies;
-  std::string wkt;
-  std::vector<DatasetPtr> keep;
+  // Every shard's features, ordered by file (stable), reprojected to the first shard's CRS.
+  std::vector<std::pair<PlotResultFeature, std::string>> all;  // feature, its CRS as WKT
+  std::string target;
   for (const auto& input : inputs) {
     DatasetPtr ds = open_vector(input);
     OGRLayer* layer = ds->GetLayerByName("plot_results");
     if (layer == nullptr) throw InputError(input + ": no layer 'plot_results'");
-    if (wkt.empty() && layer->GetSpatialRef()) {
-      char* text = nullptr;
-      const OGRErr exported = layer->GetSpatialRef()->exportToWkt(&text);
-      wkt = text ? text : "";
-      CPLFree(text);
-      if (exported != OGRERR_NONE || wkt.empty()) throw InputError(input + ": layer 'plot_results' has a CRS that cannot be written as WKT");
-    }
-    scan_layer(*layer, input + ": layer 'plot_results'", false,
-               [&](OGRFeature& f) { copies.emplace_back(f.Clone()); });
+    if (layer->GetSpatialRef() == nullptr) throw InputError(input + ": layer 'plot_results' has no CRS");
+    const std::string wkt = wkt_of(*layer->GetSpatialRef(), input + ": layer 'plot_results'");
+    if (target.empty()) target = wkt;
+    const auto text = [](OGRFeature& f, const char* name) {
+      return f.IsFieldSetAndNotNull(f.GetFieldIndex(name)) ? std::optional<std::string>(f.GetFieldAsString(name)) : std::nullopt;
+    };
+    const auto real = [](OGRFeature& f, const char* name) {
+      return f.IsFieldSetAndNotNull(f.GetFieldIndex(name)) ? std::optional<double>(f.GetFieldAsDouble(name)) : std::nullopt;
+    };
+    scan_layer(*layer, input + ": layer 'plot_results'", false, [&](OGRFeature& f) {
+      PlotResultFeature r;
+      r.file = text(f, "file").value_or("");
+      r.plot = text(f, "plot").value_or("");
+      r.species = text(f, "species");
+      r.count = f.GetFieldAsInteger64("count");
+      r.area = f.GetFieldAsDouble("area");
+      r.unit = text(f, "unit").value_or("");
+      r.intensity = f.GetFieldAsDouble("intensity");
+      r.ci_low = f.GetFieldAsDouble("ci_low");
+      r.ci_high = f.GetFieldAsDouble("ci_high");
+      r.detection_probability = f.GetFieldAsDouble("detection_probability");
+      r.corrected_intensity = f.GetFieldAsDouble("corrected_intensity");
+      r.corrected_ci_low = f.GetFieldAsDouble("corrected_ci_low");
+      r.corrected_ci_high = f.GetFieldAsDouble("corrected_ci_high");
+      r.quadrat_p = real(f, "quadrat_p");
+      r.clark_evans_ratio = real(f, "clark_evans_ratio");
+      r.clark_evans_p = real(f, "clark_evans_p");
+      r.dclf_p = real(f, "dclf_p");
+      r.verdict = text(f, "verdict");
+      if (const OGRGeometry* g = f.GetGeometryRef()) collect_polygons(*g, r.shape);
+      all.emplace_back(std::move(r), wkt);
+    });
   }
-  std::stable_sort(copies.begin(), copies.end(), [](const auto& a, const auto& b) {
-    return std::string(a->GetFieldAsString("file")) < std::string(b->GetFieldAsString("file"));
-  });
-  write_features(path, wkt, &copies, nullptr, protect);
+  std::stable_sort(all.begin(), all.end(), [](const auto& a, const auto& b) { return a.first.file < b.first.file; });
+  PlotResultsWriter writer(path, target, protect);
+  // One add per input file keeps each file's wide features together.
+  std::size_t begin = 0;
+  while (begin < all.size()) {
+    std::size_t end = begin;
+    std::vector<PlotResultFeature> group;
+    while (end < all.size() && all[end].first.file == all[begin].first.file && all[end].second == all[begin].second)
+      group.push_back(all[end++].first);
+    writer.add(group, all[begin].second);
+    begin = end;
+  }
+  writer.commit();
 }
 
 void write_geotiff(const std::string& path, const IntensityRaster& raster, const std::string& crs_wkt,

@@ -140,4 +140,32 @@ SourceSummary inspect_source(const std::string& path, const InspectOptions& opti
   return source;
 }
 
+std::vector<LayerShape> layer_shapes(const std::string& path) {
+  DatasetPtr dataset = open_vector(path);
+  std::vector<LayerShape> shapes;
+  for (int i = 0; i < dataset->GetLayerCount(); ++i) {
+    OGRLayer* layer = dataset->GetLayer(i);
+    if (layer == nullptr) continue;
+    LayerShape shape;
+    shape.name = layer->GetName();
+    switch (wkbFlatten(layer->GetGeomType())) {
+      case wkbPoint:
+      case wkbMultiPoint: shape.family = GeometryFamily::point; break;
+      case wkbLineString:
+      case wkbMultiLineString:
+      case wkbCircularString:
+      case wkbCompoundCurve:
+      case wkbMultiCurve: shape.family = GeometryFamily::line; break;
+      case wkbPolygon:
+      case wkbMultiPolygon:
+      case wkbCurvePolygon:
+      case wkbMultiSurface: shape.family = GeometryFamily::polygon; break;
+      case wkbNone: shape.family = GeometryFamily::none; break;
+      default: shape.family = GeometryFamily::mixed; break;
+    }
+    shapes.push_back(std::move(shape));
+  }
+  return shapes;
+}
+
 }  // namespace stipple

@@ -139,6 +139,31 @@ void write_file_safely(const std::string& path, const std::string& content,
   temporary.commit();
 }
 
+StreamedFile::StreamedFile(const std::string& path, const std::vector<std::string>& inputs)
+    : path_(path), temporary_(checked_output_path(path, inputs)) {
+  file_ = std::fopen(temporary_.path().c_str(), "wb");
+  if (file_ == nullptr) throw InputError(path + ": cannot write the temporary file " + temporary_.path());
+}
+
+StreamedFile::~StreamedFile() {
+  if (file_ != nullptr) std::fclose(file_);
+}
+
+void StreamedFile::write(const std::string& text) {
+  if (file_ == nullptr) throw InputError(path_ + ": written after it was committed");
+  if (std::fwrite(text.data(), 1, text.size(), file_) != text.size())
+    throw InputError(path_ + ": write failed (disk full?)");
+}
+
+void StreamedFile::commit() {
+  if (file_ == nullptr) throw InputError(path_ + ": committed twice");
+  const bool ok = std::fflush(file_) == 0 && std::ferror(file_) == 0;
+  const bool closed = std::fclose(file_) == 0;
+  file_ = nullptr;
+  if (!ok || !closed) throw InputError(path_ + ": write failed (disk full?)");
+  temporary_.commit();
+}
+
 std::string sha256_file(const std::string& path) {
   std::ifstream in(path, std::ios::binary);
   if (!in) throw InputError(path + ": cannot be read for its checksum");

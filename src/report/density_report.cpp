@@ -7,7 +7,9 @@
 
 #include "json_text.hpp"
 #include "report/input_summary.hpp"
+#include "report/records.hpp"
 #include "stipple/format.hpp"
+#include "stipple/report/tables.hpp"
 
 namespace stipple {
 
@@ -67,6 +69,67 @@ std::string method_line(const DensityResult& result) {
 }
 
 }  // namespace
+
+namespace report_detail {
+
+Json density_estimate_record(const DensityEstimate& e) {
+  Json j;
+  j["plot"] = e.plot;
+  j["species"] = species_json(e.species);
+  j["count"] = e.count;
+  j["area"] = e.area;
+  j["area_m2"] = e.area_m2;
+  j["intensity"] = e.intensity;
+  j["ci"] = interval_json(e.ci);
+  j["detection_probability"] = e.corrected.detection_probability;
+  j["corrected_intensity"] = e.corrected.intensity;
+  j["corrected_ci"] = interval_json(e.corrected.ci);
+  j["correction_method"] = std::string(correction_method_name(e.corrected.method));
+  return j;
+}
+
+Json pooled_record(const PooledEstimate& p) {
+  Json j;
+  j["species"] = species_json(p.species);
+  j["plots"] = p.plots;
+  j["count"] = p.count;
+  j["area"] = p.area;
+  j["intensity"] = p.intensity;
+  j["ci"] = interval_json(p.ci);
+  j["detection_probability"] = p.corrected.detection_probability;
+  j["corrected_intensity"] = p.corrected.intensity;
+  j["corrected_ci"] = interval_json(p.corrected.ci);
+  j["correction_method"] = std::string(correction_method_name(p.corrected.method));
+  if (p.homogeneity) {
+    const auto& h = *p.homogeneity;
+    Json t = chi_square_json(h.chi_square, h.p_value, h.monte_carlo);
+    t["dispersion_ratio"] = h.dispersion_ratio;
+    t["significant"] = h.significant;
+    t["between_plot_se"] = h.between_plot_se;
+    t["between_plot_ci"] = interval_json(h.between_plot_ci);
+    t["corrected_between_plot_se"] = h.corrected_between_plot_se;
+    t["corrected_between_plot_ci"] = interval_json(h.corrected_between_plot_ci);
+    t["corrected_between_plot_df"] = std::isfinite(h.corrected_between_plot_df)
+                                         ? Json(h.corrected_between_plot_df)
+                                         : Json(nullptr);
+    t["between_plot_method"] =
+        "ratio estimator (Cochran 1977), t interval with k - 1 df; corrected: plot counts "
+        "divided by p, delta-method variance of p added, Satterthwaite df";
+    j["homogeneity"] = std::move(t);
+  } else {
+    j["homogeneity"] = nullptr;
+  }
+  return j;
+}
+
+Json composition_record(const std::optional<CompositionTest>& test) {
+  if (!test) return nullptr;
+  Json t = chi_square_json(test->chi_square, test->p_value, test->monte_carlo);
+  t["significant"] = test->significant;
+  return t;
+}
+
+}  // namespace report_detail
 
 std::vector<std::string> density_warnings(const DensityResult& result) {
   std::vector<std::string> warnings;
@@ -130,66 +193,14 @@ std::string density_json(const LoadedSurvey& survey, const DensityResult& result
   doc["interval_method"] = "exact Poisson (Garwood 1936)";
 
   Json estimates = Json::array();
-  for (const auto& e : result.estimates) {
-    Json j;
-    j["plot"] = e.plot;
-    j["species"] = species_json(e.species);
-    j["count"] = e.count;
-    j["area"] = e.area;
-    j["intensity"] = e.intensity;
-    j["ci"] = interval_json(e.ci);
-    j["detection_probability"] = e.corrected.detection_probability;
-    j["corrected_intensity"] = e.corrected.intensity;
-    j["corrected_ci"] = interval_json(e.corrected.ci);
-    j["correction_method"] = std::string(correction_method_name(e.corrected.method));
-    estimates.push_back(std::move(j));
-  }
+  for (const auto& e : result.estimates) estimates.push_back(report_detail::density_estimate_record(e));
   doc["estimates"] = std::move(estimates);
 
   Json pooled = Json::array();
-  for (const auto& p : result.pooled) {
-    Json j;
-    j["species"] = species_json(p.species);
-    j["plots"] = p.plots;
-    j["count"] = p.count;
-    j["area"] = p.area;
-    j["intensity"] = p.intensity;
-    j["ci"] = interval_json(p.ci);
-    j["detection_probability"] = p.corrected.detection_probability;
-    j["corrected_intensity"] = p.corrected.intensity;
-    j["corrected_ci"] = interval_json(p.corrected.ci);
-    j["correction_method"] = std::string(correction_method_name(p.corrected.method));
-    if (p.homogeneity) {
-      const auto& h = *p.homogeneity;
-      Json t = chi_square_json(h.chi_square, h.p_value, h.monte_carlo);
-      t["dispersion_ratio"] = h.dispersion_ratio;
-      t["significant"] = h.significant;
-      t["between_plot_se"] = h.between_plot_se;
-      t["between_plot_ci"] = interval_json(h.between_plot_ci);
-      t["corrected_between_plot_se"] = h.corrected_between_plot_se;
-      t["corrected_between_plot_ci"] = interval_json(h.corrected_between_plot_ci);
-      t["corrected_between_plot_df"] = std::isfinite(h.corrected_between_plot_df)
-                                           ? Json(h.corrected_between_plot_df)
-                                           : Json(nullptr);
-      t["between_plot_method"] =
-          "ratio estimator (Cochran 1977), t interval with k - 1 df; corrected: plot counts "
-          "divided by p, delta-method variance of p added, Satterthwaite df";
-      j["homogeneity"] = std::move(t);
-    } else {
-      j["homogeneity"] = nullptr;
-    }
-    pooled.push_back(std::move(j));
-  }
+  for (const auto& p : result.pooled) pooled.push_back(report_detail::pooled_record(p));
   doc["pooled"] = std::move(pooled);
 
-  if (result.composition) {
-    const auto& c = *result.composition;
-    Json t = chi_square_json(c.chi_square, c.p_value, c.monte_carlo);
-    t["significant"] = c.significant;
-    doc["composition"] = std::move(t);
-  } else {
-    doc["composition"] = nullptr;
-  }
+  doc["composition"] = report_detail::composition_record(result.composition);
 
   const Survey& s = survey.survey;
   Json excluded;
@@ -293,35 +304,6 @@ std::string density_table(const LoadedSurvey& survey, const DensityResult& resul
   return out.str();
 }
 
-std::string density_csv(const DensityResult& result) {
-  std::ostringstream out;
-  out.imbue(std::locale::classic());
-  const auto v = [](double x) { return format_round_trip(x); };
-  out << "scope,plot,species,count,area,unit,intensity,ci_low,ci_high,detection_probability,"
-         "corrected_intensity,corrected_ci_low,corrected_ci_high,correction_method,"
-         "homogeneity_statistic,homogeneity_df,homogeneity_p_value\n";
-  const std::string unit(unit_name(result.unit));
-  for (const auto& e : result.estimates) {
-    out << "plot," << csv_field(e.plot) << "," << csv_field(e.species.value_or("")) << ","
-        << e.count << "," << v(e.area) << "," << unit << "," << v(e.intensity) << "," << v(e.ci.lower)
-        << "," << v(e.ci.upper) << "," << v(e.corrected.detection_probability) << ","
-        << v(e.corrected.intensity) << "," << v(e.corrected.ci.lower) << "," << v(e.corrected.ci.upper)
-        << "," << correction_method_name(e.corrected.method) << ",,,\n";
-  }
-  for (const auto& p : result.pooled) {
-    out << "pooled,," << csv_field(p.species.value_or("")) << "," << p.count << "," << v(p.area)
-        << "," << unit << "," << v(p.intensity) << "," << v(p.ci.lower) << "," << v(p.ci.upper) << ","
-        << v(p.corrected.detection_probability) << "," << v(p.corrected.intensity) << ","
-        << v(p.corrected.ci.lower) << "," << v(p.corrected.ci.upper) << ","
-        << correction_method_name(p.corrected.method) << ",";
-    if (p.homogeneity)
-      out << v(p.homogeneity->chi_square.statistic) << "," << v(p.homogeneity->chi_square.df) << ","
-          << v(p.homogeneity->p_value);
-    else
-      out << ",,";
-    out << "\n";
-  }
-  return out.str();
-}
+std::string density_csv(const DensityResult& result) { return csv_text(density_rows(result)); }
 
 }  // namespace stipple

@@ -8,8 +8,10 @@
 #include <nlohmann/json.hpp>
 
 #include "json_text.hpp"
+#include "report/records.hpp"
 #include "report/input_summary.hpp"
 #include "stipple/format.hpp"
+#include "stipple/report/tables.hpp"
 #include "stipple/report/figure.hpp"
 
 namespace stipple {
@@ -69,17 +71,63 @@ Json departures_json(const EnvelopeResult& e, const char* above, const char* bel
 }
 
 std::string ranges_text(const EnvelopeResult& e, const char* above, const char* below) {
-  std::string text;
-  for (const auto& d : e.departures) {
-    if (!text.empty()) text += "; ";
-    text += format_significant(d.from_m, 3) +
-            (d.to_m > d.from_m ? "-" + format_significant(d.to_m, 3) : std::string()) + " m " +
-            (d.direction == "above" ? above : below);
-  }
+  const std::string text = departure_text(e.departures, above, below);
   return text.empty() ? "none" : text;
 }
 
 }  // namespace
+
+namespace report_detail {
+
+Json randomness_group_record(const GroupResult& g) {
+  Json j;
+  j["plot"] = g.plot;
+  j["species"] = g.species ? Json(*g.species) : Json(nullptr);
+  j["n"] = g.n;
+  j["quadrat"] = g.quadrat ? quadrat_json(*g.quadrat) : Json(nullptr);
+  j["clark_evans"] = g.clark_evans ? clark_evans_json(*g.clark_evans) : Json(nullptr);
+  if (const EnvelopeResult* l = g.l_envelope()) {
+    Json e;
+    e["function"] = "L";
+    e["rmax"] = *g.rmax_m;
+    e["simulations"] = l->simulations;
+    e["mad_p_value"] = l->mad_p_value;
+    e["dclf_p_value"] = l->dclf_p_value;
+    e["erl_p_value"] = l->erl_p_value;
+    e["mad_statistic"] = l->mad_statistic;
+    e["dclf_statistic"] = l->dclf_statistic;
+    e["edge_correction"] = std::string(pair_correction_name(g.pair_correction));
+    e["distance_edge_correction"] = std::string(distance_correction_name(g.distance_correction));
+    e["departures"] = departures_json(*l, "clustered", "regular");
+    j["envelope"] = std::move(e);
+  } else {
+    j["envelope"] = nullptr;
+  }
+  j["verdict"] = g.verdict;
+  j["verdict_basis"] = g.verdict_basis;
+  j["notes"] = g.notes;
+  return j;
+}
+
+Json interaction_record(const InteractionResult& i) {
+  Json j;
+  j["plot"] = i.plot;
+  j["species_a"] = i.species_a;
+  j["species_b"] = i.species_b;
+  j["n_a"] = i.n_a;
+  j["n_b"] = i.n_b;
+  j["test"] = "random-labelling";
+  j["function"] = "cross-L";
+  j["rmax"] = i.rmax_m;
+  j["p_value"] = i.p_value;
+  j["mad_p_value"] = i.cross_l.mad_p_value;
+  j["direction"] = i.direction;
+  j["departures"] = departures_json(i.cross_l, "association", "segregation");
+  j["note"] = i.note.empty() ? Json(nullptr) : Json(i.note);
+  return j;
+}
+
+}  // namespace report_detail
 
 const std::vector<std::string>& randomness_cautions() {
   static const std::vector<std::string> cautions{
@@ -107,54 +155,10 @@ std::string randomness_json(const LoadedSurvey& survey, const RandomnessResult& 
   doc["sightings"] = survey.sightings_label;
   doc["plots"] = survey.plots_label.empty() ? Json(nullptr) : Json(survey.plots_label);
   Json results = Json::array();
-  for (const auto& g : result.results) {
-    Json j;
-    j["plot"] = g.plot;
-    j["species"] = g.species ? Json(*g.species) : Json(nullptr);
-    j["n"] = g.n;
-    j["quadrat"] = g.quadrat ? quadrat_json(*g.quadrat) : Json(nullptr);
-    j["clark_evans"] = g.clark_evans ? clark_evans_json(*g.clark_evans) : Json(nullptr);
-    if (const EnvelopeResult* l = g.l_envelope()) {
-      Json e;
-      e["function"] = "L";
-      e["rmax"] = *g.rmax_m;
-      e["simulations"] = l->simulations;
-      e["mad_p_value"] = l->mad_p_value;
-      e["dclf_p_value"] = l->dclf_p_value;
-      e["erl_p_value"] = l->erl_p_value;
-      e["mad_statistic"] = l->mad_statistic;
-      e["dclf_statistic"] = l->dclf_statistic;
-      e["edge_correction"] = std::string(pair_correction_name(g.pair_correction));
-      e["distance_edge_correction"] = std::string(distance_correction_name(g.distance_correction));
-      e["departures"] = departures_json(*l, "clustered", "regular");
-      j["envelope"] = std::move(e);
-    } else {
-      j["envelope"] = nullptr;
-    }
-    j["verdict"] = g.verdict;
-    j["verdict_basis"] = g.verdict_basis;
-    j["notes"] = g.notes;
-    results.push_back(std::move(j));
-  }
+  for (const auto& g : result.results) results.push_back(report_detail::randomness_group_record(g));
   doc["results"] = std::move(results);
   Json interactions = Json::array();
-  for (const auto& i : result.interactions) {
-    Json j;
-    j["plot"] = i.plot;
-    j["species_a"] = i.species_a;
-    j["species_b"] = i.species_b;
-    j["n_a"] = i.n_a;
-    j["n_b"] = i.n_b;
-    j["test"] = "random-labelling";
-    j["function"] = "cross-L";
-    j["rmax"] = i.rmax_m;
-    j["p_value"] = i.p_value;
-    j["mad_p_value"] = i.cross_l.mad_p_value;
-    j["direction"] = i.direction;
-    j["departures"] = departures_json(i.cross_l, "association", "segregation");
-    j["note"] = i.note.empty() ? Json(nullptr) : Json(i.note);
-    interactions.push_back(std::move(j));
-  }
+  for (const auto& i : result.interactions) interactions.push_back(report_detail::interaction_record(i));
   doc["interactions"] = std::move(interactions);
   Json skipped = Json::array();
   for (const auto& s : result.skipped)
@@ -202,7 +206,10 @@ std::string randomness_table(const LoadedSurvey& survey, const RandomnessResult&
     table.add_row(std::move(row));
   }
   out << table.render();
-  out << "  CE p is the Monte Carlo p-value when simulations ran; (MC) quadrat p: Monte Carlo\n\n";
+  out << "  CE = Clark-Evans nearest-neighbour test (ratio R < 1 clustered, > 1 regular); CE p is the Monte Carlo\n"
+         "  p-value when simulations ran; (MC) quadrat p: Monte Carlo; L rmax_m: largest distance of L (m);\n"
+         "  MAD = maximum absolute deviation test, DCLF = Diggle-Cressie-Loosmore-Ford test, both global tests\n"
+         "  of L against its CSR simulations; ERL = extreme rank length global envelope\n\n";
   bool any_departure = false;
   for (const auto& g : result.results) {
     const EnvelopeResult* l = g.l_envelope();
@@ -271,6 +278,8 @@ std::string randomness_table(const LoadedSurvey& survey, const RandomnessResult&
   for (const auto& c : randomness_cautions()) out << "  - " << c << "\n";
   return out.str();
 }
+
+std::string randomness_csv(const RandomnessResult& result) { return csv_text(randomness_rows(result)); }
 
 std::string randomness_curves_csv(const RandomnessResult& result) {
   std::ostringstream out;

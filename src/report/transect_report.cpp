@@ -10,7 +10,9 @@
 #include <nlohmann/json.hpp>
 
 #include "json_text.hpp"
+#include "report/records.hpp"
 #include "stipple/format.hpp"
+#include "stipple/report/tables.hpp"
 #include "stipple/report/figure.hpp"
 
 namespace stipple {
@@ -42,6 +44,54 @@ Json adjustments_json(const DetectionModel& m) {
 std::string label(const std::optional<std::string>& s, const char* all) { return s ? *s : all; }
 
 }  // namespace
+
+namespace report_detail {
+
+Json transect_estimate_record(const TransectResult& result, const TransectEstimate& e) {
+  Json j;
+  j["species"] = opt(e.species);
+  j["stratum"] = opt(e.stratum);
+  const DetectionModel& m = e.fit.function.model();
+  j["model"] = std::string(key_function_name(m.key));
+  j["adjustments"] = adjustments_json(m);
+  Json parameters;
+  const auto names = parameter_names(m);
+  for (std::size_t i = 0; i < names.size() && i < e.fit.function.parameters().size(); ++i)
+    parameters[names[i]] = e.fit.function.parameters()[i];
+  j["parameters"] = parameters.is_null() ? Json::object() : parameters;
+  j["aic"] = e.fit.aic;
+  j["aicc"] = num(e.fit.aicc);
+  j["n"] = e.n;
+  j["effort"] = e.effort;
+  j["effort_unit"] = result.kind == TransectKind::line ? "km" : "visits";
+  j["truncation"] = num(result.truncation_m);
+  j["esw"] = result.kind == TransectKind::line ? num(e.fit.effective_strip_width_m) : Json(nullptr);
+  j["effective_area"] = result.kind == TransectKind::point ? num(e.fit.effective_area_m2) : Json(nullptr);
+  j["effective_radius"] = result.kind == TransectKind::point ? num(std::sqrt(e.fit.effective_area_m2 / pi)) : Json(nullptr);
+  j["detection_probability"] = num(e.fit.detection_probability);
+  j["detection_probability_cv"] = num(e.fit.detection_probability_cv);
+  j["encounter_rate"] = e.encounter.rate;
+  j["encounter_rate_cv"] = num(e.encounter.cv);
+  j["mean_cluster_size"] = e.mean_size;
+  j["mean_cluster_size_cv"] = e.mean_size_cv;
+  j["density"] = e.density;
+  j["density_cv"] = num(e.density_cv);
+  j["density_df"] = num(e.df);
+  j["density_ci"] = interval(e.density_ci);
+  j["abundance"] = e.abundance ? num(*e.abundance) : Json(nullptr);
+  j["abundance_ci"] = e.abundance_ci ? interval(*e.abundance_ci) : Json(nullptr);
+  j["bootstrap_ci"] = e.bootstrap_ci ? interval(*e.bootstrap_ci) : Json(nullptr);
+  j["bootstrap_cv"] = e.bootstrap_cv ? num(*e.bootstrap_cv) : Json(nullptr);
+  j["gof"] = {{"chi_square", e.gof.chi_square}, {"chi_square_df", e.gof.chi_square_df},
+              {"chi_square_p", e.gof.chi_square_p ? num(*e.gof.chi_square_p) : Json(nullptr)},
+              {"ks_p", e.gof.ks_p ? num(*e.gof.ks_p) : Json(nullptr)},
+              {"cvm_p", e.gof.cvm_p ? num(*e.gof.cvm_p) : Json(nullptr)}};
+  j["dispersion"] = num(e.dispersion);
+  j["effort_for_target_cv"] = e.effort_for_target ? num(*e.effort_for_target) : Json(nullptr);
+  return j;
+}
+
+}  // namespace report_detail
 
 const std::vector<std::string>& transect_cautions() {
   static const std::vector<std::string> cautions{
@@ -75,49 +125,7 @@ std::string transect_json(const LoadedTransects& input, const TransectResult& re
   doc["sightings"] = input.sightings_label;
   doc["transects"] = input.transects_label;
   Json results = Json::array();
-  for (const auto& e : result.results) {
-    Json j;
-    j["species"] = opt(e.species);
-    j["stratum"] = opt(e.stratum);
-    const DetectionModel& m = e.fit.function.model();
-    j["model"] = std::string(key_function_name(m.key));
-    j["adjustments"] = adjustments_json(m);
-    Json parameters;
-    const auto names = parameter_names(m);
-    for (std::size_t i = 0; i < names.size() && i < e.fit.function.parameters().size(); ++i)
-      parameters[names[i]] = e.fit.function.parameters()[i];
-    j["parameters"] = parameters.is_null() ? Json::object() : parameters;
-    j["aic"] = e.fit.aic;
-    j["aicc"] = num(e.fit.aicc);
-    j["n"] = e.n;
-    j["effort"] = e.effort;
-    j["effort_unit"] = result.kind == TransectKind::line ? "km" : "visits";
-    j["truncation"] = num(result.truncation_m);
-    j["esw"] = result.kind == TransectKind::line ? num(e.fit.effective_strip_width_m) : Json(nullptr);
-    j["effective_area"] = result.kind == TransectKind::point ? num(e.fit.effective_area_m2) : Json(nullptr);
-    j["effective_radius"] = result.kind == TransectKind::point ? num(std::sqrt(e.fit.effective_area_m2 / pi)) : Json(nullptr);
-    j["detection_probability"] = num(e.fit.detection_probability);
-    j["detection_probability_cv"] = num(e.fit.detection_probability_cv);
-    j["encounter_rate"] = e.encounter.rate;
-    j["encounter_rate_cv"] = num(e.encounter.cv);
-    j["mean_cluster_size"] = e.mean_size;
-    j["mean_cluster_size_cv"] = e.mean_size_cv;
-    j["density"] = e.density;
-    j["density_cv"] = num(e.density_cv);
-    j["density_df"] = num(e.df);
-    j["density_ci"] = interval(e.density_ci);
-    j["abundance"] = e.abundance ? num(*e.abundance) : Json(nullptr);
-    j["abundance_ci"] = e.abundance_ci ? interval(*e.abundance_ci) : Json(nullptr);
-    j["bootstrap_ci"] = e.bootstrap_ci ? interval(*e.bootstrap_ci) : Json(nullptr);
-    j["bootstrap_cv"] = e.bootstrap_cv ? num(*e.bootstrap_cv) : Json(nullptr);
-    j["gof"] = {{"chi_square", e.gof.chi_square}, {"chi_square_df", e.gof.chi_square_df},
-                {"chi_square_p", e.gof.chi_square_p ? num(*e.gof.chi_square_p) : Json(nullptr)},
-                {"ks_p", e.gof.ks_p ? num(*e.gof.ks_p) : Json(nullptr)},
-                {"cvm_p", e.gof.cvm_p ? num(*e.gof.cvm_p) : Json(nullptr)}};
-    j["dispersion"] = num(e.dispersion);
-    j["effort_for_target_cv"] = e.effort_for_target ? num(*e.effort_for_target) : Json(nullptr);
-    results.push_back(std::move(j));
-  }
+  for (const auto& e : result.results) results.push_back(report_detail::transect_estimate_record(result, e));
   doc["results"] = std::move(results);
   Json compared = Json::array();
   for (const auto& c : result.models_compared)
@@ -213,26 +221,7 @@ std::string effort_json(double pilot_detections, double pilot_effort, double tar
 }
 
 std::string transect_csv(const TransectResult& result) {
-  std::ostringstream out;
-  out.imbue(std::locale::classic());
-  out << "species,stratum,model,adjustment_terms,n,effort,truncation,esw,effective_area,detection_probability,"
-         "encounter_rate,encounter_rate_cv,mean_cluster_size,density,density_cv,density_ci_low,density_ci_high,"
-         "abundance,abundance_ci_low,abundance_ci_high,unit\n";
-  const auto v = [](double x) { return format_round_trip(x); };
-  for (const auto& e : result.results) {
-    const DetectionModel& m = e.fit.function.model();
-    out << csv_field(e.species.value_or("")) << "," << csv_field(e.stratum.value_or("")) << ","
-        << key_function_name(m.key) << "," << (m.adjustment == Adjustment::none ? std::string() : std::to_string(m.terms) + " " + std::string(adjustment_name(m.adjustment)))
-        << "," << e.n << "," << v(e.effort) << "," << v(result.truncation_m) << ","
-        << (result.kind == TransectKind::line ? v(e.fit.effective_strip_width_m) : "") << ","
-        << (result.kind == TransectKind::point ? v(e.fit.effective_area_m2) : "") << ","
-        << v(e.fit.detection_probability) << "," << v(e.encounter.rate) << "," << v(e.encounter.cv) << ","
-        << v(e.mean_size) << "," << v(e.density) << "," << v(e.density_cv) << "," << v(e.density_ci.lower) << ","
-        << v(e.density_ci.upper) << "," << (e.abundance ? v(*e.abundance) : "") << ","
-        << (e.abundance_ci ? v(e.abundance_ci->lower) : "") << "," << (e.abundance_ci ? v(e.abundance_ci->upper) : "")
-        << "," << unit_name(result.unit) << "\n";
-  }
-  return out.str();
+  return csv_text(transect_rows(result));
 }
 
 std::vector<std::pair<std::string, std::string>> transect_figures(const LoadedTransects& input,

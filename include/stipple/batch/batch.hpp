@@ -1,5 +1,6 @@
 #pragma once
-/// Batch runs over many plot files: discovery, deterministic shards, tidy tables, merge.
+/// Batch: a season of plot (or transect) files analysed as one, an application layer above
+/// the analysis core: discovery, deterministic shards, streamed tables, season pooling, merge.
 
 #include <cstddef>
 #include <functional>
@@ -14,6 +15,7 @@
 #include "stipple/io/transect_reader.hpp"
 #include "stipple/transect/estimate.hpp"
 #include "stipple/randomness/analysis.hpp"
+#include "stipple/report/season_report.hpp"
 
 namespace stipple {
 
@@ -41,9 +43,12 @@ struct BatchInput {
 
 struct BatchOptions {
   SurveyReadOptions read;          ///< field names, CRS options; paths are set per input
+  /// One plots layer for every input (a folder of sighting files over one plots file):
+  /// sightings are assigned by their plot attribute or by location, as `read.assignment` says.
+  std::optional<SourceSpec> shared_plots;
   bool run_density = true;
   bool run_randomness = true;
-  bool run_transect = false;       ///< each input also holds transect lines and their sightings
+  bool run_transect = false;       ///< inputs holding transect lines and their sightings
   TransectReadOptions transect_read;  ///< field names; paths are set per input
   TransectOptions transect;
   DensityOptions density;
@@ -54,52 +59,50 @@ struct BatchOptions {
   bool surfaces = false;           ///< OUT/surfaces/<input>/<species>.tif
   std::optional<double> pixel_m;
   std::optional<double> bandwidth_m;
+  /// The input whose analysis CRS is the batch CRS when `read.target_crs` is not set: the
+  /// first of all inputs, also when this run is one shard, so shards agree.
+  std::optional<BatchInput> crs_reference;
+  SeasonRun run;                   ///< run facts for run.json and the report (version, options text...)
 };
 
-/// What one input produced: table rows (CSV lines without newline) and JSON records.
-struct BatchFileResult {
-  BatchInput input;
-  bool ok = false;
-  std::string failure;             ///< one line, when !ok
-  std::optional<std::string> sha256;        ///< of the input file, when it is a readable file
-  std::optional<std::string> plots_sha256;  ///< of a separate plots file
-  std::vector<std::string> density_rows;
-  std::vector<std::string> density_records;     ///< JSON objects, as in `stipple density --json`
-  std::vector<std::string> randomness_rows;
-  std::vector<std::string> randomness_records;  ///< JSON objects, as in `stipple randomness --json`
-  std::vector<std::string> transect_rows;
-  std::vector<std::string> transect_records;    ///< JSON objects, as in `stipple transect --json`
-  std::vector<std::pair<std::string, std::string>> figures;  ///< (relative path, SVG)
-  std::string crs;
-  std::vector<std::string> warnings;
-  std::vector<PlotResultFeature> gis_features;
-  std::vector<std::pair<std::string, IntensityRaster>> surfaces;  ///< (relative path, raster)
-  LoadedSurvey survey;             ///< for GIS outputs and surfaces
+/// What a file holds, judged from its layers' geometry before any analysis.
+enum class InputKind { plots, transects, unknown };
+[[nodiscard]] const char* input_kind_name(InputKind kind);
+
+/// Progress callback: (files done, files total, the file just finished, its status).
+using BatchProgress = std::function<void(std::size_t, std::size_t, const SeasonInput&)>;
+
+/// What a batch run leaves for its caller: the report's typed content and the counts.
+struct BatchSummary {
+  SeasonReport report;
+  std::size_t failed = 0;
+  std::size_t skipped = 0;
 };
 
-/// Progress callback: (files done, files total, the file just finished).
-using BatchProgress = std::function<void(std::size_t, std::size_t, const BatchFileResult&)>;
-
-/// Runs every input (in parallel; each file's results are independent of the others and of
-/// the thread count). A file that fails is recorded with its reason; the others finish.
-[[nodiscard]] std::vector<BatchFileResult> run_batch(const std::vector<BatchInput>& inputs,
-                                                     const BatchOptions& options,
-                                                     const BatchProgress& progress);
-
-/// Column headers of the batch tables.
-[[nodiscard]] std::string density_table_header();
-[[nodiscard]] std::string randomness_table_header();
-[[nodiscard]] std::string transect_table_header();
-
-/// Writes OUT/density.csv|json, OUT/randomness.csv|json, OUT/failures.csv, OUT/run.json,
-/// OUT/figures/*.svg, through temporary files, never over an input.
-void write_batch_outputs(const std::string& out_dir, const std::vector<BatchFileResult>& results,
-                         const BatchOptions& options, const std::string& options_text,
-                         const std::vector<std::string>& protected_paths);
+/// Runs every input (files in parallel, results independent of the thread count) and
+/// writes each file's outputs as it finishes, in input order, into `out_dir`:
+/// density.csv|json, randomness.csv|json, interactions.csv|json, transect.csv|json,
+/// pooled.csv|json (the season pooled over every plot of every file), failures.csv,
+/// figures.csv, run.json, figures/, maps/, plot-results.gpkg, surfaces/. Each table has a
+/// `file` column in front of the single command's columns (tables.hpp). A file that fails
+/// is recorded with its reason and the others finish; a file of the wrong kind for the
+/// analyses asked (transect lines for density, plot polygons for transect) is skipped with
+/// its reason. Memory holds a few files' results at a time, whatever the number of files,
+/// plus the per-plot counts of the pooling and the report's rows. Nothing is written over
+/// `protected_paths`.
+[[nodiscard]] BatchSummary run_batch(const std::vector<BatchInput>& inputs, const BatchOptions& options,
+                                     const std::string& out_dir, const std::vector<std::string>& protected_paths,
+                                     const BatchProgress& progress);
 
 /// Combines the output folders of shards into `out_dir`: the same files one unsharded run
 /// writes (rows ordered by input name, then as each file produced them).
 void merge_batch_outputs(const std::vector<std::string>& shard_dirs, const std::string& out_dir);
+
+/// Reads a batch output folder back into the report's typed content: run.json (run facts
+/// and inputs), density.json, pooled.json, randomness.json, interactions.json,
+/// transect.json and figures.csv, whichever are present (README "Batch output folder").
+/// Throws InputError naming the file when the folder has no run.json or a file is damaged.
+[[nodiscard]] SeasonReport load_batch_folder(const std::string& dir);
 
 /// Everything a report written for the batch folder `dir` must never replace: every file in
 /// the folder except its own report.html, and every input listed in its run.json (`path`,

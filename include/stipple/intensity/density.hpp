@@ -21,7 +21,7 @@ struct DensityOptions {
   double confidence = 0.95;         ///< two-sided level of every interval; alpha = 1 - level
   DetectionTable detection;         ///< p = 1 for every species unless given
   std::uint64_t seed = default_seed;
-  std::size_t simulations = 9999;   ///< Monte Carlo draws when expected counts are small
+  std::size_t simulations = 999;    ///< Monte Carlo draws when expected counts are small
 };
 
 /// One plot x species (species empty = all species together, the superposed process).
@@ -30,6 +30,7 @@ struct DensityEstimate {
   std::optional<std::string> species;
   std::uint64_t count = 0;
   double area = 0.0;        ///< in the reporting unit
+  double area_m2 = 0.0;     ///< the same in square metres, as measured
   double intensity = 0.0;   ///< count / area, per unit
   Interval ci;              ///< exact Garwood interval, per unit
   CorrectedIntensity corrected;
@@ -91,8 +92,28 @@ struct DensityResult {
   std::optional<CompositionTest> composition;  ///< with two or more plots and species
 };
 
+/// The counts density needs, without the locations: plots with their areas and the number of
+/// sightings of each species in each. Built from a survey or accumulated over many surveys
+/// (a season of plot files) without holding their sightings.
+struct PlotCounts {
+  std::vector<std::string> species;                   ///< sorted names
+  std::vector<std::string> plots;                     ///< plot ids, unique
+  std::vector<double> areas_m2;                       ///< parallel to `plots`
+  std::vector<std::vector<std::uint64_t>> counts;     ///< counts[plot][species]
+
+  /// The counts of a survey's plots.
+  [[nodiscard]] static PlotCounts of(const Survey& survey);
+  /// Appends the plots of `other` (ids prefixed with `prefix`), merging the species lists.
+  /// Throws InputError when a prefixed plot id is already present.
+  void append(const PlotCounts& other, const std::string& prefix);
+};
+
 /// Densities of every species in every plot of the survey, pooled, tested and corrected.
 /// Throws InputError when a species has no detection probability.
 [[nodiscard]] DensityResult estimate_density(const Survey& survey, const DensityOptions& options);
+
+/// The same from counts alone: `estimate_density(s, o)` equals
+/// `estimate_density(PlotCounts::of(s), o)` exactly.
+[[nodiscard]] DensityResult estimate_density(const PlotCounts& counts, const DensityOptions& options);
 
 }  // namespace stipple

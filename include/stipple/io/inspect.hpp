@@ -58,4 +58,17 @@ struct InspectOptions {
 /// Throws InputError when the source cannot be opened.
 [[nodiscard]] SourceSummary inspect_source(const std::string& path, const InspectOptions& options);
 
+/// The kind of geometry a layer holds, from its declared geometry type.
+enum class GeometryFamily { point, line, polygon, none, mixed };
+
+struct LayerShape {
+  std::string name;
+  GeometryFamily family = GeometryFamily::none;
+};
+
+/// The layers of a vector source and their geometry families, without reading features
+/// (CSV files: point when they have coordinate columns, else none). Lets batch tell a plot
+/// file (polygons) from a transect file (lines). Throws InputError when it cannot be opened.
+[[nodiscard]] std::vector<LayerShape> layer_shapes(const std::string& path);
+
 }  // namespace stipple

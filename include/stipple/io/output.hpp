@@ -1,6 +1,7 @@
 #pragma once
 /// Writing result files safely.
 
+#include <cstdio>
 #include <string>
 #include <vector>
 
@@ -40,6 +41,24 @@ class TemporaryOutput {
 /// sees a half-written file; the target is checked by checked_output_path.
 void write_file_safely(const std::string& path, const std::string& content,
                        const std::vector<std::string>& inputs);
+
+/// An output written piece by piece (a table that grows as batch files finish) through a
+/// TemporaryOutput: nothing appears at `path` until commit(), and a failure leaves nothing.
+class StreamedFile {
+ public:
+  StreamedFile(const std::string& path, const std::vector<std::string>& inputs);
+  ~StreamedFile();
+  StreamedFile(const StreamedFile&) = delete;
+  StreamedFile& operator=(const StreamedFile&) = delete;
+  void write(const std::string& text);
+  /// Flushes, checks the write and renames into place; throws InputError naming the path.
+  void commit();
+
+ private:
+  std::string path_;
+  TemporaryOutput temporary_;
+  std::FILE* file_ = nullptr;
+};
 
 /// SHA-256 of a file's bytes, as 64 hexadecimal digits (OpenSSL). Throws InputError when
 /// the file cannot be read.

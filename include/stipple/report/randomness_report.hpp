@@ -16,6 +16,8 @@ namespace stipple {
 [[nodiscard]] std::string randomness_table(const LoadedSurvey& survey, const RandomnessResult& result);
 /// The JSON document of `stipple randomness --json` (contract in README, "JSON output").
 [[nodiscard]] std::string randomness_json(const LoadedSurvey& survey, const RandomnessResult& result);
+/// `--csv`: one row per plot x species with every p-value and the verdict (tables.hpp).
+[[nodiscard]] std::string randomness_csv(const RandomnessResult& result);
 /// One row per group, function and distance: plot, species, species_b, function, r,
 /// observed, theoretical, low, high (pointwise envelope), global_low, global_high.
 [[nodiscard]] std::string randomness_curves_csv(const RandomnessResult& result);
