@@ -18,6 +18,7 @@ packages=(
   libgtest-dev libgmock-dev        # GoogleTest
   libbenchmark-dev                 # Google Benchmark (bench/)
   python3                          # demo-data generator
+  time                             # GNU time: whole-process peak memory in bench/batch_memory.sh
 )
 if [ "$(id -u)" -ne 0 ]; then sudo=sudo; else sudo=; fi
 missing=()

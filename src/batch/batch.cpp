@@ -75,9 +75,29 @@ InputKind judge_kind(const BatchInput& input, const BatchOptions& options, std::
     evidence = "holds plots and sightings";
     return InputKind::plots;
   }
-  evidence = points ? "holds points but no plot polygons (give --plots or --plots-name)"
+  evidence = points ? "holds points but no plot polygons, and no plots layer was given for it"
                     : "holds neither plot polygons nor transect lines";
   return InputKind::unknown;
+}
+
+// With one plots layer for a folder of sighting files, a file covers the plots its
+// sightings fall in; the others belong to other files (their areas must not be pooled once
+// per file).
+void keep_plots_with_sightings(LoadedSurvey& loaded) {
+  Survey& s = loaded.survey;
+  std::vector<Plot> plots;
+  std::vector<MarkedPattern> patterns;
+  for (std::size_t i = 0; i < s.plots.size(); ++i) {
+    if (s.patterns[i].points.empty()) continue;
+    plots.push_back(std::move(s.plots[i]));
+    patterns.push_back(std::move(s.patterns[i]));
+  }
+  const std::size_t left_out = s.plots.size() - plots.size();
+  if (left_out > 0)
+    loaded.notes.push_back(std::to_string(plots.size()) + " plot(s) of the shared plots layer hold this file's sightings; "
+                           "the other " + std::to_string(left_out) + " are left to the files that cover them");
+  s.plots = std::move(plots);
+  s.patterns = std::move(patterns);
 }
 
 void analyse_plots(FileResults& r, const BatchOptions& options) {
@@ -87,6 +107,7 @@ void analyse_plots(FileResults& r, const BatchOptions& options) {
   else read.plots = SourceSpec{r.source.plots_path, options.read.plots ? options.read.plots->layer : std::nullopt};
   read.window = WindowMode::plots;
   r.survey = load_survey(read);
+  if (options.shared_plots) keep_plots_with_sightings(*r.survey);
   r.input.crs = r.survey->crs.code;
   r.crs_wkt = r.survey->crs.wkt;
   r.input.warnings = r.survey->warnings;
@@ -164,8 +185,8 @@ FileResults analyse_file(const BatchInput& source, const BatchOptions& options) 
     } else {
       r.input.status = "skipped";
       r.input.reason = evidence + "; " +
-                       (kind == InputKind::transects ? "not a plot file: analyse it with --analyses transect"
-                        : kind == InputKind::plots   ? "not a transect file: analyse it with --analyses density,randomness"
+                       (kind == InputKind::transects ? "not a plot file (the transect analysis fits it)"
+                        : kind == InputKind::plots   ? "not a transect file (the density and randomness analyses fit it)"
                                                      : "nothing to analyse");
     }
   } catch (const Error& e) {
@@ -283,7 +304,7 @@ class SeasonWriter {
     failures_ = std::make_unique<StreamedFile>((dir_ / "failures.csv").string(), protect);
     failures_->write("file,status,reason\n");
     figures_ = std::make_unique<StreamedFile>((dir_ / "figures.csv").string(), protect);
-    figures_->write("section,path,title\n");
+    figures_->write("file,section,path,title\n");
     summary_.report.run = options.run;
   }
 
@@ -329,7 +350,8 @@ class SeasonWriter {
       const fs::path target = dir_ / f.ref.path;
       make_folder(target.parent_path().string());
       write_file_safely(target.string(), f.svg, protect_);
-      figures_->write(csv_field(f.ref.section) + "," + csv_field(f.ref.path) + "," + csv_field(f.ref.title) + "\n");
+      figures_->write(csv_field(name) + "," + csv_field(f.ref.section) + "," + csv_field(f.ref.path) + "," +
+                      csv_field(f.ref.title) + "\n");
       summary_.report.figures.push_back(f.ref);
     }
     if (options_.gis && r.density) {

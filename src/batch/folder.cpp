@@ -52,6 +52,27 @@ void write_lines(const std::string& path, const std::string& header, const std::
   write_file_safely(path, text, protected_paths);
 }
 
+// The cells of one CSV line (quoted cells may hold commas and doubled quotes).
+std::vector<std::string> csv_cells(const std::string& line) {
+  std::vector<std::string> cells(1);
+  bool quoted = false;
+  for (std::size_t i = 0; i < line.size(); ++i) {
+    const char c = line[i];
+    if (quoted) {
+      if (c == '"' && i + 1 < line.size() && line[i + 1] == '"') cells.back() += '"', ++i;
+      else if (c == '"') quoted = false;
+      else cells.back() += c;
+    } else if (c == '"') {
+      quoted = true;
+    } else if (c == ',') {
+      cells.emplace_back();
+    } else {
+      cells.back() += c;
+    }
+  }
+  return cells;
+}
+
 // The batch's JSON arrays: one compact record per line (as run_batch streams them).
 std::string json_array_text(const std::vector<Json>& records) {
   std::string text = "[";
@@ -441,13 +462,9 @@ SeasonReport load_batch_folder(const std::string& dir_text) {
   if (file_exists(dir / "figures.csv")) {
     std::string header;
     for (const auto& line : read_lines(dir / "figures.csv", header)) {
-      // section,path,title: the title may be quoted and hold commas.
-      const auto first = line.find(',');
-      const auto second = line.find(',', first + 1);
-      if (first == std::string::npos || second == std::string::npos)
-        throw InputError((dir / "figures.csv").string() + ": damaged line '" + line + "'");
-      const std::string title = first_csv_field(line.substr(second + 1));
-      report.figures.push_back({line.substr(0, first), first_csv_field(line.substr(first + 1)), title});
+      const std::vector<std::string> cells = csv_cells(line);
+      if (cells.size() != 4) throw InputError((dir / "figures.csv").string() + ": damaged line '" + line + "'");
+      report.figures.push_back({cells[1], cells[2], cells[3]});
     }
   }
   return report;

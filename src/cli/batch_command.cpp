@@ -14,6 +14,7 @@
 
 #include "commands.hpp"
 #include "common_options.hpp"
+#include "progress.hpp"
 #include "stipple/batch/batch.hpp"
 #include "stipple/error.hpp"
 #include "stipple/format.hpp"
@@ -177,12 +178,6 @@ std::string read_output_file(const std::string& dir, const std::string& relative
   return text.str();
 }
 
-std::string clock_text(double seconds) {
-  const auto s = static_cast<long>(seconds + 0.5);
-  std::ostringstream out;
-  out << s / 60 << ":" << (s % 60 < 10 ? "0" : "") << s % 60;
-  return out.str();
-}
 
 int run_batch_command(BatchCommandOptions& o, CLI::App& command) {
   if (!o.run_file.empty()) apply_run_file(o, command);

@@ -71,6 +71,8 @@ Action add_density_command(CLI::App& app) {
       "Intensity of each species per plot and pooled across plots, with exact Poisson "
       "intervals, homogeneity and composition tests, corrected for detection");
   add_common_options(*command, options->common);
+  command->footer("P(detect) = detection probability used for the correction; homogeneity p = p-value of the test that "
+                  "the plots share one intensity; (MC) = Monte Carlo p-value; dispersion = X2 / df.");
   command->add_option("--detection", options->detection_file,
                       "CSV of detection probabilities: columns species, p, optional se (default: none)");
   options->prob_option = command->add_option(

@@ -7,6 +7,7 @@
 
 #include "commands.hpp"
 #include "common_options.hpp"
+#include "progress.hpp"
 #include "stipple/error.hpp"
 #include "stipple/intensity/poisson.hpp"
 #include "stipple/randomness/analysis.hpp"
@@ -63,7 +64,12 @@ int run_randomness(const RandomnessCommandOptions& o) {
   const std::vector<std::string> inputs = input_paths(o.common);
   check_outputs({{"--json", o.common.json}, {"--csv", o.common.csv}, {"--curves", o.curves}}, inputs);
   const LoadedSurvey survey = load_survey(to_read_options(o.common));
-  const RandomnessResult result = analyse_randomness(survey.survey, options);
+  RandomnessResult result;
+  {
+    TerminalProgress bar("stipple randomness: groups");
+    options.progress = bar.callback();
+    result = analyse_randomness(survey.survey, options);
+  }
 
   const bool stdout_taken = o.common.json == "-" || o.common.csv == "-" || o.curves == "-";
   if (!o.common.json.empty()) write_output(o.common.json, randomness_json(survey, result), inputs);
@@ -87,6 +93,11 @@ Action add_randomness_command(CLI::App& app) {
       "Tests of complete spatial randomness per plot and species (quadrats, Clark-Evans, "
       "summary functions with Monte Carlo envelopes) and random-labelling tests between species");
   add_common_options(*command, o->common);
+  command->footer(
+      "Abbreviations: CE = Clark-Evans nearest-neighbour test; MAD = maximum absolute deviation test; DCLF = "
+      "Diggle-Cressie-Loosmore-Ford test; ERL = extreme rank length global envelope; CSR = complete spatial "
+      "randomness. --csv writes one row per plot x species with every p-value and the verdict; --curves the "
+      "summary-function curves.");
   command->add_option("--quadrats", o->quadrats,
                       "Quadrat grid NxM over the window's bounding box: 1-10000 cells a side, 2-10000 in all")
       ->capture_default_str();

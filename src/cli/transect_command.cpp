@@ -8,6 +8,7 @@
 
 #include "commands.hpp"
 #include "common_options.hpp"
+#include "progress.hpp"
 #include "stipple/error.hpp"
 #include "stipple/format.hpp"
 #include "stipple/io/transect_reader.hpp"
@@ -124,7 +125,12 @@ int run_transect(const TransectCommandOptions& o) {
   const LoadedTransects input = load_transects(read);
   options.study_area_m2 = input.study_area_m2 ? input.study_area_m2 : options.study_area_m2;
   options.stratum_area_m2 = input.stratum_area_m2;
-  const TransectResult result = analyse_transects(input.survey, options);
+  TransectResult result;
+  {
+    TerminalProgress bar("stipple transect: bootstrap");
+    options.progress = bar.callback();
+    result = analyse_transects(input.survey, options);
+  }
 
   const bool stdout_taken = o.common.json == "-" || o.common.csv == "-";
   if (!o.common.json.empty()) write_output(o.common.json, transect_json(input, result), inputs);
@@ -143,6 +149,9 @@ Action add_transect_command(CLI::App& app) {
       "transect",
       "Density and abundance from line or point transects: detection functions fitted to "
       "sighting distances, encounter rates, intervals");
+  c->footer("Abbreviations: ESW = effective strip half-width (lines); P_a = probability of detecting an animal "
+            "within the truncation distance; E(s) = mean cluster size; CV = coefficient of variation; AIC = Akaike "
+            "information criterion; GOF = goodness of fit.");
   add_sighting_options(*c, o->common);
   add_output_options(*c, o->common);
   c->add_option("--lines", o->lines, "Transect lines: an OGR line layer with a transect id");

@@ -289,6 +289,23 @@ RandomnessResult analyse_randomness(const Survey& survey, const RandomnessOption
   result.simulations = options.simulations;
   result.seed = options.seed;
   result.alpha = options.alpha;
+  // Progress: one step per group (each species present and all together) and per pair.
+  std::size_t total = 0;
+  std::size_t done = 0;
+  const bool pairs = options.run_interactions && options.simulations > 0;
+  for (const auto& pattern : survey.patterns) {
+    std::vector<std::size_t> present(survey.species.size(), 0);
+    for (const auto m : pattern.marks) ++present[m];
+    std::size_t groups = 1, paired = 0;
+    for (const auto n : present) {
+      groups += n > 0 ? 1 : 0;
+      paired += n >= 2 ? 1 : 0;
+    }
+    total += groups + (pairs && paired >= 2 ? paired * (paired - 1) / 2 : 0);
+  }
+  const auto step = [&] {
+    if (options.progress) options.progress(++done, total);
+  };
   for (std::size_t p = 0; p < survey.plots.size(); ++p) {
     const Plot& plot = survey.plots[p];
     const MarkedPattern& pattern = survey.patterns[p];
@@ -306,6 +323,7 @@ RandomnessResult analyse_randomness(const Survey& survey, const RandomnessOption
         g.verdict = "too few to tell";
         g.notes.push_back(why + ": no test can run");
         result.results.push_back(std::move(g));
+        step();
         return;
       }
       GroupResult g = analyse_pattern(points, plot.window, options, group_key(plot.id, species));
@@ -319,6 +337,7 @@ RandomnessResult analyse_randomness(const Survey& survey, const RandomnessOption
                           "randomness");
       }
       result.results.push_back(std::move(g));
+      step();
     };
     for (std::size_t s = 0; s < survey.species.size(); ++s) {
       if (by_species[s].empty()) continue;
@@ -336,6 +355,7 @@ RandomnessResult analyse_randomness(const Survey& survey, const RandomnessOption
         ir.species_a = survey.species[s];
         ir.species_b = survey.species[t];
         result.interactions.push_back(std::move(ir));
+        step();
       }
     }
   }

@@ -239,7 +239,7 @@ std::string density_table(const LoadedSurvey& survey, const DensityResult& resul
       << " exact Poisson (Garwood) intervals; " << method_line(result) << "\n\n";
 
   out << "Per plot\n";
-  TextTable plots({"plot", "species", "count", "area_" + unit, "intensity", level + " CI", "p",
+  TextTable plots({"plot", "species", "count", "area_" + unit, "intensity", level + " CI", "P(detect)",
                    "corrected", "corrected " + level + " CI"},
                   2);
   for (const auto& e : result.estimates) {
@@ -248,12 +248,14 @@ std::string density_table(const LoadedSurvey& survey, const DensityResult& resul
                    format_significant(e.corrected.detection_probability, 3),
                    number(e.corrected.intensity), interval_text(e.corrected.ci)});
   }
-  out << plots.render() << "\n";
+  out << plots.render();
+  out << "  intensity and corrected per " << unit << "; P(detect): detection probability used for the "
+         "correction (corrected = intensity / P(detect))\n\n";
 
   if (!result.pooled.empty()) {
     out << "Pooled across plots (superposition: sum n / sum area)\n";
     TextTable pooled({"species", "plots", "count", "area_" + unit, "intensity", level + " CI",
-                      "corrected", "corrected " + level + " CI", "homogeneity X2", "df", "p",
+                      "corrected", "corrected " + level + " CI", "homogeneity X2", "df", "homogeneity p",
                       "dispersion"},
                      1);
     for (const auto& p : result.pooled) {
@@ -274,7 +276,8 @@ std::string density_table(const LoadedSurvey& survey, const DensityResult& resul
     }
     out << pooled.render();
     out << "  homogeneity: Pearson X2 of plot counts against area-proportional expectations; "
-           "(MC) = Monte Carlo p-value, used when an expected count is below 5\n\n";
+           "(MC) = Monte Carlo p-value, used when an expected count is below 5;\n"
+           "  dispersion = X2 / df (about 1 when the plots share one intensity)\n\n";
   }
   if (result.composition) {
     const auto& c = *result.composition;

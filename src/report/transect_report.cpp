@@ -153,20 +153,38 @@ std::string transect_table(const LoadedTransects& input, const TransectResult& r
   out << "  truncation " << format_significant(result.truncation_m, 4) << " m (" << result.truncated
       << " detections beyond it); density per " << unit << "; "
       << format_general(100.0 * result.confidence) << "% log-normal intervals, Satterthwaite df\n\n";
-  TextTable table({"species", "stratum", "model", "n", lines ? "effort_km" : "visits", lines ? "n/L" : "n/visit",
-                   lines ? "ESW_m" : "rho_m", "P_a", "E(s)", "density", "CV", "interval", "abundance"},
-                  3);
+  const double percent = 100.0 * result.confidence;
+  const std::string level = format_fixed(percent, percent == std::round(percent) ? 0 : 1) + "%";
+  bool bootstrapped = false;
+  for (const auto& e : result.results) bootstrapped = bootstrapped || e.bootstrap_ci.has_value();
+  std::vector<std::string> columns{"species", "stratum", "model", "n", lines ? "effort_km" : "visits",
+                                   lines ? "n/L" : "n/visit", lines ? "ESW_m" : "rho_m", "P_a", "E(s)",
+                                   "density", "CV", level + " interval"};
+  if (bootstrapped) columns.push_back(level + " bootstrap");
+  columns.push_back("abundance");
+  TextTable table(columns, 3);
+  const auto interval_text = [](const Interval& ci) {
+    return "[" + format_significant(ci.lower, 4) + ", " + format_significant(ci.upper, 4) + "]";
+  };
   for (const auto& e : result.results) {
     const double width = lines ? e.fit.effective_strip_width_m : std::sqrt(e.fit.effective_area_m2 / pi);
-    table.add_row({label(e.species, "(all)"), label(e.stratum, "(all)"), model_text(e.fit.function.model()),
-                   std::to_string(e.n), format_significant(e.effort, 4), format_significant(e.encounter.rate, 4),
-                   format_significant(width, 4), format_fixed(e.fit.detection_probability, 3),
-                   format_significant(e.mean_size, 3), format_significant(e.density, 4),
-                   std::isfinite(e.density_cv) ? format_fixed(e.density_cv, 3) : "-",
-                   "[" + format_significant(e.density_ci.lower, 4) + ", " + format_significant(e.density_ci.upper, 4) + "]",
-                   e.abundance ? format_significant(*e.abundance, 4) : "-"});
+    std::vector<std::string> row{label(e.species, "(all)"), label(e.stratum, "(all)"), model_text(e.fit.function.model()),
+                                 std::to_string(e.n), format_significant(e.effort, 4), format_significant(e.encounter.rate, 4),
+                                 format_significant(width, 4), format_fixed(e.fit.detection_probability, 3),
+                                 format_significant(e.mean_size, 3), format_significant(e.density, 4),
+                                 std::isfinite(e.density_cv) ? format_fixed(e.density_cv, 3) : "-",
+                                 interval_text(e.density_ci)};
+    if (bootstrapped) row.push_back(e.bootstrap_ci ? interval_text(*e.bootstrap_ci) : "-");
+    row.push_back(e.abundance ? format_significant(*e.abundance, 4) : "-");
+    table.add_row(std::move(row));
   }
-  out << table.render() << "\n";
+  out << table.render();
+  out << "  " << (lines ? "n/L: detections per km; ESW_m: effective strip half-width (m)"
+                        : "n/visit: detections per visit; rho_m: effective detection radius (m)")
+      << "; P_a: probability of detecting an animal within the truncation distance; E(s): mean cluster size;\n"
+         "  density per " << unit << "; CV: its coefficient of variation (delta method); interval: " << level
+      << " log-normal" << (bootstrapped ? "; bootstrap: " + level + " percentile interval over resampled transects" : std::string())
+      << "\n\n";
   out << "Goodness of fit and model selection\n";
   TextTable gof({"species", "model", "AIC", "dAIC", "chi2 p", "KS p", "CvM p"}, 2);
   std::set<std::string> shown;

@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <charconv>
 #include <cmath>
+#include <mutex>
 #include <numeric>
 #include <set>
 
@@ -343,6 +344,8 @@ TransectResult analyse_transects(const TransectSurvey& survey, const TransectOpt
     for (std::size_t t = 0; t < survey.transects.size(); ++t)
       by_stratum[survey.transects[t].stratum.value_or("")].push_back(t);
     std::vector<std::vector<double>> replicates(options.bootstrap, std::vector<double>(rows.size(), nan_value));
+    std::mutex progress_mutex;
+    std::size_t replicates_done = 0;
     parallel_for(options.bootstrap, options.threads, [&](std::size_t b) {
       Engine engine(derive_seed(options.seed, "transect-bootstrap/" + std::to_string(b)));
       TransectSurvey replicate;
@@ -378,6 +381,10 @@ TransectResult analyse_transects(const TransectSurvey& survey, const TransectOpt
         const auto& refit = refits.at(fit_key);
         if (!refit || !refit->converged) continue;
         replicates[b][r] = row_numbers(replicate, rows[r], *refit, w).density * per_unit;
+      }
+      if (options.progress) {
+        const std::lock_guard<std::mutex> lock(progress_mutex);
+        options.progress(++replicates_done, options.bootstrap);
       }
     });
     for (std::size_t r = 0; r < rows.size(); ++r) {

@@ -61,13 +61,102 @@ TEST(BatchCli, EqualsThePerFileCommands) {
   }
   EXPECT_EQ(density_seen, density.size());
   EXPECT_EQ(randomness_seen, randomness.size());
-  std::ifstream csv(out.file("all/density.csv"));
-  std::string header;
-  std::getline(csv, header);
-  EXPECT_EQ(header.rfind("file,plot,species,count,area,intensity,ci_low,ci_high", 0), 0u);
-  std::ifstream rcsv(out.file("all/randomness.csv"));
-  std::getline(rcsv, header);
-  EXPECT_EQ(header, "file,plot,species,n,quadrat_p,clark_evans_ratio,clark_evans_p,mad_p,dclf_p,verdict");
+  // The equal-columns rule: batch tables are the single commands' --csv tables with `file` in front.
+  const auto first_line = [](const std::string& text) { return text.substr(0, text.find('\n')); };
+  const std::string file = sample("season/north.gpkg");
+  const std::string density_csv = run_cli(file + " --plots " + file + " --csv -").out;
+  const std::string randomness_csv = run_cli("randomness " + file + " --plots " + file + " --simulations 49 --csv -").out;
+  EXPECT_EQ(first_line(read(out.file("all/density.csv"))), "file," + first_line(density_csv));
+  EXPECT_EQ(first_line(read(out.file("all/randomness.csv"))), "file," + first_line(randomness_csv));
+  // And the rows: north's rows are the single command's rows with the file name in front.
+  std::istringstream rows(density_csv);
+  std::string line;
+  std::getline(rows, line);
+  while (std::getline(rows, line))
+    EXPECT_NE(read(out.file("all/density.csv")).find("north.gpkg," + line + "\n"), std::string::npos) << line;
+}
+
+// Season pooling: the batch over the four plot files equals `stipple density` over the four
+// plots at once (reserve.gpkg holds the same plots and sightings as season/).
+TEST(BatchCli, SeasonPoolingEqualsDensityOverAllPlots) {
+  TempDir out;
+  ASSERT_EQ(run_cli(batch(sample("season"), out.file("o"), "--analyses density --detection " + sample("detection.csv"))).exit_code, 0);
+  const auto all = nlohmann::json::parse(run_cli(sample("reserve.gpkg") + " --plots " + sample("reserve.gpkg") +
+                                                 " --detection " + sample("detection.csv") + " --json -").out);
+  const auto pooled = nlohmann::json::parse(read(out.file("o/pooled.json")));
+  ASSERT_EQ(pooled["pooled"].size(), all["pooled"].size());
+  // Relative 1e-12: the same sums, in another order of plots (floating-point rounding only).
+  const auto near = [](double a, double b) { return std::abs(a - b) <= 1e-12 * std::max(1.0, std::abs(b)); };
+  for (std::size_t i = 0; i < all["pooled"].size(); ++i) {
+    const auto& a = pooled["pooled"][i];
+    const auto& b = all["pooled"][i];
+    EXPECT_EQ(a["species"], b["species"]);
+    EXPECT_EQ(a["count"], b["count"]);
+    EXPECT_EQ(a["plots"], b["plots"]);
+    for (const char* key : {"area", "intensity", "corrected_intensity"})
+      EXPECT_TRUE(near(a[key].get<double>(), b[key].get<double>())) << key << " " << a[key] << " " << b[key];
+    for (std::size_t k = 0; k < 2; ++k) {
+      EXPECT_TRUE(near(a["ci"][k].get<double>(), b["ci"][k].get<double>()));
+      EXPECT_TRUE(near(a["corrected_ci"][k].get<double>(), b["corrected_ci"][k].get<double>()));
+    }
+    for (const char* key : {"statistic", "df", "p_value", "dispersion_ratio"})
+      EXPECT_TRUE(near(a["homogeneity"][key].get<double>(), b["homogeneity"][key].get<double>())) << key;
+    for (std::size_t k = 0; k < 2; ++k)
+      EXPECT_TRUE(near(a["homogeneity"]["corrected_between_plot_ci"][k].get<double>(),
+                       b["homogeneity"]["corrected_between_plot_ci"][k].get<double>()));
+  }
+  EXPECT_TRUE(near(pooled["composition"]["statistic"].get<double>(), all["composition"]["statistic"].get<double>()));
+  EXPECT_EQ(pooled["composition"]["df"], all["composition"]["df"]);
+  EXPECT_FALSE(pooled["cautions"].empty());
+  // The hazel plots differ (homogeneity p = 0.002): the season warning says so.
+  EXPECT_NE(pooled["warnings"].dump().find("hazel"), std::string::npos);
+  const std::string csv = read(out.file("o/pooled.csv"));
+  EXPECT_EQ(csv.rfind("species,plots,count,area,unit,intensity,ci_low,ci_high,", 0), 0u) << csv;
+  for (const char* column : {"homogeneity_statistic", "homogeneity_df", "homogeneity_p", "dispersion_ratio"})
+    EXPECT_NE(csv.substr(0, csv.find('\n')).find(column), std::string::npos) << column;
+  EXPECT_NE(csv.find("\n,4,952,"), std::string::npos) << csv;  // all species together: empty species
+}
+
+// A transect file in the season folder is not a plot file: it once became a plot of hares.
+TEST(BatchCli, InputsOfTheWrongKindAreSkippedWithAReason) {
+  TempDir in;
+  fs::copy_file(sample("season/north.gpkg"), in.path() / "north.gpkg");
+  fs::copy_file(sample("transects.gpkg"), in.path() / "transects.gpkg");
+  TempDir out;
+  const auto r = run_cli(batch(in.path().string(), out.file("o")));
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  EXPECT_NE(r.err.find("skipped: transects.gpkg: holds transect lines"), std::string::npos) << r.err;
+  const std::string failures = read(out.file("o/failures.csv"));
+  EXPECT_NE(failures.find("transects.gpkg,skipped,holds transect lines (layer 'lines'); not a plot file (the transect analysis fits it)"), std::string::npos)
+      << failures;
+  EXPECT_EQ(read(out.file("o/density.csv")).find("transects.gpkg"), std::string::npos);
+  const auto run = nlohmann::json::parse(read(out.file("o/run.json")));
+  EXPECT_EQ(run["inputs"][1]["kind"], "transects");
+  EXPECT_EQ(run["inputs"][1]["status"], "skipped");
+  // And the other way round: plot files are skipped by a transect-only batch.
+  const auto t = run_cli(batch(in.path().string(), out.file("t"), "--analyses transect --distance-field distance --size-field size"));
+  ASSERT_EQ(t.exit_code, 0) << t.err;
+  EXPECT_NE(read(out.file("t/failures.csv")).find("north.gpkg,skipped,holds plots and sightings; not a transect file"),
+            std::string::npos);
+  EXPECT_NE(read(out.file("t/transect.csv")).find("transects.gpkg,"), std::string::npos);
+}
+
+// A folder of per-plot sighting Shapefiles over one plots layer.
+TEST(BatchCli, OneSharedPlotsLayerForAFolderOfSightingFiles) {
+  TempDir out;
+  const auto r = run_cli(batch(sample("shapefiles"), out.file("o"),
+                               "--pattern '*-sightings.shp' --plots " + sample("reserve.gpkg") +
+                                   " --plots-layer plots --analyses density"));
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  const std::string density = read(out.file("o/density.csv"));
+  EXPECT_NE(density.find("north-sightings.shp,plot,north,birch,81,"), std::string::npos) << density;
+  // Each file covers only its own plot: north-sightings.shp has no row for burn.
+  EXPECT_EQ(density.find("north-sightings.shp,plot,burn,"), std::string::npos) << density;
+  const auto pooled = nlohmann::json::parse(read(out.file("o/pooled.json")));
+  EXPECT_EQ(pooled["plots"], 4);
+  EXPECT_EQ(pooled["pooled"].back()["count"], 952);  // every sighting of the reserve, once
+  const auto run = nlohmann::json::parse(read(out.file("o/run.json")));
+  EXPECT_NE(run["inputs"][0]["plots_path"].get<std::string>().find("reserve.gpkg"), std::string::npos);
 }
 
 TEST(BatchCli, ShardsMergeToTheSingleRun) {
@@ -78,7 +167,8 @@ TEST(BatchCli, ShardsMergeToTheSingleRun) {
   ASSERT_EQ(run_cli(batch(sample("season"), out.file("s3"), "--gis --shard 3/3")).exit_code, 0);
   const auto m = run_cli("merge " + out.file("s3") + " " + out.file("s1") + " " + out.file("s2") + " --out " + out.file("merged"));
   ASSERT_EQ(m.exit_code, 0) << m.err;
-  for (const char* f : {"density.csv", "density.json", "randomness.csv", "randomness.json", "failures.csv", "run.json"})
+  for (const char* f : {"density.csv", "density.json", "randomness.csv", "randomness.json", "interactions.csv",
+                        "interactions.json", "pooled.csv", "pooled.json", "failures.csv", "figures.csv", "run.json"})
     EXPECT_EQ(read(out.file(std::string("one/") + f)), read(out.file(std::string("merged/") + f))) << f;
   // The GeoPackage: same features in the same order.
   GDALDatasetUniquePtr a(GDALDataset::Open(out.file("one/plot-results.gpkg").c_str(), GDAL_OF_VECTOR));
@@ -103,10 +193,20 @@ TEST(BatchCli, ACorruptFileIsReportedWhileOthersFinish) {
   EXPECT_EQ(r.exit_code, 1) << r.err;
   EXPECT_NE(r.err.find("failed: broken.gpkg"), std::string::npos) << r.err;
   const std::string failures = read(out.file("o/failures.csv"));
-  EXPECT_EQ(failures.rfind("file,reason\nbroken.gpkg,", 0), 0u) << failures;
+  EXPECT_EQ(failures.rfind("file,status,reason\nbroken.gpkg,failed,", 0), 0u) << failures;
   const std::string density = read(out.file("o/density.csv"));
-  EXPECT_NE(density.find("north.gpkg,north,birch"), std::string::npos);
-  EXPECT_NE(density.find("glade.gpkg,glade,birch"), std::string::npos);
+  EXPECT_NE(density.find("north.gpkg,plot,north,birch"), std::string::npos);
+  EXPECT_NE(density.find("glade.gpkg,plot,glade,birch"), std::string::npos);
+}
+
+// One option, one default: --simulations is 999 in density, randomness and batch alike.
+TEST(BatchCli, SimulationsHaveOneDefaultInEveryCommand) {
+  TempDir out;
+  const std::string file = sample("season/north.gpkg");
+  EXPECT_EQ(nlohmann::json::parse(run_cli(file + " --plots " + file + " --json -").out)["simulations"], 999);
+  EXPECT_EQ(nlohmann::json::parse(run_cli("randomness " + file + " --plots " + file + " --only quadrat --json -").out)["simulations"], 999);
+  ASSERT_EQ(run_cli("batch " + file + " --out " + out.file("o") + " --analyses density --quiet").exit_code, 0);
+  EXPECT_EQ(nlohmann::json::parse(read(out.file("o/run.json")))["simulations"], 999);
 }
 
 TEST(BatchCli, ShardCountsAreWholeNumbers) {
@@ -137,6 +237,19 @@ TEST(BatchCli, GisOutputsReadBackThroughGdal) {
     }
   }
   EXPECT_TRUE(found);
+  for (const char* field : {"unit", "detection_probability", "corrected_ci_low", "corrected_ci_high"})
+    EXPECT_GE(layer->GetLayerDefn()->GetFieldIndex(field), 0) << field;
+  // The wide layer: one feature per plot, one column per species.
+  OGRLayer* wide = gpkg->GetLayerByName("plot_species");
+  ASSERT_NE(wide, nullptr);
+  EXPECT_EQ(wide->GetFeatureCount(), 4);
+  for (const char* field : {"file", "plot", "unit", "all_species", "d_birch", "d_hazel", "d_juniper", "d_wood_ant"})
+    EXPECT_GE(wide->GetLayerDefn()->GetFieldIndex(field), 0) << field;
+  for (auto& f : *wide)
+    if (std::string(f->GetFieldAsString("plot")) == "north") {
+      EXPECT_NEAR(f->GetFieldAsDouble("d_birch"), 81.0, 1e-9);  // p = 1 for birch: corrected = observed
+      EXPECT_STREQ(f->GetFieldAsString("unit"), "ha");
+    }
   // The surface integrates over the window to about the observed count (Diggle's edge
   // correction keeps the mass inside the window; tolerance 3%, common practice).
   GDALDatasetUniquePtr tif(GDALDataset::Open(out.file("o/surfaces/north/birch.tif").c_str(), GDAL_OF_RASTER));
@@ -152,6 +265,37 @@ TEST(BatchCli, GisOutputsReadBackThroughGdal) {
   for (const double v : values)
     if (std::isfinite(v)) total += v * transform[1] * -transform[5] / 1e4;  // per ha -> count
   EXPECT_NEAR(total, 81.0, 0.03 * 81.0);
+}
+
+// A file whose automatic CRS differs (lon/lat input gets its own equal-area CRS) is reprojected
+// into the batch CRS, the first input's: every feature of the GeoPackage is in one CRS.
+TEST(BatchCli, GisFeaturesOfEveryFileAreInTheBatchCrs) {
+  if (std::system("command -v ogr2ogr > /dev/null 2>&1") != 0) GTEST_SKIP() << "ogr2ogr (gdal-bin) not installed";
+  TempDir in;
+  fs::copy_file(sample("season/burn.gpkg"), in.path() / "burn.gpkg");
+  const std::string command = "ogr2ogr -t_srs EPSG:4326 " + (in.path() / "north.gpkg").string() + " " +
+                              sample("season/north.gpkg") + " > /dev/null 2>&1";
+  ASSERT_EQ(std::system(command.c_str()), 0);
+  TempDir out;
+  const auto r = run_cli(batch(in.path().string(), out.file("o"), "--gis --analyses density"));
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  const auto run = nlohmann::json::parse(read(out.file("o/run.json")));
+  EXPECT_EQ(run["crs"], "EPSG:32630");
+  EXPECT_NE(run["inputs"][1]["crs"], "EPSG:32630");  // north in lon/lat: its own local CRS
+  EXPECT_NE(run["warnings"].dump().find("reprojected to the batch CRS EPSG:32630"), std::string::npos) << run["warnings"];
+  GDALDatasetUniquePtr gpkg(GDALDataset::Open(out.file("o/plot-results.gpkg").c_str(), GDAL_OF_VECTOR));
+  ASSERT_TRUE(gpkg);
+  OGRLayer* layer = gpkg->GetLayerByName("plot_results");
+  EXPECT_STREQ(layer->GetSpatialRef()->GetAuthorityCode(nullptr), "32630");
+  for (auto& f : *layer) {
+    // In UTM 30N every plot's area is within 0.1% of the area analysed in its own CRS (the
+    // CRS rule's tolerance), and north sits where burn's CRS puts it (metres, not degrees).
+    const double area = f->GetFieldAsDouble("area") * 1e4;  // ha -> m2
+    EXPECT_NEAR(f->GetGeometryRef()->toMultiPolygon()->get_Area(), area, 1e-3 * area) << f->GetFieldAsString("plot");
+    OGREnvelope e;
+    f->GetGeometryRef()->getEnvelope(&e);
+    EXPECT_GT(e.MinX, 1e5) << f->GetFieldAsString("plot");
+  }
 }
 
 TEST(BatchCli, ReRunGivesIdenticalFiles) {
@@ -173,7 +317,8 @@ TEST(BatchCli, ReportRendersInHeadlessChromium) {
   TempDir out;
   ASSERT_EQ(run_cli(batch(sample("season"), out.file("o"), "--report")).exit_code, 0);
   const std::string html = read(out.file("o/report.html"));
-  for (const char* part : {"SHA-256", "EPSG:32630", "Methods", "Garwood", "Plot maps", "L-function envelopes", "cautions"})
+  for (const char* part : {"SHA-256", "EPSG:32630", "Methods", "Garwood", "Plot maps", "L-function envelopes", "cautions",
+                           "The season pooled", "Between species", "leaves the global envelope", "(per ha)"})
     EXPECT_NE(html.find(part), std::string::npos) << part;
   EXPECT_EQ(html.find("src=\"http"), std::string::npos);  // self-contained
   const std::string png = out.file("shot.png");
@@ -220,6 +365,28 @@ TEST(BatchCli, ReportIdsAreUniqueAndEveryReferenceResolves) {
   EXPECT_GT(references, 100u);
 }
 
+// The report is written from the run: methods from the options used, units in every header,
+// references for what it cites, cautions of the analyses that ran.
+TEST(BatchCli, ReportTellsTheRunItWasMadeFrom) {
+  TempDir out;
+  ASSERT_EQ(run_cli(batch(sample("season"), out.file("o"), "--report --edge-correction border --rmax 12 --quadrats 3x3")).exit_code, 0);
+  const std::string html = read(out.file("o/report.html"));
+  for (const char* part : {"edge correction: border", "up to 12 m", "3x3 grid", "49 binomial-process simulations",
+                           "Clark P.J. &amp; Evans F.C. (1954)", "Garwood F. (1936)"})
+    EXPECT_NE(html.find(part), std::string::npos) << part;
+  EXPECT_EQ(html.find("Donnelly K.P."), std::string::npos);  // not used with --edge-correction border: not cited
+  EXPECT_EQ(html.find("Buckland"), std::string::npos);       // no transect analysis: no transect reference or caution
+  // Density only: no randomness cautions, no randomness references.
+  ASSERT_EQ(run_cli(batch(sample("season"), out.file("d"), "--report --analyses density")).exit_code, 0);
+  const std::string density_only = read(out.file("d/report.html"));
+  EXPECT_EQ(density_only.find("CSR tests assume"), std::string::npos);
+  EXPECT_EQ(density_only.find("Ripley B.D."), std::string::npos);
+  EXPECT_NE(density_only.find("Intervals assume the sightings"), std::string::npos);
+  // `stipple report` rebuilds the same page from the folder through the loader.
+  ASSERT_EQ(run_cli("report " + out.file("o") + " --out " + out.file("again.html")).exit_code, 0);
+  EXPECT_EQ(read(out.file("again.html")), html);
+}
+
 TEST(BatchCli, RunFileSetsAnalysesAndOptions) {
   TempDir dir;
   const auto run = dir.write("run.toml", "analyses = [\"density\"]\nunit = \"km2\"\n[randomness]\nsimulations = 19\n");
@@ -227,7 +394,7 @@ TEST(BatchCli, RunFileSetsAnalysesAndOptions) {
   ASSERT_EQ(r.exit_code, 0) << r.err;
   EXPECT_TRUE(fs::exists(dir.file("o/density.csv")));
   EXPECT_FALSE(fs::exists(dir.file("o/randomness.csv")));
-  EXPECT_NE(read(dir.file("o/density.csv")).find(",km2\n"), std::string::npos);
+  EXPECT_NE(read(dir.file("o/density.csv")).find(",km2,"), std::string::npos);
   const auto bad = dir.write("bad.toml", "analyses = [\"density\"\nunit = 3\n");
   const auto b = run_cli(batch(sample("season"), dir.file("p"), "--run-file " + bad));
   EXPECT_EQ(b.exit_code, 2);
@@ -264,7 +431,7 @@ TEST(BatchCli, ShapefilePairsAndBadInputs) {
   TempDir out;
   const auto r = run_cli(batch(sample("shapefiles"), out.file("o"), "--pattern '*-sightings.shp' --plots-name '{*}-plot.shp' --analyses density"));
   ASSERT_EQ(r.exit_code, 0) << r.err;
-  EXPECT_NE(read(out.file("o/density.csv")).find("north-sightings.shp,north,birch,81"), std::string::npos);
+  EXPECT_NE(read(out.file("o/density.csv")).find("north-sightings.shp,plot,north,birch,81,"), std::string::npos);
   EXPECT_EQ(run_cli(batch(sample("season"), out.file("x"), "--shard 4/3")).exit_code, 2);
   EXPECT_EQ(run_cli(batch(sample("season"), out.file("x"), "--pattern '*.nothing'")).exit_code, 2);
   EXPECT_EQ(run_cli(batch("/no/such/folder", out.file("x"))).exit_code, 2);
@@ -358,14 +525,14 @@ TEST(BatchCli, ReportNeverReplacesTheBatchFilesOrItsInputs) {
   TempDir out;
   ASSERT_EQ(run_cli(batch(sample("season"), out.file("o"), "--analyses density")).exit_code, 0);
   const std::string before = read(out.file("o/density.csv"));
-  test::expect_refused(run_cli("report " + out.file("o") + " --output " + out.file("o/density.csv")),
+  test::expect_refused(run_cli("report " + out.file("o") + " --out " + out.file("o/density.csv")),
                        "refusing to write over an input");
   EXPECT_EQ(read(out.file("o/density.csv")), before);
   // An input listed in run.json.
   const auto run = nlohmann::json::parse(read(out.file("o/run.json")));
   const std::string input = run["inputs"][0]["path"].get<std::string>();
   const std::string input_bytes = read(input);
-  test::expect_refused(run_cli("report " + out.file("o") + " --output " + input), "refusing to write over an input");
+  test::expect_refused(run_cli("report " + out.file("o") + " --out " + input), "refusing to write over an input");
   EXPECT_EQ(read(input), input_bytes);
   EXPECT_EQ(run_cli("report " + out.file("o")).exit_code, 0);  // its own report.html is fine
 }

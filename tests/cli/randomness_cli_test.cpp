@@ -2,6 +2,7 @@
 
 #include <filesystem>
 #include <fstream>
+#include <sstream>
 
 #include <gtest/gtest.h>
 #include <nlohmann/json.hpp>
@@ -99,6 +100,26 @@ TEST(RandomnessCli, WritesCurvesAndFigures) {
   std::string svg_text((std::istreambuf_iterator<char>(s)), std::istreambuf_iterator<char>());
   EXPECT_NE(svg_text.find("<svg"), std::string::npos);
   EXPECT_GT(std::filesystem::file_size(png), 10000u);  // a drawn figure, not a blank page
+}
+
+// --csv: one row per plot x species with every p-value and the verdict (the curves are on --curves).
+TEST(RandomnessCli, CsvHasOneRowPerGroupWithEveryPValue) {
+  const auto r = run_cli(demo("--csv - --json " + TempDir().file("unused.json")));
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  std::istringstream csv(r.out);
+  std::string header;
+  std::getline(csv, header);
+  EXPECT_EQ(header, "plot,species,n,quadrat_statistic,quadrat_df,quadrat_p,quadrat_p_method,clark_evans_ratio,"
+                    "clark_evans_z,clark_evans_p,clark_evans_p_method,clark_evans_edge_correction,l_rmax,l_mad_p,"
+                    "l_dclf_p,l_erl_p,l_departures,simulations,verdict,verdict_basis");
+  std::size_t rows = 0;
+  bool hazel_north = false;
+  for (std::string line; std::getline(csv, line);) {
+    ++rows;
+    if (line.rfind("north,hazel,", 0) == 0) hazel_north = line.find(",clustered,") != std::string::npos;
+  }
+  EXPECT_EQ(rows, 20u);  // 4 plots x (4 species + all together)
+  EXPECT_TRUE(hazel_north);  // the demo's hazel is a Thomas process (generating-values.json)
 }
 
 TEST(RandomnessCli, BorderCorrectionsRun) {

@@ -91,6 +91,27 @@ TEST(TransectCli, BinnedPooledBootstrapAndFigures) {
   std::string header;
   std::getline(csv, header);
   EXPECT_EQ(header.rfind("species,stratum,model", 0), 0u);
+  // The bootstrap interval is in the CSV (and equals the JSON's) and in the table.
+  const auto column = [&](const std::string& name) {
+    std::size_t index = 0;
+    for (std::size_t at = 0; at < header.find(name); ++at) index += header[at] == ',' ? 1u : 0u;
+    return index;
+  };
+  ASSERT_NE(header.find("bootstrap_ci_low"), std::string::npos) << header;
+  std::string row;
+  std::getline(csv, row);
+  std::vector<std::string> cells(1);
+  for (const char c : row) {
+    if (c == ',') cells.emplace_back();
+    else cells.back() += c;
+  }
+  EXPECT_DOUBLE_EQ(std::stod(cells.at(column("bootstrap_ci_low"))), doc["results"][0]["bootstrap_ci"][0].get<double>());
+  EXPECT_DOUBLE_EQ(std::stod(cells.at(column("bootstrap_ci_high"))), doc["results"][0]["bootstrap_ci"][1].get<double>());
+  const auto table = run_cli(demo("--bootstrap 49"));
+  ASSERT_EQ(table.exit_code, 0) << table.err;
+  EXPECT_NE(table.out.find("95% bootstrap"), std::string::npos) << table.out;
+  EXPECT_NE(table.out.find("95% interval"), std::string::npos) << table.out;
+  EXPECT_NE(table.out.find("P_a: probability of detecting"), std::string::npos) << table.out;
 }
 
 TEST(TransectCli, EffortPlanning) {

@@ -4,6 +4,7 @@
 
 #include <gtest/gtest.h>
 
+#include "stipple/error.hpp"
 #include "stipple/simulate/point_process.hpp"
 
 namespace stipple {
@@ -30,6 +31,38 @@ Survey make_survey(const std::vector<double>& areas_m2,
     x0 += side + 10.0;
   }
   return assign_to_plots(sightings, std::move(plots));
+}
+
+// Counts alone give the survey's result exactly, and appending surveys (a season of files)
+// equals one survey of all their plots.
+TEST(EstimateDensity, CountsAloneAndAppendedSurveysGiveTheSameResult) {
+  const Survey all = make_survey({1e4, 2e4, 5e3}, {{12, 3}, {30, 9}, {4, 0}});
+  const Survey first = make_survey({1e4, 2e4}, {{12, 3}, {30, 9}});
+  const Survey second = make_survey({5e3}, {{4, 0}});
+  DensityOptions options;
+  const DensityResult direct = estimate_density(all, options);
+  const DensityResult counted = estimate_density(PlotCounts::of(all), options);
+  PlotCounts season = PlotCounts::of(first);
+  PlotCounts later = PlotCounts::of(second);
+  later.species = {"a"};  // the second file saw only species a
+  later.counts = {{4}};
+  season.append(later, "file2:");
+  const DensityResult appended = estimate_density(season, options);
+  ASSERT_EQ(direct.pooled.size(), 3u);
+  for (const DensityResult* r : {&counted, &appended}) {
+    ASSERT_EQ(r->pooled.size(), direct.pooled.size());
+    for (std::size_t i = 0; i < direct.pooled.size(); ++i) {
+      EXPECT_EQ(r->pooled[i].count, direct.pooled[i].count);
+      // Relative 1e-12: a plot drawn at another x offset has its area rounded differently.
+      const auto near = [](double a, double b) { return std::abs(a - b) <= 1e-12 * std::abs(b); };
+      EXPECT_TRUE(near(r->pooled[i].area, direct.pooled[i].area));
+      EXPECT_TRUE(near(r->pooled[i].ci.upper, direct.pooled[i].ci.upper));
+      EXPECT_TRUE(near(r->pooled[i].homogeneity->chi_square.statistic, direct.pooled[i].homogeneity->chi_square.statistic));
+      EXPECT_EQ(r->pooled[i].homogeneity->chi_square.df, direct.pooled[i].homogeneity->chi_square.df);
+    }
+  }
+  EXPECT_EQ(appended.estimates[6].plot, "file2:P1");
+  EXPECT_THROW(season.append(later, "file2:"), InputError);  // the same plot twice
 }
 
 TEST(EstimateDensity, HomogeneityWorkedExample) {

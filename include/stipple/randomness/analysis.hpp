@@ -4,6 +4,7 @@
 
 #include <cstddef>
 #include <cstdint>
+#include <functional>
 #include <optional>
 #include <string>
 #include <vector>
@@ -36,6 +37,8 @@ struct RandomnessOptions {
   /// Below this many sightings a test that does not reject says `too few to tell`, not
   /// `random`: no CSR test has useful power there (README "Randomness", power table).
   std::size_t min_points_for_random = 10;
+  /// Called on the caller's thread after each group and each species pair: (done, total).
+  std::function<void(std::size_t, std::size_t)> progress;
 };
 
 /// One summary function with its Monte Carlo envelope.

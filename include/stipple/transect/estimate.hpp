@@ -4,6 +4,7 @@
 
 #include <cstddef>
 #include <cstdint>
+#include <functional>
 #include <map>
 #include <optional>
 #include <string>
@@ -93,6 +94,8 @@ struct TransectOptions {
   std::uint64_t seed = default_seed;
   unsigned threads = 0;
   std::optional<double> target_cv;        ///< also report the effort needed for this CV
+  /// Called after each bootstrap replicate (from any thread, one call at a time): (done, total).
+  std::function<void(std::size_t, std::size_t)> progress;
 };
 
 struct ModelComparison {
