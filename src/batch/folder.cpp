@@ -27,24 +27,6 @@ namespace {
 
 using Json = nlohmann::ordered_json;
 
-std::string first_csv_field(const std::string& line) {
-  if (line.empty() || line[0] != '"') return line.substr(0, line.find(','));
-  std::string out;
-  for (std::size_t i = 1; i < line.size(); ++i) {
-    if (line[i] == '"') {
-      if (i + 1 < line.size() && line[i + 1] == '"') {
-        out += '"';
-        ++i;
-      } else {
-        break;
-      }
-    } else {
-      out += line[i];
-    }
-  }
-  return out;
-}
-
 void write_lines(const std::string& path, const std::string& header, const std::vector<std::string>& rows,
                  const std::vector<std::string>& protected_paths) {
   std::string text = header + "\n";
@@ -259,21 +241,17 @@ std::vector<std::string> read_lines(const fs::path& path, std::string& header) {
   return lines;
 }
 
-}  // namespace
-
-void merge_batch_outputs(const std::vector<std::string>& shard_dirs, const std::string& out_dir) {
-  if (shard_dirs.empty()) throw InputError("merge needs at least one shard output folder");
-  make_folder(out_dir);
-  std::vector<std::string> protect = shard_dirs;
-  // Tables: rows of all shards, stably ordered by input name (the first column).
-  for (const char* table : {"density.csv", "randomness.csv", "interactions.csv", "transect.csv", "failures.csv", "figures.csv"}) {
+// Tables: rows of all shards, stably ordered by input name (the first column).
+void merge_tables(const std::vector<std::string>& shard_dirs, const fs::path& out,
+                  const std::vector<std::string>& protect) {
+  for (const char* table : {"density.csv", "randomness.csv", "interactions.csv", "transect.csv", "failures.csv",
+                            "figures.csv"}) {
     std::string header;
     std::vector<std::string> rows;
     bool present = false;
     for (const auto& dir : shard_dirs) {
       const fs::path path = fs::path(dir) / table;
-      std::error_code ec;
-      if (!fs::exists(path, ec)) continue;
+      if (!file_exists(path)) continue;
       present = true;
       std::string h;
       auto lines = read_lines(path, h);
@@ -283,37 +261,43 @@ void merge_batch_outputs(const std::vector<std::string>& shard_dirs, const std::
     }
     if (!present) continue;
     std::stable_sort(rows.begin(), rows.end(), [](const std::string& a, const std::string& b) {
-      return first_csv_field(a) < first_csv_field(b);
+      return csv_cells(a).front() < csv_cells(b).front();
     });
-    write_lines((fs::path(out_dir) / table).string(), header, rows, protect);
+    write_lines((out / table).string(), header, rows, protect);
   }
+}
+
+// JSON twins: records of all shards ordered by file. Returns the density records.
+std::vector<Json> merge_twins(const std::vector<std::string>& shard_dirs, const fs::path& out,
+                              const std::vector<std::string>& protect) {
   std::vector<Json> density_records;
-  for (const char* twin : {"density.json", "randomness.json", "interactions.json", "transect.json"}) {
+  for (const std::string twin : {"density.json", "randomness.json", "interactions.json", "transect.json"}) {
     std::vector<Json> records;
     bool present = false;
     for (const auto& dir : shard_dirs) {
       const fs::path path = fs::path(dir) / twin;
-      std::error_code ec;
-      if (!fs::exists(path, ec)) continue;
+      if (!file_exists(path)) continue;
       present = true;
-      std::ifstream in(path);
-      const Json array = Json::parse(in);
-      for (const auto& r : array) records.push_back(r);
+      for (const auto& r : read_json_file(path)) records.push_back(r);
     }
     if (!present) continue;
     std::stable_sort(records.begin(), records.end(), [](const Json& a, const Json& b) {
       return a["file"].get<std::string>() < b["file"].get<std::string>();
     });
-    write_file_safely((fs::path(out_dir) / twin).string(), json_array_text(records), protect);
-    if (std::string(twin) == "density.json") density_records = std::move(records);
+    write_file_safely((out / twin).string(), json_array_text(records), protect);
+    if (twin == "density.json") density_records = std::move(records);
   }
-  // Manifest: the inputs of every shard, ordered by name; options from the first shard.
+  return density_records;
+}
+
+// Manifest: the inputs of every shard, ordered by name; options from the first shard.
+Json merged_manifest(const std::vector<std::string>& shard_dirs) {
   Json run;
   std::vector<Json> inputs;
   for (const auto& dir : shard_dirs) {
-    std::ifstream in(fs::path(dir) / "run.json");
-    if (!in) throw InputError((fs::path(dir) / "run.json").string() + ": missing; is this a batch output folder?");
-    const Json shard_run = Json::parse(in);
+    const fs::path path = fs::path(dir) / "run.json";
+    if (!file_exists(path)) throw InputError(path.string() + ": missing; is this a batch output folder?");
+    const Json shard_run = read_json_file(path);
     if (run.is_null()) run = shard_run;
     for (const auto& i : shard_run["inputs"]) inputs.push_back(i);
   }
@@ -322,37 +306,36 @@ void merge_batch_outputs(const std::vector<std::string>& shard_dirs, const std::
   });
   run["inputs"] = Json::array();
   for (auto& i : inputs) run["inputs"].push_back(std::move(i));
-  // The season pooled again over the plots of every shard, as one run pools them.
-  if (file_exists(fs::path(shard_dirs.front()) / "pooled.json")) {
-    const DensityResult pooled = pool_records(density_records, run);
-    write_file_safely((fs::path(out_dir) / "pooled.csv").string(), csv_text(pooled_rows(pooled)), protect);
-    Json doc = read_json_file(fs::path(shard_dirs.front()) / "pooled.json");
-    Json records = Json::array();
-    for (const auto& p : pooled.pooled) records.push_back(report_detail::pooled_record(p));
-    doc["plots"] = density_records.empty() ? 0 : [&] {
-      std::set<std::string> ids;
-      for (const auto& r : density_records) ids.insert(r.value("file", "") + ":" + r.value("plot", ""));
-      return ids.size();
-    }();
-    doc["pooled"] = std::move(records);
-    doc["composition"] = report_detail::composition_record(pooled.composition);
-    doc["warnings"] = density_warnings(pooled);
-    write_file_safely((fs::path(out_dir) / "pooled.json").string(), json_text(doc), protect);
-    Json warnings = Json::array();
-    for (const auto& in : run["inputs"])
-      for (const auto& w : in.value("warnings", Json::array())) warnings.push_back(in.value("name", "") + ": " + w.get<std::string>());
-    for (const auto& w : density_warnings(pooled)) warnings.push_back("season: " + w);
-    run["warnings"] = std::move(warnings);
-  }
-  write_file_safely((fs::path(out_dir) / "run.json").string(), json_text(run), protect);
-  // GIS layer: every shard's features, ordered by file.
-  std::vector<std::string> gpkgs;
-  for (const auto& dir : shard_dirs) {
-    std::error_code ec;
-    if (fs::exists(fs::path(dir) / "plot-results.gpkg", ec)) gpkgs.push_back((fs::path(dir) / "plot-results.gpkg").string());
-  }
-  if (!gpkgs.empty()) merge_plot_results(gpkgs, (fs::path(out_dir) / "plot-results.gpkg").string(), protect);
-  // Figures, maps and surfaces: every shard's files, copied.
+  return run;
+}
+
+// The season pooled again over the plots of every shard, as one run pools them; the
+// manifest's warnings gathered again with the season's.
+void merge_pooled(const std::vector<std::string>& shard_dirs, const std::vector<Json>& density_records, Json& run,
+                  const fs::path& out, const std::vector<std::string>& protect) {
+  const DensityResult pooled = pool_records(density_records, run);
+  write_file_safely((out / "pooled.csv").string(), csv_text(pooled_rows(pooled)), protect);
+  Json doc = read_json_file(fs::path(shard_dirs.front()) / "pooled.json");
+  Json records = Json::array();
+  for (const auto& p : pooled.pooled) records.push_back(report_detail::pooled_record(p));
+  std::set<std::string> plots;
+  for (const auto& r : density_records) plots.insert(r.value("file", "") + ":" + r.value("plot", ""));
+  doc["plots"] = plots.size();
+  doc["pooled"] = std::move(records);
+  doc["composition"] = report_detail::composition_record(pooled.composition);
+  doc["warnings"] = density_warnings(pooled);
+  write_file_safely((out / "pooled.json").string(), json_text(doc), protect);
+  Json warnings = Json::array();
+  for (const auto& in : run["inputs"])
+    for (const auto& w : in.value("warnings", Json::array()))
+      warnings.push_back(in.value("name", "") + ": " + w.get<std::string>());
+  for (const auto& w : density_warnings(pooled)) warnings.push_back("season: " + w);
+  run["warnings"] = std::move(warnings);
+}
+
+// Figures, maps and surfaces: every shard's files, copied.
+void copy_figure_files(const std::vector<std::string>& shard_dirs, const fs::path& out,
+                       const std::vector<std::string>& protect) {
   for (const auto& dir : shard_dirs) {
     for (const char* sub : {"figures", "maps", "surfaces"}) {
       const fs::path from = fs::path(dir) / sub;
@@ -360,7 +343,7 @@ void merge_batch_outputs(const std::vector<std::string>& shard_dirs, const std::
       if (!fs::is_directory(from, ec)) continue;
       for (auto it = fs::recursive_directory_iterator(from, ec); it != fs::recursive_directory_iterator(); ++it) {
         if (!it->is_regular_file(ec)) continue;
-        const fs::path target = fs::path(out_dir) / sub / fs::relative(it->path(), from, ec);
+        const fs::path target = out / sub / fs::relative(it->path(), from, ec);
         make_folder(target.parent_path().string());
         std::ifstream in(it->path(), std::ios::binary);
         std::stringstream content;
@@ -371,12 +354,120 @@ void merge_batch_outputs(const std::vector<std::string>& shard_dirs, const std::
   }
 }
 
+SeasonRandomnessRow randomness_row_of(const Json& g) {
+  SeasonRandomnessRow row;
+  row.file = g.value("file", "");
+  row.plot = g.value("plot", "");
+  row.species = opt_text(g["species"]);
+  row.n = g.value("n", std::size_t{0});
+  if (g["quadrat"].is_object()) {
+    row.quadrat_monte_carlo = g["quadrat"]["monte_carlo_p_value"].is_number();
+    row.quadrat_p = opt_number(row.quadrat_monte_carlo ? g["quadrat"]["monte_carlo_p_value"] : g["quadrat"]["p_value"]);
+  }
+  if (g["clark_evans"].is_object()) {
+    const Json& c = g["clark_evans"];
+    row.clark_evans_ratio = opt_number(c["ratio"]);
+    row.clark_evans_p = opt_number(c["monte_carlo_p_value"].is_number() ? c["monte_carlo_p_value"] : c["p_value"]);
+  }
+  if (g["envelope"].is_object()) {
+    const Json& e = g["envelope"];
+    row.mad_p = opt_number(e["mad_p_value"]);
+    row.dclf_p = opt_number(e["dclf_p_value"]);
+    row.erl_p = opt_number(e["erl_p_value"]);
+    row.rmax_m = opt_number(e["rmax"]);
+    row.departures = departures_of(e["departures"]);
+  }
+  row.verdict = g.value("verdict", "");
+  return row;
+}
+
+SeasonInteractionRow interaction_row_of(const Json& i) {
+  return {i.value("file", ""),       i.value("plot", ""),          i.value("species_a", ""),
+          i.value("species_b", ""),  i.value("n_a", std::size_t{0}), i.value("n_b", std::size_t{0}),
+          i.value("p_value", 1.0),   i.value("direction", ""),     departures_of(i["departures"])};
+}
+
+SeasonTransectRow transect_row_of(const Json& e) {
+  SeasonTransectRow row;
+  row.file = e.value("file", "");
+  row.species = opt_text(e["species"]);
+  row.stratum = opt_text(e["stratum"]);
+  row.model = e.value("model", "");
+  // "adjustments": ["cosine 2", "cosine 3"]: the series' name and how many terms.
+  const Json adjustments = e.value("adjustments", Json::array());
+  if (!adjustments.empty() && adjustments[0].is_string()) {
+    const std::string first = adjustments[0].get<std::string>();
+    row.model += " + " + std::to_string(adjustments.size()) + " " + first.substr(0, first.find(' '));
+  }
+  row.n = e.value("n", std::size_t{0});
+  row.lines = e.value("effort_unit", "km") == "km";
+  row.effort = e.value("effort", 0.0);
+  row.effective_width_m = number_or_nan(row.lines ? e["esw"] : e["effective_radius"]);
+  row.detection_probability = number_or_nan(e["detection_probability"]);
+  row.density = e.value("density", 0.0);
+  row.density_cv = opt_number(e["density_cv"]);
+  row.density_ci = interval_of(e["density_ci"]);
+  if (e["bootstrap_ci"].is_array()) row.bootstrap_ci = interval_of(e["bootstrap_ci"]);
+  if (e["gof"].is_object()) row.gof_p = opt_number(e["gof"]["chi_square_p"]);
+  return row;
+}
+
+// pooled.json: the season's pooled estimates and composition test.
+DensityResult pooled_result_of(const Json& doc) {
+  DensityResult pooled;
+  pooled.unit = parse_area_unit(doc.value("unit", "ha"));
+  pooled.confidence = doc.value("confidence", 0.95);
+  pooled.alpha = doc.value("alpha", 0.05);
+  for (const auto& p : doc.value("pooled", Json::array())) pooled.pooled.push_back(pooled_of(p));
+  if (doc["composition"].is_object()) {
+    const Json& c = doc["composition"];
+    CompositionTest t;
+    t.chi_square.statistic = c.value("statistic", 0.0);
+    t.chi_square.df = c.value("df", 0.0);
+    t.p_value = c.value("p_value", 1.0);
+    t.monte_carlo = c.value("p_value_method", "") == "monte-carlo";
+    t.significant = c.value("significant", false);
+    pooled.composition = t;
+  }
+  return pooled;
+}
+
+std::vector<SeasonFigure> figures_of(const fs::path& path) {
+  std::vector<SeasonFigure> figures;
+  std::string header;
+  for (const auto& line : read_lines(path, header)) {
+    const std::vector<std::string> cells = csv_cells(line);
+    if (cells.size() != 4) throw InputError(path.string() + ": damaged line '" + line + "'");
+    figures.push_back({cells[1], cells[2], cells[3]});
+  }
+  return figures;
+}
+
+}  // namespace
+
+void merge_batch_outputs(const std::vector<std::string>& shard_dirs, const std::string& out_dir) {
+  if (shard_dirs.empty()) throw InputError("merge needs at least one shard output folder");
+  make_folder(out_dir);
+  const fs::path out(out_dir);
+  const std::vector<std::string>& protect = shard_dirs;
+  merge_tables(shard_dirs, out, protect);
+  const std::vector<Json> density_records = merge_twins(shard_dirs, out, protect);
+  Json run = merged_manifest(shard_dirs);
+  if (file_exists(fs::path(shard_dirs.front()) / "pooled.json")) merge_pooled(shard_dirs, density_records, run, out, protect);
+  write_file_safely((out / "run.json").string(), json_text(run), protect);
+  // GIS layer: every shard's features, ordered by file.
+  std::vector<std::string> gpkgs;
+  for (const auto& dir : shard_dirs)
+    if (file_exists(fs::path(dir) / "plot-results.gpkg")) gpkgs.push_back((fs::path(dir) / "plot-results.gpkg").string());
+  if (!gpkgs.empty()) merge_plot_results(gpkgs, (out / "plot-results.gpkg").string(), protect);
+  copy_figure_files(shard_dirs, out, protect);
+}
+
 SeasonReport load_batch_folder(const std::string& dir_text) {
   const fs::path dir(dir_text);
   if (!file_exists(dir / "run.json")) throw InputError(dir_text + ": no run.json; is this a stipple batch output folder?");
-  const Json run = read_json_file(dir / "run.json");
   SeasonReport report;
-  load_run(run, report);
+  load_run(read_json_file(dir / "run.json"), report);
   const auto records = [&](const char* name) {
     const fs::path path = dir / name;
     if (!file_exists(path)) return Json::array();
@@ -385,88 +476,15 @@ SeasonReport load_batch_folder(const std::string& dir_text) {
     return array;
   };
   for (const auto& e : records("density.json")) report.densities.push_back({e.value("file", ""), density_estimate_of(e)});
-  for (const auto& g : records("randomness.json")) {
-    SeasonRandomnessRow row;
-    row.file = g.value("file", "");
-    row.plot = g.value("plot", "");
-    row.species = opt_text(g["species"]);
-    row.n = g.value("n", std::size_t{0});
-    if (g["quadrat"].is_object()) {
-      row.quadrat_monte_carlo = g["quadrat"]["monte_carlo_p_value"].is_number();
-      row.quadrat_p = opt_number(row.quadrat_monte_carlo ? g["quadrat"]["monte_carlo_p_value"] : g["quadrat"]["p_value"]);
-    }
-    if (g["clark_evans"].is_object()) {
-      const Json& c = g["clark_evans"];
-      row.clark_evans_ratio = opt_number(c["ratio"]);
-      row.clark_evans_p = opt_number(c["monte_carlo_p_value"].is_number() ? c["monte_carlo_p_value"] : c["p_value"]);
-    }
-    if (g["envelope"].is_object()) {
-      const Json& e = g["envelope"];
-      row.mad_p = opt_number(e["mad_p_value"]);
-      row.dclf_p = opt_number(e["dclf_p_value"]);
-      row.erl_p = opt_number(e["erl_p_value"]);
-      row.rmax_m = opt_number(e["rmax"]);
-      row.departures = departures_of(e["departures"]);
-    }
-    row.verdict = g.value("verdict", "");
-    report.randomness.push_back(std::move(row));
-  }
-  for (const auto& i : records("interactions.json"))
-    report.interactions.push_back({i.value("file", ""), i.value("plot", ""), i.value("species_a", ""),
-                                   i.value("species_b", ""), i.value("n_a", std::size_t{0}), i.value("n_b", std::size_t{0}),
-                                   i.value("p_value", 1.0), i.value("direction", ""), departures_of(i["departures"])});
-  for (const auto& e : records("transect.json")) {
-    SeasonTransectRow row;
-    row.file = e.value("file", "");
-    row.species = opt_text(e["species"]);
-    row.stratum = opt_text(e["stratum"]);
-    row.model = e.value("model", "");
-    // "adjustments": ["cosine 2", "cosine 3"]: the series' name and how many terms.
-    const Json adjustments = e.value("adjustments", Json::array());
-    if (!adjustments.empty() && adjustments[0].is_string()) {
-      const std::string first = adjustments[0].get<std::string>();
-      row.model += " + " + std::to_string(adjustments.size()) + " " + first.substr(0, first.find(' '));
-    }
-    row.n = e.value("n", std::size_t{0});
-    row.lines = e.value("effort_unit", "km") == "km";
-    row.effort = e.value("effort", 0.0);
-    row.effective_width_m = number_or_nan(row.lines ? e["esw"] : e["effective_radius"]);
-    row.detection_probability = number_or_nan(e["detection_probability"]);
-    row.density = e.value("density", 0.0);
-    row.density_cv = opt_number(e["density_cv"]);
-    row.density_ci = interval_of(e["density_ci"]);
-    if (e["bootstrap_ci"].is_array()) row.bootstrap_ci = interval_of(e["bootstrap_ci"]);
-    if (e["gof"].is_object()) row.gof_p = opt_number(e["gof"]["chi_square_p"]);
-    report.transects.push_back(std::move(row));
-  }
+  for (const auto& g : records("randomness.json")) report.randomness.push_back(randomness_row_of(g));
+  for (const auto& i : records("interactions.json")) report.interactions.push_back(interaction_row_of(i));
+  for (const auto& e : records("transect.json")) report.transects.push_back(transect_row_of(e));
   if (file_exists(dir / "pooled.json")) {
     const Json doc = read_json_file(dir / "pooled.json");
-    DensityResult pooled;
-    pooled.unit = parse_area_unit(doc.value("unit", "ha"));
-    pooled.confidence = doc.value("confidence", 0.95);
-    pooled.alpha = doc.value("alpha", 0.05);
-    for (const auto& p : doc.value("pooled", Json::array())) pooled.pooled.push_back(pooled_of(p));
-    if (doc["composition"].is_object()) {
-      const Json& c = doc["composition"];
-      CompositionTest t;
-      t.chi_square.statistic = c.value("statistic", 0.0);
-      t.chi_square.df = c.value("df", 0.0);
-      t.p_value = c.value("p_value", 1.0);
-      t.monte_carlo = c.value("p_value_method", "") == "monte-carlo";
-      t.significant = c.value("significant", false);
-      pooled.composition = t;
-    }
+    report.pooled = pooled_result_of(doc);
     for (const auto& w : doc.value("warnings", Json::array())) report.warnings.push_back("season: " + w.get<std::string>());
-    report.pooled = std::move(pooled);
   }
-  if (file_exists(dir / "figures.csv")) {
-    std::string header;
-    for (const auto& line : read_lines(dir / "figures.csv", header)) {
-      const std::vector<std::string> cells = csv_cells(line);
-      if (cells.size() != 4) throw InputError((dir / "figures.csv").string() + ": damaged line '" + line + "'");
-      report.figures.push_back({cells[1], cells[2], cells[3]});
-    }
-  }
+  if (file_exists(dir / "figures.csv")) report.figures = figures_of(dir / "figures.csv");
   return report;
 }
 

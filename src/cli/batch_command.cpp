@@ -10,7 +10,6 @@
 #include <sstream>
 
 #include <toml++/toml.h>
-#include <unistd.h>
 
 #include "commands.hpp"
 #include "common_options.hpp"
@@ -79,26 +78,61 @@ void check_run_file_keys(const toml::table& file, const std::string& path) {
   if (const auto* t = file["randomness"].as_table()) check(*t, randomness, "randomness.");
 }
 
-// Values of the run file, applied unless the command line names the same option.
-void apply_run_file(BatchCommandOptions& o, CLI::App& command) {
-  toml::table file;
+toml::table parse_run_file(const std::string& path) {
   try {
-    file = toml::parse_file(o.run_file);
+    return toml::parse_file(path);
   } catch (const toml::parse_error& e) {
     std::ostringstream message;
-    message << o.run_file << ": line " << e.source().begin.line << ": " << e.description();
+    message << path << ": line " << e.source().begin.line << ": " << e.description();
     throw InputError(message.str());
   }
-  check_run_file_keys(file, o.run_file);
-  const auto given = [&](const char* option) { return command.get_option(option)->count() > 0; };
-  const auto text = [&](const toml::node_view<toml::node> node, std::string& target, const char* option) {
+}
+
+// Applies run-file values unless the command line names the same option; each value passes
+// the same type and range checks as the option on the command line.
+class RunFileValues {
+ public:
+  RunFileValues(const std::string& path, CLI::App& command) : path_(path), command_(command) {}
+
+  bool given(const char* option) const { return command_.get_option(option)->count() > 0; }
+
+  void text(const toml::node_view<const toml::node> node, std::string& target, const char* option) const {
     if (!node) return;
-    if (!node.is_string()) throw InputError(o.run_file + ": '" + std::string(option).substr(2) + "' must be a string");
+    if (!node.is_string()) throw InputError(path_ + ": '" + key(option) + "' must be a string");
     if (!given(option)) target = *node.value<std::string>();
-  };
-  // A run-file value passes the same range checks as the option on the command line.
-  const auto validate = [&](const char* option, std::string value) {
-    CLI::Option* opt = command.get_option(option);
+  }
+
+  // A path, relative to the run file's folder (not to where the command happens to run).
+  void path(const toml::node_view<const toml::node> node, std::string& target, const char* option) const {
+    text(node, target, option);
+    if (node && !given(option) && !target.empty() && std::filesystem::path(target).is_relative())
+      target = (std::filesystem::path(path_).parent_path() / target).string();
+  }
+
+  void real(const toml::node_view<const toml::node> node, double& target, const char* option) const {
+    if (!node) return;
+    if (!node.is_number()) throw InputError(path_ + ": '" + key(option) + "' must be a number");
+    if (given(option)) return;
+    target = *node.value<double>();
+    validate(option, format_round_trip(target));
+  }
+
+  template <typename T>
+  void whole(const toml::node_view<const toml::node> node, T& target, const char* option) const {
+    if (!node) return;
+    if (!node.is_integer() || *node.value<long long>() < 0)
+      throw InputError(path_ + ": '" + key(option) + "' must be a whole number >= 0");
+    if (given(option)) return;
+    validate(option, std::to_string(*node.value<long long>()));
+    target = static_cast<T>(*node.value<long long>());
+  }
+
+  void flag(const toml::node_view<const toml::node> node, bool& target, const char* option) const {
+    if (node && !given(option)) target = node.value_or(false);
+  }
+
+  void validate(const char* option, const std::string& value) const {
+    CLI::Option* opt = command_.get_option(option);
     for (int i = 0;; ++i) {
       CLI::Validator* validator = nullptr;
       try {
@@ -107,25 +141,19 @@ void apply_run_file(BatchCommandOptions& o, CLI::App& command) {
         return;
       }
       const std::string problem = (*validator)(value);
-      if (!problem.empty()) throw InputError(o.run_file + ": '" + std::string(option).substr(2) + "' " + problem);
+      if (!problem.empty()) throw InputError(path_ + ": '" + key(option) + "' " + problem);
     }
-  };
-  const auto real = [&](const toml::node_view<toml::node> node, double& target, const char* option) {
-    if (!node) return;
-    if (!node.is_number()) throw InputError(o.run_file + ": '" + std::string(option).substr(2) + "' must be a number");
-    if (given(option)) return;
-    target = *node.value<double>();
-    validate(option, format_round_trip(target));
-  };
-  const auto whole = [&](const toml::node_view<toml::node> node, auto& target, const char* option) {
-    if (!node) return;
-    if (!node.is_integer() || *node.value<long long>() < 0)
-      throw InputError(o.run_file + ": '" + std::string(option).substr(2) + "' must be a whole number >= 0");
-    if (given(option)) return;
-    validate(option, std::to_string(*node.value<long long>()));
-    target = static_cast<std::decay_t<decltype(target)>>(*node.value<long long>());
-  };
-  if (auto list = file["analyses"]; list && !given("--analyses")) {
+  }
+
+ private:
+  static std::string key(const char* option) { return std::string(option).substr(2); }
+
+  const std::string& path_;
+  CLI::App& command_;
+};
+
+void apply_top_level_keys(const toml::table& file, const RunFileValues& v, BatchCommandOptions& o) {
+  if (auto list = file["analyses"]; list && !v.given("--analyses")) {
     if (!list.is_array()) throw InputError(o.run_file + ": 'analyses' must be a list, e.g. [\"density\"]");
     o.analyses.clear();
     for (const auto& item : *list.as_array()) {
@@ -133,36 +161,41 @@ void apply_run_file(BatchCommandOptions& o, CLI::App& command) {
       o.analyses.push_back(*item.value<std::string>());
     }
   }
-  text(file["pattern"], o.pattern, "--pattern");
-  text(file["plots_name"], o.plots_name, "--plots-name");
-  text(file["plots"], o.plots, "--plots");
-  if (file["plots"] && !given("--plots") && !o.plots.empty() && std::filesystem::path(o.plots).is_relative())
-    o.plots = (std::filesystem::path(o.run_file).parent_path() / o.plots).string();
-  text(file["species_field"], o.common.species_field, "--species-field");
-  text(file["plot_field"], o.common.plot_field, "--plot-field");
-  text(file["sightings_plot_field"], o.common.sightings_plot_field, "--sightings-plot-field");
-  text(file["assign"], o.common.assign, "--assign");
-  validate("--assign", o.common.assign);
-  text(file["encoding"], o.common.encoding, "--encoding");
-  text(file["unit"], o.common.unit, "--unit");
-  text(file["crs"], o.common.crs, "--crs");
-  text(file["assume_crs"], o.common.assume_crs, "--assume-crs");
-  real(file["confidence"], o.common.confidence, "--confidence");
-  text(file["density"]["detection"], o.detection_file, "--detection");
-  // A relative path in a run file is relative to the run file's folder, not to where the
-  // command happens to run.
-  if (file["density"]["detection"] && !given("--detection") && !o.detection_file.empty() &&
-      std::filesystem::path(o.detection_file).is_relative())
-    o.detection_file = (std::filesystem::path(o.run_file).parent_path() / o.detection_file).string();
-  real(file["density"]["detection_prob"], o.detection_prob, "--detection-prob");
-  real(file["density"]["detection_se"], o.detection_se, "--detection-se");
-  whole(file["randomness"]["simulations"], o.simulations, "--simulations");
-  whole(file["randomness"]["seed"], o.seed, "--seed");
-  text(file["randomness"]["quadrats"], o.quadrats, "--quadrats");
-  text(file["randomness"]["edge_correction"], o.edge_correction, "--edge-correction");
-  if (auto gis = file["gis"]; gis && !given("--gis")) o.gis = gis.value_or(false);
-  if (auto surfaces = file["surface"]; surfaces && !given("--surface")) o.surfaces = surfaces.value_or(false);
-  real(file["randomness"]["rmax"], o.rmax, "--rmax");
+  v.text(file["pattern"], o.pattern, "--pattern");
+  v.text(file["plots_name"], o.plots_name, "--plots-name");
+  v.path(file["plots"], o.plots, "--plots");
+  v.text(file["species_field"], o.common.species_field, "--species-field");
+  v.text(file["plot_field"], o.common.plot_field, "--plot-field");
+  v.text(file["sightings_plot_field"], o.common.sightings_plot_field, "--sightings-plot-field");
+  v.text(file["assign"], o.common.assign, "--assign");
+  v.validate("--assign", o.common.assign);
+  v.text(file["encoding"], o.common.encoding, "--encoding");
+  v.text(file["unit"], o.common.unit, "--unit");
+  v.text(file["crs"], o.common.crs, "--crs");
+  v.text(file["assume_crs"], o.common.assume_crs, "--assume-crs");
+  v.real(file["confidence"], o.common.confidence, "--confidence");
+  v.flag(file["gis"], o.gis, "--gis");
+  v.flag(file["surface"], o.surfaces, "--surface");
+}
+
+void apply_analysis_keys(const toml::table& file, const RunFileValues& v, BatchCommandOptions& o) {
+  v.path(file["density"]["detection"], o.detection_file, "--detection");
+  v.real(file["density"]["detection_prob"], o.detection_prob, "--detection-prob");
+  v.real(file["density"]["detection_se"], o.detection_se, "--detection-se");
+  v.whole(file["randomness"]["simulations"], o.simulations, "--simulations");
+  v.whole(file["randomness"]["seed"], o.seed, "--seed");
+  v.text(file["randomness"]["quadrats"], o.quadrats, "--quadrats");
+  v.text(file["randomness"]["edge_correction"], o.edge_correction, "--edge-correction");
+  v.real(file["randomness"]["rmax"], o.rmax, "--rmax");
+}
+
+// Values of the run file, applied unless the command line names the same option.
+void apply_run_file(BatchCommandOptions& o, CLI::App& command) {
+  const toml::table file = parse_run_file(o.run_file);
+  check_run_file_keys(file, o.run_file);
+  const RunFileValues values(o.run_file, command);
+  apply_top_level_keys(file, values, o);
+  apply_analysis_keys(file, values, o);
 }
 
 // A figure the batch wrote, by its path inside the output folder; a path leaving the folder
@@ -179,23 +212,43 @@ std::string read_output_file(const std::string& dir, const std::string& relative
 }
 
 
-int run_batch_command(BatchCommandOptions& o, CLI::App& command) {
-  if (!o.run_file.empty()) apply_run_file(o, command);
-  BatchOptions options;
-  options.read = to_read_options(o.common);
-  options.run_density = options.run_randomness = false;
+std::optional<Detection> single_detection(const BatchCommandOptions& o, CLI::App& command) {
+  if (command.get_option("--detection-prob")->count() > 0 || o.detection_prob != 1.0 || o.detection_se != 0.0)
+    return make_detection(o.detection_prob, o.detection_se, "--detection-prob");
+  return std::nullopt;
+}
+
+void set_analyses(const BatchCommandOptions& o, BatchOptions& options) {
+  options.run_density = options.run_randomness = options.run_transect = false;
   for (const auto& a : o.analyses) {
     if (a == "density") options.run_density = true;
     else if (a == "randomness") options.run_randomness = true;
     else if (a == "transect") options.run_transect = true;
     else throw InputError("--analyses takes density, randomness, transect (got '" + a + "')");
   }
+}
+
+void set_transect_options(const BatchCommandOptions& o, CLI::App& command, BatchOptions& options) {
+  options.transect_read.transect_field = o.transect_field;
+  options.transect_read.encoding = options.read.encoding;
+  options.transect_read.species_field = o.common.species_field;
+  if (!o.distance_field.empty()) options.transect_read.distance_field = o.distance_field;
+  if (!o.size_field.empty()) options.transect_read.size_field = o.size_field;
+  if (!o.common.assume_crs.empty()) options.transect_read.assume_crs = o.common.assume_crs;
+  if (!o.common.crs.empty()) options.transect_read.target_crs = o.common.crs;
+  options.transect.confidence = o.common.confidence;
+  if (command.get_option("--unit")->count() > 0) options.transect.unit = parse_area_unit(o.common.unit);
+  options.transect.truncation = parse_truncation(o.truncate);
+}
+
+BatchOptions batch_options_of(const BatchCommandOptions& o, CLI::App& command,
+                              const std::optional<Detection>& single) {
+  BatchOptions options;
+  options.read = to_read_options(o.common);
+  set_analyses(o, options);
   options.density.unit = parse_area_unit(o.common.unit);
   options.density.confidence = o.common.confidence;
   options.density.seed = o.seed;
-  std::optional<Detection> single;
-  if (command.get_option("--detection-prob")->count() > 0 || o.detection_prob != 1.0 || o.detection_se != 0.0)
-    single = make_detection(o.detection_prob, o.detection_se, "--detection-prob");
   if (!o.detection_file.empty()) options.density.detection = read_detection_table(o.detection_file, single);
   else if (single) options.density.detection = DetectionTable::uniform(*single);
   options.randomness.simulations = o.simulations;
@@ -205,35 +258,22 @@ int run_batch_command(BatchCommandOptions& o, CLI::App& command) {
   if (!o.edge_correction.empty()) options.randomness.edge_correction = parse_edge_correction(o.edge_correction);
   if (o.rmax > 0.0) options.randomness.rmax_m = o.rmax;
   options.threads = o.threads;
-  if (options.run_transect) {
-    options.transect_read.transect_field = o.transect_field;
-    options.transect_read.encoding = options.read.encoding;
-    options.transect_read.species_field = o.common.species_field;
-    if (!o.distance_field.empty()) options.transect_read.distance_field = o.distance_field;
-    if (!o.size_field.empty()) options.transect_read.size_field = o.size_field;
-    if (!o.common.assume_crs.empty()) options.transect_read.assume_crs = o.common.assume_crs;
-    if (!o.common.crs.empty()) options.transect_read.target_crs = o.common.crs;
-    options.transect.confidence = o.common.confidence;
-    if (command.get_option("--unit")->count() > 0) options.transect.unit = parse_area_unit(o.common.unit);
-    options.transect.truncation = parse_truncation(o.truncate);
-  }
+  if (options.run_transect) set_transect_options(o, command, options);
   options.gis = o.gis;
   options.surfaces = o.surfaces;
   if (o.pixel < 0.0 || o.bandwidth < 0.0) throw InputError("--pixel and --bandwidth must be positive");
   if (o.pixel > 0.0) options.pixel_m = o.pixel;
   if (o.bandwidth > 0.0) options.bandwidth_m = o.bandwidth;
-
   if (!o.plots.empty()) {
     if (!o.plots_name.empty()) throw InputError("--plots and --plots-name both name the plots; give one");
-    options.shared_plots = SourceSpec{o.plots, o.common.plots_layer.empty() ? std::nullopt : std::optional<std::string>(o.common.plots_layer)};
+    options.shared_plots =
+        SourceSpec{o.plots, o.common.plots_layer.empty() ? std::nullopt : std::optional<std::string>(o.common.plots_layer)};
   }
-  std::vector<BatchInput> inputs = discover_inputs(o.common.sightings, o.pattern, o.plots_name);
-  const std::size_t all_inputs = inputs.size();
-  options.crs_reference = inputs.front();
-  if (!o.shard_text.empty()) {
-    const auto [k, n] = parse_shard(o.shard_text);
-    inputs = shard(inputs, k, n);
-  }
+  return options;
+}
+
+// Every input the run reads: no output may replace one of them.
+std::vector<std::string> inputs_to_protect(const BatchCommandOptions& o, const std::vector<BatchInput>& inputs) {
   std::vector<std::string> protect{o.common.sightings};
   if (!o.plots.empty()) protect.push_back(o.plots);
   if (!o.detection_file.empty()) protect.push_back(o.detection_file);
@@ -241,52 +281,67 @@ int run_batch_command(BatchCommandOptions& o, CLI::App& command) {
     protect.push_back(in.path);
     protect.push_back(in.plots_path);
   }
-  const std::filesystem::path out(o.out);
-  {
-    std::error_code ec;
-    if (std::filesystem::exists(out, ec) && !std::filesystem::is_directory(out, ec))
-      throw InputError(o.out + ": exists and is not a folder; --out names the output folder");
-  }
-  for (const auto& in : inputs) {
-    std::error_code ec;
-    if (std::filesystem::equivalent(out, std::filesystem::path(in.path).parent_path(), ec))
-      throw InputError(o.out + ": the output folder holds inputs; choose another --out");
-  }
+  return protect;
+}
 
-  const bool terminal = ::isatty(STDERR_FILENO) != 0;
+void check_output_folder(const std::string& out_text, const std::vector<BatchInput>& inputs) {
+  const std::filesystem::path out(out_text);
+  std::error_code ec;
+  if (std::filesystem::exists(out, ec) && !std::filesystem::is_directory(out, ec))
+    throw InputError(out_text + ": exists and is not a folder; --out names the output folder");
+  for (const auto& in : inputs)
+    if (std::filesystem::equivalent(out, std::filesystem::path(in.path).parent_path(), ec))
+      throw InputError(out_text + ": the output folder holds inputs; choose another --out");
+}
+
+// Progress per finished file: a bar with an ETA on a terminal, one line per file otherwise.
+std::function<void(std::size_t, std::size_t, const SeasonInput&)> file_progress(bool quiet) {
+  if (quiet) return [](std::size_t, std::size_t, const SeasonInput&) {};
+  auto bar = std::make_shared<TerminalProgress>("stipple batch: files");
+  if (auto draw = bar->callback())
+    return [bar, draw](std::size_t done, std::size_t total, const SeasonInput&) { draw(done, total); };
   const auto start = std::chrono::steady_clock::now();
-  const auto progress = [&](std::size_t done, std::size_t total, const SeasonInput& r) {
-    if (o.quiet) return;
+  return [start](std::size_t done, std::size_t total, const SeasonInput& r) {
     const double elapsed = std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
-    const double eta = done > 0 ? elapsed / static_cast<double>(done) * static_cast<double>(total - done) : 0.0;
-    if (terminal) {
-      const std::size_t width = 30;
-      const std::size_t filled = total > 0 ? width * done / total : width;
-      std::cerr << "\r[" << std::string(filled, '#') << std::string(width - filled, ' ') << "] " << done << "/"
-                << total << " files, ETA " << clock_text(eta) << "   " << std::flush;
-      if (done == total) std::cerr << "\n";
-    } else {
-      std::cerr << "stipple batch: " << done << "/" << total << " " << r.name << " "
-                << (r.status == "ok" ? "ok" : r.status == "skipped" ? "skipped" : "FAILED") << " ("
-                << format_fixed(elapsed, 1) << " s)\n";
-    }
+    std::cerr << "stipple batch: " << done << "/" << total << " " << r.name << " "
+              << (r.status == "ok" ? "ok" : r.status == "skipped" ? "skipped" : "FAILED") << " ("
+              << format_fixed(elapsed, 1) << " s)\n";
   };
-  if (!o.quiet)
-    std::cerr << "stipple batch: " << inputs.size() << " of " << all_inputs << " input(s)"
-              << (o.shard_text.empty() ? "" : " (shard " + o.shard_text + ")") << "\n";
+}
+
+// The options as the user gave them, one line for run.json and the report.
+std::string options_used_text(const BatchCommandOptions& o) {
+  const auto name = [](const std::string& path) { return std::filesystem::path(path).filename().string(); };
   std::string used = "analyses=";
   for (const auto& a : o.analyses) used += a + ",";
   used += " unit=" + o.common.unit + " confidence=" + format_general(o.common.confidence) +
-          " simulations=" + std::to_string(o.simulations) + " seed=" + std::to_string(o.seed) +
-          " quadrats=" + o.quadrats + (o.edge_correction.empty() ? "" : " edge-correction=" + o.edge_correction) +
-          (o.rmax > 0.0 ? " rmax=" + format_general(o.rmax) : "") +
-          (o.detection_file.empty() ? "" : " detection=" + std::filesystem::path(o.detection_file).filename().string()) +
-          " pattern=" + o.pattern + (o.plots_name.empty() ? "" : " plots-name=" + o.plots_name) +
-          (o.plots.empty() ? "" : " plots=" + std::filesystem::path(o.plots).filename().string()) +
-          (o.run_file.empty() ? "" : " run-file=" + std::filesystem::path(o.run_file).filename().string());
-  SeasonRun& run = options.run;
+          " simulations=" + std::to_string(o.simulations) + " seed=" + std::to_string(o.seed) + " quadrats=" + o.quadrats;
+  if (!o.edge_correction.empty()) used += " edge-correction=" + o.edge_correction;
+  if (o.rmax > 0.0) used += " rmax=" + format_general(o.rmax);
+  if (!o.detection_file.empty()) used += " detection=" + name(o.detection_file);
+  used += " pattern=" + o.pattern;
+  if (!o.plots_name.empty()) used += " plots-name=" + o.plots_name;
+  if (!o.plots.empty()) used += " plots=" + name(o.plots);
+  if (!o.run_file.empty()) used += " run-file=" + name(o.run_file);
+  return used;
+}
+
+std::string detection_text(const BatchCommandOptions& o, const std::optional<Detection>& single) {
+  if (!o.detection_file.empty())
+    return "per-species probabilities from " + std::filesystem::path(o.detection_file).filename().string() +
+           "; intensity divided by p";
+  if (single)
+    return "one detection probability p = " + format_general(single->probability) + " (se " +
+           format_general(single->standard_error) + ") for every species; intensity divided by p";
+  return "none (p = 1 for every species)";
+}
+
+// The facts of the run the report's methods paragraph is generated from.
+SeasonRun season_run_of(const BatchCommandOptions& o, const BatchOptions& options,
+                        const std::optional<Detection>& single) {
+  SeasonRun run;
   run.version = STIPPLE_VERSION;
-  run.options_text = used;
+  run.options_text = options_used_text(o);
   run.density = options.run_density;
   run.randomness = options.run_randomness;
   run.transect = options.run_transect;
@@ -298,30 +353,45 @@ int run_batch_command(BatchCommandOptions& o, CLI::App& command) {
   run.quadrats = o.quadrats;
   run.edge_correction = o.edge_correction;
   run.rmax_m = options.randomness.rmax_m;
-  run.detection = o.detection_file.empty()
-                      ? (single ? "one detection probability p = " + format_general(single->probability) +
-                                      " (se " + format_general(single->standard_error) + ") for every species; intensity divided by p"
-                                : std::string("none (p = 1 for every species)"))
-                      : "per-species probabilities from " + std::filesystem::path(o.detection_file).filename().string() +
-                            "; intensity divided by p";
+  run.detection = detection_text(o, single);
   std::string models;
   for (const auto k : options.transect.keys) models += (models.empty() ? "" : ", ") + std::string(key_function_name(k));
   for (const auto a : options.transect.adjustments)
-    models += " with up to " + std::to_string(options.transect.max_terms) + " " + std::string(adjustment_name(a)) + " terms";
+    models += " with up to " + std::to_string(options.transect.max_terms) + " " + std::string(adjustment_name(a)) +
+              " terms";
   run.transect_models = models;
   run.truncation = o.truncate.empty() ? "at the largest distance" : o.truncate;
-  const BatchSummary summary = run_batch(inputs, options, o.out, protect, progress);
+  return run;
+}
+
+int run_batch_command(BatchCommandOptions& o, CLI::App& command) {
+  if (!o.run_file.empty()) apply_run_file(o, command);
+  const std::optional<Detection> single = single_detection(o, command);
+  BatchOptions options = batch_options_of(o, command, single);
+  std::vector<BatchInput> inputs = discover_inputs(o.common.sightings, o.pattern, o.plots_name);
+  const std::size_t all_inputs = inputs.size();
+  options.crs_reference = inputs.front();
+  if (!o.shard_text.empty()) {
+    const auto [k, n] = parse_shard(o.shard_text);
+    inputs = shard(inputs, k, n);
+  }
+  const std::vector<std::string> protect = inputs_to_protect(o, inputs);
+  check_output_folder(o.out, inputs);
+  options.run = season_run_of(o, options, single);
+  if (!o.quiet)
+    std::cerr << "stipple batch: " << inputs.size() << " of " << all_inputs << " input(s)"
+              << (o.shard_text.empty() ? "" : " (shard " + o.shard_text + ")") << "\n";
+  const BatchSummary summary = run_batch(inputs, options, o.out, protect, file_progress(o.quiet));
+  const std::filesystem::path out(o.out);
   if (o.report) {
     const std::string out_dir = o.out;
-    write_file_safely((out / "report.html").string(),
-                      season_report_html(summary.report, [&](const std::string& path) { return read_output_file(out_dir, path); }),
-                      protect);
+    write_file_safely(
+        (out / "report.html").string(),
+        season_report_html(summary.report, [&](const std::string& path) { return read_output_file(out_dir, path); }),
+        protect);
   }
-
-  for (const auto& r : summary.report.inputs) {
-    if (r.status == "ok") continue;
-    std::cerr << r.status << ": " << r.name << ": " << r.reason << "\n";
-  }
+  for (const auto& r : summary.report.inputs)
+    if (r.status != "ok") std::cerr << r.status << ": " << r.name << ": " << r.reason << "\n";
   if (!o.quiet)
     std::cerr << "stipple batch: " << summary.report.inputs.size() - summary.failed - summary.skipped << " ok, "
               << summary.skipped << " skipped, " << summary.failed << " failed; tables in " << o.out

@@ -224,20 +224,15 @@ std::string density_json(const LoadedSurvey& survey, const DensityResult& result
   return json_text(doc);
 }
 
-std::string density_table(const LoadedSurvey& survey, const DensityResult& result) {
-  std::ostringstream out;
-  const std::string unit(unit_name(result.unit));
-  const double percent = 100.0 * result.confidence;
-  const std::string level =
-      format_fixed(percent, percent == std::round(percent) ? 0 : 1) + "%";
-  out << "stipple density\n";
-  out << "  sightings: " << survey.sightings_label << "\n";
-  if (!survey.plots_label.empty()) out << "  plots:     " << survey.plots_label << "\n";
-  out << "  CRS:       " << survey.crs.code << " (" << survey.crs.name << "), "
-      << survey.crs.reason << "; " << crs_area_note(survey.crs) << "\n";
-  out << "  intensity per " << unit << "; " << level
-      << " exact Poisson (Garwood) intervals; " << method_line(result) << "\n\n";
+namespace {
 
+std::string level_text(double confidence) {
+  const double percent = 100.0 * confidence;
+  return format_fixed(percent, percent == std::round(percent) ? 0 : 1) + "%";
+}
+
+void write_plot_section(std::ostream& out, const DensityResult& result, const std::string& unit,
+                        const std::string& level) {
   out << "Per plot\n";
   TextTable plots({"plot", "species", "count", "area_" + unit, "intensity", level + " CI", "P(detect)",
                    "corrected", "corrected " + level + " CI"},
@@ -251,47 +246,46 @@ std::string density_table(const LoadedSurvey& survey, const DensityResult& resul
   out << plots.render();
   out << "  intensity and corrected per " << unit << "; P(detect): detection probability used for the "
          "correction (corrected = intensity / P(detect))\n\n";
+}
 
-  if (!result.pooled.empty()) {
-    out << "Pooled across plots (superposition: sum n / sum area)\n";
-    TextTable pooled({"species", "plots", "count", "area_" + unit, "intensity", level + " CI",
-                      "corrected", "corrected " + level + " CI", "homogeneity X2", "df", "homogeneity p",
-                      "dispersion"},
-                     1);
-    for (const auto& p : result.pooled) {
-      std::vector<std::string> row{species_text(p.species), std::to_string(p.plots),
-                                   std::to_string(p.count), number(p.area), number(p.intensity),
-                                   interval_text(p.ci), number(p.corrected.intensity),
-                                   interval_text(p.corrected.ci)};
-      if (p.homogeneity) {
-        const auto& h = *p.homogeneity;
-        row.push_back(format_fixed(h.chi_square.statistic, 2));
-        row.push_back(format_fixed(h.chi_square.df, 0));
-        row.push_back(format_p_value(h.p_value) + (h.monte_carlo ? " (MC)" : ""));
-        row.push_back(format_fixed(h.dispersion_ratio, 2));
-      } else {
-        row.insert(row.end(), {"-", "-", "-", "-"});
-      }
-      pooled.add_row(std::move(row));
+void write_pooled_section(std::ostream& out, const DensityResult& result, const std::string& unit,
+                          const std::string& level) {
+  out << "Pooled across plots (superposition: sum n / sum area)\n";
+  TextTable pooled({"species", "plots", "count", "area_" + unit, "intensity", level + " CI",
+                    "corrected", "corrected " + level + " CI", "homogeneity X2", "df", "homogeneity p",
+                    "dispersion"},
+                   1);
+  for (const auto& p : result.pooled) {
+    std::vector<std::string> row{species_text(p.species), std::to_string(p.plots),
+                                 std::to_string(p.count), number(p.area), number(p.intensity),
+                                 interval_text(p.ci), number(p.corrected.intensity),
+                                 interval_text(p.corrected.ci)};
+    if (p.homogeneity) {
+      const auto& h = *p.homogeneity;
+      row.push_back(format_fixed(h.chi_square.statistic, 2));
+      row.push_back(format_fixed(h.chi_square.df, 0));
+      row.push_back(format_p_value(h.p_value) + (h.monte_carlo ? " (MC)" : ""));
+      row.push_back(format_fixed(h.dispersion_ratio, 2));
+    } else {
+      row.insert(row.end(), {"-", "-", "-", "-"});
     }
-    out << pooled.render();
-    out << "  homogeneity: Pearson X2 of plot counts against area-proportional expectations; "
-           "(MC) = Monte Carlo p-value, used when an expected count is below 5;\n"
-           "  dispersion = X2 / df (about 1 when the plots share one intensity)\n\n";
+    pooled.add_row(std::move(row));
   }
-  if (result.composition) {
-    const auto& c = *result.composition;
-    out << "Species composition across plots: X2 = " << format_fixed(c.chi_square.statistic, 2)
-        << ", df = " << format_fixed(c.chi_square.df, 0) << ", p = " << format_p_value(c.p_value)
-        << (c.monte_carlo ? " (Monte Carlo)" : "")
-        << (c.significant ? " -> the species mix differs between plots" : " -> no evidence the mix differs")
-        << "\n\n";
-  }
-  const Survey& s = survey.survey;
-  out << "Sightings: " << s.sighting_count() << " analysed, "
-      << s.outside_feature_ids.size() + s.unknown_plot_feature_ids.size() << " excluded; "
-      << "assigned by " << (s.assigned_by_attribute ? "plot attribute" : "point-in-polygon")
-      << "\n";
+  out << pooled.render();
+  out << "  homogeneity: Pearson X2 of plot counts against area-proportional expectations; "
+         "(MC) = Monte Carlo p-value, used when an expected count is below 5;\n"
+         "  dispersion = X2 / df (about 1 when the plots share one intensity)\n\n";
+}
+
+void write_composition_line(std::ostream& out, const CompositionTest& c) {
+  out << "Species composition across plots: X2 = " << format_fixed(c.chi_square.statistic, 2)
+      << ", df = " << format_fixed(c.chi_square.df, 0) << ", p = " << format_p_value(c.p_value)
+      << (c.monte_carlo ? " (Monte Carlo)" : "")
+      << (c.significant ? " -> the species mix differs between plots" : " -> no evidence the mix differs")
+      << "\n\n";
+}
+
+void write_notes_warnings_cautions(std::ostream& out, const LoadedSurvey& survey, const DensityResult& result) {
   if (!survey.notes.empty()) {
     out << "\nNotes\n";
     for (const auto& n : survey.notes) out << "  - " << n << "\n";
@@ -304,6 +298,30 @@ std::string density_table(const LoadedSurvey& survey, const DensityResult& resul
   }
   out << "\nCautions\n";
   for (const auto& c : density_cautions()) out << "  - " << c << "\n";
+}
+
+}  // namespace
+
+std::string density_table(const LoadedSurvey& survey, const DensityResult& result) {
+  std::ostringstream out;
+  const std::string unit(unit_name(result.unit));
+  const std::string level = level_text(result.confidence);
+  out << "stipple density\n";
+  out << "  sightings: " << survey.sightings_label << "\n";
+  if (!survey.plots_label.empty()) out << "  plots:     " << survey.plots_label << "\n";
+  out << "  CRS:       " << survey.crs.code << " (" << survey.crs.name << "), "
+      << survey.crs.reason << "; " << crs_area_note(survey.crs) << "\n";
+  out << "  intensity per " << unit << "; " << level
+      << " exact Poisson (Garwood) intervals; " << method_line(result) << "\n\n";
+  write_plot_section(out, result, unit, level);
+  if (!result.pooled.empty()) write_pooled_section(out, result, unit, level);
+  if (result.composition) write_composition_line(out, *result.composition);
+  const Survey& s = survey.survey;
+  out << "Sightings: " << s.sighting_count() << " analysed, "
+      << s.outside_feature_ids.size() + s.unknown_plot_feature_ids.size() << " excluded; "
+      << "assigned by " << (s.assigned_by_attribute ? "plot attribute" : "point-in-polygon")
+      << "\n";
+  write_notes_warnings_cautions(out, survey, result);
   return out.str();
 }
 

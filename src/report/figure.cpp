@@ -6,6 +6,9 @@
 #include <map>
 #include <regex>
 
+#include <optional>
+
+#include <boost/math/constants/constants.hpp>
 #include <cairo-svg.h>
 #include <cairo.h>
 
@@ -68,154 +71,175 @@ double nice_step(double span) {
   return 10.0 * magnitude;
 }
 
-void draw(cairo_t* cr, const Chart& chart) {
-  const double left = 90.0;
-  const double right = width_px - 30.0;
-  const double top = 60.0;
-  const double bottom = height_px - 100.0;
-  cairo_set_source_rgb(cr, 1, 1, 1);
-  cairo_paint(cr);
+constexpr double two_pi = boost::math::double_constants::two_pi;
+constexpr double dash[] = {8.0, 5.0};
 
+void set_colour(cairo_t* cr, const Rgb& c) { cairo_set_source_rgb(cr, c.r, c.g, c.b); }
+
+// The plotting area in pixels and the data range it shows.
+struct Frame {
+  double left = 90.0;
+  double right = width_px - 30.0;
+  double top = 60.0;
+  double bottom = height_px - 100.0;
+  double xmin = 0.0, xmax = 1.0, ymin = 0.0, ymax = 1.0;
+  [[nodiscard]] double X(double x) const { return left + (right - left) * (x - xmin) / (xmax - xmin); }
+  [[nodiscard]] double Y(double y) const { return bottom - (bottom - top) * (y - ymin) / (ymax - ymin); }
+};
+
+// The data range of every series (bars span x to y_upper), from 0, with 5% headroom above.
+// Empty when no series holds a finite x.
+std::optional<Frame> frame_of(const Chart& chart) {
+  Frame f;
   double xmin = std::numeric_limits<double>::infinity();
   double xmax = -xmin;
   double ymin = 0.0;
   double ymax = -std::numeric_limits<double>::infinity();
   for (const auto& s : chart.series) {
+    const bool bars = s.kind == ChartSeries::Kind::bars;
     for (const double v : s.x)
       if (std::isfinite(v)) xmin = std::min(xmin, v), xmax = std::max(xmax, v);
-    if (s.kind == ChartSeries::Kind::bars)
-      for (const double v : s.y_upper)
-        if (std::isfinite(v)) xmax = std::max(xmax, v);
-    for (const auto* ys : {&s.y, &s.y_upper}) {
-      if (s.kind == ChartSeries::Kind::bars && ys == &s.y_upper) continue;
-      for (const double v : *ys)
-        if (std::isfinite(v)) ymin = std::min(ymin, v), ymax = std::max(ymax, v);
-    }
-  }
-  if (!std::isfinite(xmin)) return;
-  xmin = std::min(0.0, xmin);
-  if (!(xmax > xmin)) xmax = xmin + 1.0;
-  if (!(ymax > ymin)) ymax = ymin + 1.0;
-  ymax *= 1.05;
-  const auto X = [&](double x) { return left + (right - left) * (x - xmin) / (xmax - xmin); };
-  const auto Y = [&](double y) { return bottom - (bottom - top) * (y - ymin) / (ymax - ymin); };
-  const auto set = [&](int c) {
-    const Rgb rgb = colour_of(c);
-    cairo_set_source_rgb(cr, rgb.r, rgb.g, rgb.b);
-  };
-  const double dash[] = {8.0, 5.0};
-
-  for (const auto& s : chart.series) {
-    switch (s.kind) {
-      case ChartSeries::Kind::band: {
-        std::vector<std::size_t> idx;
-        for (std::size_t k = 0; k < s.x.size(); ++k)
-          if (std::isfinite(s.y[k]) && std::isfinite(s.y_upper[k])) idx.push_back(k);
-        if (idx.empty()) break;
-        cairo_new_path(cr);
-        cairo_move_to(cr, X(s.x[idx.front()]), Y(s.y_upper[idx.front()]));
-        for (const auto k : idx) cairo_line_to(cr, X(s.x[k]), Y(s.y_upper[k]));
-        for (auto it = idx.rbegin(); it != idx.rend(); ++it) cairo_line_to(cr, X(s.x[*it]), Y(s.y[*it]));
-        cairo_close_path(cr);
-        set(s.colour);
-        cairo_fill(cr);
-        break;
-      }
-      case ChartSeries::Kind::bars:
-        for (std::size_t k = 0; k < s.x.size(); ++k) {
-          cairo_rectangle(cr, X(s.x[k]), Y(s.y[k]), X(s.y_upper[k]) - X(s.x[k]), Y(ymin) - Y(s.y[k]));
-          set(s.colour);
-          cairo_fill_preserve(cr);
-          cairo_set_source_rgb(cr, 1, 1, 1);
-          cairo_set_line_width(cr, 1.0);
-          cairo_stroke(cr);
-        }
-        break;
-      case ChartSeries::Kind::points:
-        for (std::size_t k = 0; k < s.x.size(); ++k) {
-          if (!std::isfinite(s.y[k])) continue;
-          cairo_new_path(cr);
-          cairo_arc(cr, X(s.x[k]), Y(s.y[k]), 3.5, 0, 2 * 3.14159265358979323846);
-          set(s.colour);
-          cairo_fill(cr);
-        }
-        break;
-      case ChartSeries::Kind::line:
-      case ChartSeries::Kind::dashed_line: {
-        cairo_new_path(cr);
-        bool open = false;
-        for (std::size_t k = 0; k < s.x.size(); ++k) {
-          if (!std::isfinite(s.y[k])) {
-            open = false;
-            continue;
-          }
-          if (!open) cairo_move_to(cr, X(s.x[k]), Y(s.y[k]));
-          else cairo_line_to(cr, X(s.x[k]), Y(s.y[k]));
-          open = true;
-        }
-        cairo_set_dash(cr, dash, s.kind == ChartSeries::Kind::dashed_line ? 2 : 0, 0.0);
-        cairo_set_line_width(cr, s.kind == ChartSeries::Kind::line ? 2.5 : 2.0);
-        set(s.colour);
-        cairo_stroke(cr);
-        cairo_set_dash(cr, dash, 0, 0.0);
-        break;
+    for (const double v : s.y_upper) {
+      if (!std::isfinite(v)) continue;
+      if (bars) {
+        xmax = std::max(xmax, v);
+      } else {
+        ymin = std::min(ymin, v);
+        ymax = std::max(ymax, v);
       }
     }
+    for (const double v : s.y)
+      if (std::isfinite(v)) ymin = std::min(ymin, v), ymax = std::max(ymax, v);
   }
+  if (!std::isfinite(xmin)) return std::nullopt;
+  f.xmin = std::min(0.0, xmin);
+  f.xmax = xmax > f.xmin ? xmax : f.xmin + 1.0;
+  f.ymin = ymin;
+  f.ymax = (ymax > ymin ? ymax : ymin + 1.0) * 1.05;
+  return f;
+}
 
-  // Axes, ticks and labels.
+void draw_band(cairo_t* cr, const Frame& f, const ChartSeries& s) {
+  std::vector<std::size_t> idx;
+  for (std::size_t k = 0; k < s.x.size(); ++k)
+    if (std::isfinite(s.y[k]) && std::isfinite(s.y_upper[k])) idx.push_back(k);
+  if (idx.empty()) return;
+  cairo_new_path(cr);
+  cairo_move_to(cr, f.X(s.x[idx.front()]), f.Y(s.y_upper[idx.front()]));
+  for (const auto k : idx) cairo_line_to(cr, f.X(s.x[k]), f.Y(s.y_upper[k]));
+  for (auto it = idx.rbegin(); it != idx.rend(); ++it) cairo_line_to(cr, f.X(s.x[*it]), f.Y(s.y[*it]));
+  cairo_close_path(cr);
+  set_colour(cr, colour_of(s.colour));
+  cairo_fill(cr);
+}
+
+void draw_bars(cairo_t* cr, const Frame& f, const ChartSeries& s) {
+  for (std::size_t k = 0; k < s.x.size(); ++k) {
+    cairo_rectangle(cr, f.X(s.x[k]), f.Y(s.y[k]), f.X(s.y_upper[k]) - f.X(s.x[k]), f.Y(f.ymin) - f.Y(s.y[k]));
+    set_colour(cr, colour_of(s.colour));
+    cairo_fill_preserve(cr);
+    cairo_set_source_rgb(cr, 1, 1, 1);
+    cairo_set_line_width(cr, 1.0);
+    cairo_stroke(cr);
+  }
+}
+
+void draw_points(cairo_t* cr, const Frame& f, const ChartSeries& s) {
+  for (std::size_t k = 0; k < s.x.size(); ++k) {
+    if (!std::isfinite(s.y[k])) continue;
+    cairo_new_path(cr);
+    cairo_arc(cr, f.X(s.x[k]), f.Y(s.y[k]), 3.5, 0, two_pi);
+    set_colour(cr, colour_of(s.colour));
+    cairo_fill(cr);
+  }
+}
+
+// A line broken where y is not finite.
+void draw_line(cairo_t* cr, const Frame& f, const ChartSeries& s) {
+  cairo_new_path(cr);
+  bool open = false;
+  for (std::size_t k = 0; k < s.x.size(); ++k) {
+    if (!std::isfinite(s.y[k])) {
+      open = false;
+      continue;
+    }
+    if (!open) cairo_move_to(cr, f.X(s.x[k]), f.Y(s.y[k]));
+    else cairo_line_to(cr, f.X(s.x[k]), f.Y(s.y[k]));
+    open = true;
+  }
+  cairo_set_dash(cr, dash, s.kind == ChartSeries::Kind::dashed_line ? 2 : 0, 0.0);
+  cairo_set_line_width(cr, s.kind == ChartSeries::Kind::line ? 2.5 : 2.0);
+  set_colour(cr, colour_of(s.colour));
+  cairo_stroke(cr);
+  cairo_set_dash(cr, dash, 0, 0.0);
+}
+
+void draw_series(cairo_t* cr, const Frame& f, const ChartSeries& s) {
+  switch (s.kind) {
+    case ChartSeries::Kind::band: draw_band(cr, f, s); break;
+    case ChartSeries::Kind::bars: draw_bars(cr, f, s); break;
+    case ChartSeries::Kind::points: draw_points(cr, f, s); break;
+    case ChartSeries::Kind::line:
+    case ChartSeries::Kind::dashed_line: draw_line(cr, f, s); break;
+  }
+}
+
+// Text with its left edge (align 0), centre (0.5) or right edge (1) at x.
+void text_at(cairo_t* cr, const std::string& s, double x, double y, double align_x) {
+  cairo_text_extents_t ext;
+  cairo_text_extents(cr, s.c_str(), &ext);
+  cairo_move_to(cr, x - align_x * ext.width, y);
+  cairo_show_text(cr, s.c_str());
+}
+
+void draw_axes(cairo_t* cr, const Frame& f, const Chart& chart) {
   cairo_set_source_rgb(cr, 0, 0, 0);
   cairo_set_line_width(cr, 1.2);
-  cairo_rectangle(cr, left, top, right - left, bottom - top);
+  cairo_rectangle(cr, f.left, f.top, f.right - f.left, f.bottom - f.top);
   cairo_stroke(cr);
   cairo_select_font_face(cr, "DejaVu Sans", CAIRO_FONT_SLANT_NORMAL, CAIRO_FONT_WEIGHT_NORMAL);
   cairo_set_font_size(cr, 14.0);
-  const auto text_at = [&](const std::string& s, double x, double y, double align_x) {
-    cairo_text_extents_t ext;
-    cairo_text_extents(cr, s.c_str(), &ext);
-    cairo_move_to(cr, x - align_x * ext.width, y);
-    cairo_show_text(cr, s.c_str());
-  };
-  const double xstep = nice_step(xmax - xmin);
-  for (double x = std::ceil(xmin / xstep) * xstep; x <= xmax + 1e-9; x += xstep) {
-    cairo_move_to(cr, X(x), bottom);
-    cairo_line_to(cr, X(x), bottom + 6);
+  const auto tick_label = [](double v) { return format_general(std::abs(v) < 1e-12 ? 0.0 : v); };
+  const double xstep = nice_step(f.xmax - f.xmin);
+  for (double x = std::ceil(f.xmin / xstep) * xstep; x <= f.xmax + 1e-9; x += xstep) {
+    cairo_move_to(cr, f.X(x), f.bottom);
+    cairo_line_to(cr, f.X(x), f.bottom + 6);
     cairo_stroke(cr);
-    text_at(format_general(std::abs(x) < 1e-12 ? 0.0 : x), X(x), bottom + 24, 0.5);
+    text_at(cr, tick_label(x), f.X(x), f.bottom + 24, 0.5);
   }
-  const double ystep = nice_step(ymax - ymin);
-  for (double y = std::ceil(ymin / ystep) * ystep; y <= ymax + 1e-9; y += ystep) {
-    cairo_move_to(cr, left - 6, Y(y));
-    cairo_line_to(cr, left, Y(y));
+  const double ystep = nice_step(f.ymax - f.ymin);
+  for (double y = std::ceil(f.ymin / ystep) * ystep; y <= f.ymax + 1e-9; y += ystep) {
+    cairo_move_to(cr, f.left - 6, f.Y(y));
+    cairo_line_to(cr, f.left, f.Y(y));
     cairo_stroke(cr);
-    text_at(format_general(std::abs(y) < 1e-12 ? 0.0 : y), left - 10, Y(y) + 5, 1.0);
+    text_at(cr, tick_label(y), f.left - 10, f.Y(y) + 5, 1.0);
   }
-  text_at(chart.x_label, (left + right) / 2.0, bottom + 50, 0.5);
+  text_at(cr, chart.x_label, (f.left + f.right) / 2.0, f.bottom + 50, 0.5);
   cairo_save(cr);
-  cairo_move_to(cr, 28, (top + bottom) / 2.0);
-  cairo_rotate(cr, -3.14159265358979323846 / 2.0);
+  cairo_move_to(cr, 28, (f.top + f.bottom) / 2.0);
+  cairo_rotate(cr, -boost::math::double_constants::half_pi);
   cairo_text_extents_t ext;
   cairo_text_extents(cr, chart.y_label.c_str(), &ext);
   cairo_rel_move_to(cr, -ext.width / 2.0, 0);
   cairo_show_text(cr, chart.y_label.c_str());
   cairo_restore(cr);
   cairo_set_font_size(cr, 18.0);
-  text_at(chart.title, (left + right) / 2.0, 36, 0.5);
+  text_at(cr, chart.title, (f.left + f.right) / 2.0, 36, 0.5);
   cairo_set_font_size(cr, 13.0);
-  text_at(chart.caption, (left + right) / 2.0, bottom + 80, 0.5);
+  text_at(cr, chart.caption, (f.left + f.right) / 2.0, f.bottom + 80, 0.5);
+}
 
-  // Legend.
-  const double lx = left + 16;
-  double ly = top + 18;
+void draw_legend(cairo_t* cr, const Frame& f, const Chart& chart) {
+  const double lx = f.left + 16;
+  double ly = f.top + 18;
   for (const auto& s : chart.series) {
     if (s.label.empty()) continue;
-    const Rgb c = colour_of(s.colour);
-    cairo_set_source_rgb(cr, c.r, c.g, c.b);
+    set_colour(cr, colour_of(s.colour));
     if (s.kind == ChartSeries::Kind::band || s.kind == ChartSeries::Kind::bars) {
       cairo_rectangle(cr, lx, ly - 9, 28, 12);
       cairo_fill(cr);
     } else if (s.kind == ChartSeries::Kind::points) {
-      cairo_arc(cr, lx + 14, ly - 3, 3.5, 0, 2 * 3.14159265358979323846);
+      cairo_arc(cr, lx + 14, ly - 3, 3.5, 0, two_pi);
       cairo_fill(cr);
     } else {
       cairo_set_dash(cr, dash, s.kind == ChartSeries::Kind::dashed_line ? 2 : 0, 0.0);
@@ -230,6 +254,113 @@ void draw(cairo_t* cr, const Chart& chart) {
     cairo_show_text(cr, s.label.c_str());
     ly += 20;
   }
+}
+
+void draw(cairo_t* cr, const Chart& chart) {
+  cairo_set_source_rgb(cr, 1, 1, 1);
+  cairo_paint(cr);
+  const std::optional<Frame> frame = frame_of(chart);
+  if (!frame) return;
+  for (const auto& s : chart.series) draw_series(cr, *frame, s);
+  draw_axes(cr, *frame, chart);
+  draw_legend(cr, *frame, chart);
+}
+
+// Map markers: shape and colour both vary by species (Okabe & Ito 2008: blue, vermillion,
+// bluish green, reddish purple, orange, sky blue).
+void draw_marker(cairo_t* cr, std::size_t s, double x, double y, double r) {
+  static constexpr Rgb marker_colours[] = {{0.0, 0.447, 0.698}, {0.835, 0.369, 0.0}, {0.0, 0.620, 0.451},
+                                           {0.8, 0.475, 0.655}, {0.902, 0.624, 0.0}, {0.337, 0.706, 0.914}};
+  set_colour(cr, marker_colours[s % 6]);
+  cairo_new_path(cr);
+  switch (s % 5) {
+    case 0: cairo_arc(cr, x, y, r, 0, two_pi); break;
+    case 1: cairo_rectangle(cr, x - r, y - r, 2 * r, 2 * r); break;
+    case 2:
+      cairo_move_to(cr, x, y - r * 1.2);
+      cairo_line_to(cr, x + r * 1.1, y + r * 0.8);
+      cairo_line_to(cr, x - r * 1.1, y + r * 0.8);
+      cairo_close_path(cr);
+      break;
+    case 3:
+      cairo_move_to(cr, x, y - r * 1.3);
+      cairo_line_to(cr, x + r * 1.1, y);
+      cairo_line_to(cr, x, y + r * 1.3);
+      cairo_line_to(cr, x - r * 1.1, y);
+      cairo_close_path(cr);
+      break;
+    default:
+      cairo_set_line_width(cr, 2.0);
+      cairo_move_to(cr, x - r, y - r);
+      cairo_line_to(cr, x + r, y + r);
+      cairo_move_to(cr, x - r, y + r);
+      cairo_line_to(cr, x + r, y - r);
+      cairo_stroke(cr);
+      return;
+  }
+  cairo_fill(cr);
+}
+
+// The map's area in pixels and the scale from metres.
+struct MapFrame {
+  double left = 30.0, top = 50.0, map_w = 520.0, map_h = 520.0;
+  Bounds bounds;
+  double scale = 1.0;
+  [[nodiscard]] double X(double x) const { return left + (x - bounds.xmin) * scale; }
+  [[nodiscard]] double Y(double y) const { return top + map_h - (y - bounds.ymin) * scale; }
+};
+
+// The window's parts and holes, filled even-odd and outlined.
+void draw_window(cairo_t* cr, const MapFrame& m, const Window& window) {
+  cairo_new_path(cr);
+  const auto ring_path = [&](const BgPolygon::ring_type& ring) {
+    for (std::size_t i = 0; i < ring.size(); ++i) {
+      if (i == 0) cairo_move_to(cr, m.X(ring[i].x()), m.Y(ring[i].y()));
+      else cairo_line_to(cr, m.X(ring[i].x()), m.Y(ring[i].y()));
+    }
+    cairo_close_path(cr);
+  };
+  for (const auto& polygon : window.shape()) {
+    ring_path(polygon.outer());
+    for (const auto& inner : polygon.inners()) ring_path(inner);
+  }
+  cairo_set_fill_rule(cr, CAIRO_FILL_RULE_EVEN_ODD);
+  cairo_set_source_rgb(cr, 0.96, 0.96, 0.93);
+  cairo_fill_preserve(cr);
+  cairo_set_source_rgb(cr, 0.1, 0.1, 0.1);
+  cairo_set_line_width(cr, 1.5);
+  cairo_stroke(cr);
+}
+
+void draw_map_legend(cairo_t* cr, const MapFrame& m, const MarkedPattern& pattern,
+                     const std::vector<std::string>& species) {
+  cairo_set_font_size(cr, 14.0);
+  double ly = m.top + 20;
+  std::vector<std::size_t> counts(species.size(), 0);
+  for (const auto mark : pattern.marks) ++counts[mark];
+  for (std::size_t s = 0; s < species.size(); ++s) {
+    draw_marker(cr, s, m.left + m.map_w + 30, ly - 5, 5.0);
+    cairo_set_source_rgb(cr, 0, 0, 0);
+    cairo_move_to(cr, m.left + m.map_w + 45, ly);
+    cairo_show_text(cr, (species[s] + " (" + std::to_string(counts[s]) + ")").c_str());
+    ly += 24;
+  }
+}
+
+// A round length (1, 2 or 5 × 10^k m) near a quarter of the map width.
+void draw_scale_bar(cairo_t* cr, const MapFrame& m) {
+  const double target = 0.25 * m.map_w / m.scale;
+  const double magnitude = std::pow(10.0, std::floor(std::log10(target)));
+  double length = magnitude;
+  for (const double k : {1.0, 2.0, 5.0, 10.0})
+    if (k * magnitude <= target) length = k * magnitude;
+  const double bx = m.left;
+  const double by = m.top + m.map_h + 30;
+  cairo_set_source_rgb(cr, 0, 0, 0);
+  cairo_rectangle(cr, bx, by, length * m.scale, 6);
+  cairo_fill(cr);
+  cairo_move_to(cr, bx + length * m.scale + 8, by + 7);
+  cairo_show_text(cr, (format_general(length) + " m").c_str());
 }
 
 // Ends drawing on `surface` and checks that cairo reported no failure on the way (a failed
@@ -275,93 +406,24 @@ std::string chart_png(const Chart& chart) {
 
 std::string plot_map_svg(const Plot& plot, const MarkedPattern& pattern, const std::vector<std::string>& species) {
   std::string out;
-  const double width = 760.0;
-  const double height = 620.0;
-  cairo_surface_t* surface = cairo_svg_surface_create_for_stream(append_to_string, &out, width, height);
+  cairo_surface_t* surface = cairo_svg_surface_create_for_stream(append_to_string, &out, 760.0, 620.0);
   cairo_t* cr = cairo_create(surface);
   cairo_set_source_rgb(cr, 1, 1, 1);
   cairo_paint(cr);
-  const Bounds& b = plot.window.bounds();
-  const double left = 30.0, top = 50.0, map_w = 520.0, map_h = 520.0;
-  const double scale = std::min(map_w / b.width(), map_h / b.height());
-  const auto X = [&](double x) { return left + (x - b.xmin) * scale; };
-  const auto Y = [&](double y) { return top + map_h - (y - b.ymin) * scale; };
-  // Window: parts and holes, even-odd fill.
-  cairo_new_path(cr);
-  for (const auto& polygon : plot.window.shape()) {
-    const auto ring_path = [&](const BgPolygon::ring_type& ring) {
-      for (std::size_t i = 0; i < ring.size(); ++i) {
-        if (i == 0) cairo_move_to(cr, X(ring[i].x()), Y(ring[i].y()));
-        else cairo_line_to(cr, X(ring[i].x()), Y(ring[i].y()));
-      }
-      cairo_close_path(cr);
-    };
-    ring_path(polygon.outer());
-    for (const auto& inner : polygon.inners()) ring_path(inner);
-  }
-  cairo_set_fill_rule(cr, CAIRO_FILL_RULE_EVEN_ODD);
-  cairo_set_source_rgb(cr, 0.96, 0.96, 0.93);
-  cairo_fill_preserve(cr);
-  cairo_set_source_rgb(cr, 0.1, 0.1, 0.1);
-  cairo_set_line_width(cr, 1.5);
-  cairo_stroke(cr);
-  // Markers: shape and colour both vary by species.
-  const auto marker = [&](std::size_t s, double x, double y, double r) {
-    // Okabe & Ito: blue, vermillion, bluish green, reddish purple, orange, sky blue.
-    static constexpr Rgb marker_colours[] = {{0.0, 0.447, 0.698}, {0.835, 0.369, 0.0}, {0.0, 0.620, 0.451},
-                                             {0.8, 0.475, 0.655}, {0.902, 0.624, 0.0}, {0.337, 0.706, 0.914}};
-    const Rgb c = marker_colours[s % 6];
-    cairo_set_source_rgb(cr, c.r, c.g, c.b);
-    cairo_new_path(cr);
-    switch (s % 5) {
-      case 0: cairo_arc(cr, x, y, r, 0, 2 * 3.14159265358979323846); break;
-      case 1: cairo_rectangle(cr, x - r, y - r, 2 * r, 2 * r); break;
-      case 2: cairo_move_to(cr, x, y - r * 1.2); cairo_line_to(cr, x + r * 1.1, y + r * 0.8);
-              cairo_line_to(cr, x - r * 1.1, y + r * 0.8); cairo_close_path(cr); break;
-      case 3: cairo_move_to(cr, x, y - r * 1.3); cairo_line_to(cr, x + r * 1.1, y);
-              cairo_line_to(cr, x, y + r * 1.3); cairo_line_to(cr, x - r * 1.1, y); cairo_close_path(cr); break;
-      default:
-        cairo_set_line_width(cr, 2.0);
-        cairo_move_to(cr, x - r, y - r); cairo_line_to(cr, x + r, y + r);
-        cairo_move_to(cr, x - r, y + r); cairo_line_to(cr, x + r, y - r);
-        cairo_stroke(cr);
-        return;
-    }
-    cairo_fill(cr);
-  };
+  MapFrame m;
+  m.bounds = plot.window.bounds();
+  m.scale = std::min(m.map_w / m.bounds.width(), m.map_h / m.bounds.height());
+  draw_window(cr, m, plot.window);
   for (std::size_t i = 0; i < pattern.points.size(); ++i)
-    marker(pattern.marks[i], X(pattern.points[i].x), Y(pattern.points[i].y), 3.5);
+    draw_marker(cr, pattern.marks[i], m.X(pattern.points[i].x), m.Y(pattern.points[i].y), 3.5);
   cairo_select_font_face(cr, "DejaVu Sans", CAIRO_FONT_SLANT_NORMAL, CAIRO_FONT_WEIGHT_NORMAL);
   cairo_set_font_size(cr, 18.0);
   cairo_set_source_rgb(cr, 0, 0, 0);
-  cairo_move_to(cr, left, 32);
+  cairo_move_to(cr, m.left, 32);
   cairo_show_text(cr, ("Plot " + plot.id + " (" + format_significant(plot.window.area_m2() / 1e4, 3) + " ha, " +
                        std::to_string(pattern.points.size()) + " sightings)").c_str());
-  // Legend.
-  cairo_set_font_size(cr, 14.0);
-  double ly = top + 20;
-  std::vector<std::size_t> counts(species.size(), 0);
-  for (const auto m : pattern.marks) ++counts[m];
-  for (std::size_t s = 0; s < species.size(); ++s) {
-    marker(s, left + map_w + 30, ly - 5, 5.0);
-    cairo_set_source_rgb(cr, 0, 0, 0);
-    cairo_move_to(cr, left + map_w + 45, ly);
-    cairo_show_text(cr, (species[s] + " (" + std::to_string(counts[s]) + ")").c_str());
-    ly += 24;
-  }
-  // Scale bar: a round length near a quarter of the map width.
-  const double target = 0.25 * map_w / scale;
-  const double magnitude = std::pow(10.0, std::floor(std::log10(target)));
-  double length = magnitude;
-  for (const double m : {1.0, 2.0, 5.0, 10.0})
-    if (m * magnitude <= target) length = m * magnitude;
-  const double bx = left;
-  const double by = top + map_h + 30;
-  cairo_set_source_rgb(cr, 0, 0, 0);
-  cairo_rectangle(cr, bx, by, length * scale, 6);
-  cairo_fill(cr);
-  cairo_move_to(cr, bx + length * scale + 8, by + 7);
-  cairo_show_text(cr, (format_general(length) + " m").c_str());
+  draw_map_legend(cr, m, pattern, species);
+  draw_scale_bar(cr, m);
   finish_drawing(cr, surface, "map of plot " + plot.id);
   return stable_ids(out);
 }

@@ -172,44 +172,43 @@ std::string randomness_json(const LoadedSurvey& survey, const RandomnessResult& 
   return json_text(doc);
 }
 
-std::string randomness_table(const LoadedSurvey& survey, const RandomnessResult& result) {
-  std::ostringstream out;
-  out << "stipple randomness\n";
-  out << "  sightings: " << survey.sightings_label << "\n";
-  if (!survey.plots_label.empty()) out << "  plots:     " << survey.plots_label << "\n";
-  out << "  CRS:       " << survey.crs.code << " (" << survey.crs.name << "); "
-      << crs_area_note(survey.crs) << "\n";
-  out << "  " << result.simulations << " CSR simulations (binomial process, same n and window), seed "
-      << result.seed << ", alpha " << format_general(result.alpha) << "\n\n";
+namespace {
+
+std::vector<std::string> group_row(const GroupResult& g) {
+  std::vector<std::string> row{g.plot, species_text(g.species), std::to_string(g.n)};
+  row.push_back(g.quadrat ? format_p_value(g.quadrat->p_value) + (g.quadrat->monte_carlo_p_value ? " (MC)" : "") : "-");
+  if (g.clark_evans) {
+    row.push_back(format_fixed(g.clark_evans->ratio, 3));
+    const double ce_p = g.clark_evans->monte_carlo_p_value.value_or(g.clark_evans->p_value);
+    row.push_back(std::isnan(ce_p) ? "-" : format_p_value(ce_p));
+    row.push_back(std::string(edge_correction_name(g.clark_evans->edge_correction)));
+  } else {
+    row.insert(row.end(), {"-", "-", "-"});
+  }
+  if (const EnvelopeResult* l = g.l_envelope()) {
+    row.push_back(format_significant(*g.rmax_m, 3));
+    row.push_back(format_p_value(l->mad_p_value));
+    row.push_back(format_p_value(l->dclf_p_value));
+  } else {
+    row.insert(row.end(), {"-", "-", "-"});
+  }
+  row.push_back(g.verdict);
+  return row;
+}
+
+void write_groups_table(std::ostream& out, const RandomnessResult& result) {
   TextTable table({"plot", "species", "n", "quadrat p", "CE ratio", "CE p", "edge", "L rmax_m",
                    "MAD p", "DCLF p", "verdict"},
                   2);
-  for (const auto& g : result.results) {
-    std::vector<std::string> row{g.plot, species_text(g.species), std::to_string(g.n)};
-    row.push_back(g.quadrat ? format_p_value(g.quadrat->p_value) + (g.quadrat->monte_carlo_p_value ? " (MC)" : "") : "-");
-    if (g.clark_evans) {
-      row.push_back(format_fixed(g.clark_evans->ratio, 3));
-      const double ce_p = g.clark_evans->monte_carlo_p_value.value_or(g.clark_evans->p_value);
-      row.push_back(std::isnan(ce_p) ? "-" : format_p_value(ce_p));
-      row.push_back(std::string(edge_correction_name(g.clark_evans->edge_correction)));
-    } else {
-      row.insert(row.end(), {"-", "-", "-"});
-    }
-    if (const EnvelopeResult* l = g.l_envelope()) {
-      row.push_back(format_significant(*g.rmax_m, 3));
-      row.push_back(format_p_value(l->mad_p_value));
-      row.push_back(format_p_value(l->dclf_p_value));
-    } else {
-      row.insert(row.end(), {"-", "-", "-"});
-    }
-    row.push_back(g.verdict);
-    table.add_row(std::move(row));
-  }
+  for (const auto& g : result.results) table.add_row(group_row(g));
   out << table.render();
   out << "  CE = Clark-Evans nearest-neighbour test (ratio R < 1 clustered, > 1 regular); CE p is the Monte Carlo\n"
          "  p-value when simulations ran; (MC) quadrat p: Monte Carlo; L rmax_m: largest distance of L (m);\n"
          "  MAD = maximum absolute deviation test, DCLF = Diggle-Cressie-Loosmore-Ford test, both global tests\n"
          "  of L against its CSR simulations; ERL = extreme rank length global envelope\n\n";
+}
+
+void write_departures(std::ostream& out, const RandomnessResult& result) {
   bool any_departure = false;
   for (const auto& g : result.results) {
     const EnvelopeResult* l = g.l_envelope();
@@ -222,25 +221,22 @@ std::string randomness_table(const LoadedSurvey& survey, const RandomnessResult&
         << ranges_text(*l, "clustered", "regular") << "\n";
   }
   if (any_departure) out << "\n";
-  if (!result.interactions.empty()) {
-    out << "Between species (random labelling, cross-L)\n";
-    TextTable pairs({"plot", "species a", "species b", "p", "direction", "distances"}, 3);
-    for (const auto& i : result.interactions)
-      pairs.add_row({i.plot, i.species_a, i.species_b, format_p_value(i.p_value), i.direction,
-                     ranges_text(i.cross_l, "association", "segregation")});
-    out << pairs.render();
-    out << "  p: DCLF test on cross-L; distances: where cross-L leaves its global (ERL) envelope\n\n";
-  }
-  if (!result.skipped.empty()) {
-    out << "Skipped\n";
-    for (const auto& s : result.skipped)
-      out << "  - " << s.plot << " " << species_text(s.species) << " (n = " << s.n << "): " << s.reason << "\n";
-    out << "\n";
-  }
-  // Small quadrat cells are common in small plots: one line for all, details in the JSON.
+}
+
+void write_interactions(std::ostream& out, const RandomnessResult& result) {
+  out << "Between species (random labelling, cross-L)\n";
+  TextTable pairs({"plot", "species a", "species b", "p", "direction", "distances"}, 3);
+  for (const auto& i : result.interactions)
+    pairs.add_row({i.plot, i.species_a, i.species_b, format_p_value(i.p_value), i.direction,
+                   ranges_text(i.cross_l, "association", "segregation")});
+  out << pairs.render();
+  out << "  p: DCLF test on cross-L; distances: where cross-L leaves its global (ERL) envelope\n\n";
+}
+
+// The notes of every group, each note shared by several groups (e.g. too few simulations)
+// once with a count; small quadrat cells, common in small plots, in one line for all.
+std::vector<std::string> table_notes(const LoadedSurvey& survey, const RandomnessResult& result) {
   std::size_t small_cells = 0;
-  std::vector<std::string> notes;
-  // A note shared by several groups (e.g. too few simulations) is printed once, with a count.
   std::vector<std::pair<std::string, std::vector<std::string>>> shared;  // note, groups
   for (const auto& g : result.results) {
     if (g.quadrat && g.quadrat->cells_too_small) ++small_cells;
@@ -252,21 +248,42 @@ std::string randomness_table(const LoadedSurvey& survey, const RandomnessResult&
       else it->second.push_back(group);
     }
   }
-  for (const auto& [note, groups] : shared) {
+  std::vector<std::string> notes;
+  for (const auto& [note, groups] : shared)
     notes.push_back(groups.size() == 1 ? groups.front() + ": " + note
                                        : std::to_string(groups.size()) + " groups: " + note);
-  }
-  std::size_t undetermined_pairs = 0;
-  for (const auto& i : result.interactions) {
-    if (i.note.empty()) continue;
-    if (undetermined_pairs++ == 0) notes.push_back("between species: " + i.note);
-  }
+  const auto undetermined = std::find_if(result.interactions.begin(), result.interactions.end(),
+                                         [](const auto& i) { return !i.note.empty(); });
+  if (undetermined != result.interactions.end()) notes.push_back("between species: " + undetermined->note);
   if (small_cells > 0)
     notes.push_back(std::to_string(small_cells) + " of " + std::to_string(result.results.size()) +
                     " groups have quadrat cells with expected counts below 5: their quadrat p-value "
                     "is the Monte Carlo one (consider fewer quadrats; per-group details in the JSON)");
   notes.insert(notes.end(), survey.notes.begin(), survey.notes.end());
-  if (!notes.empty()) {
+  return notes;
+}
+
+}  // namespace
+
+std::string randomness_table(const LoadedSurvey& survey, const RandomnessResult& result) {
+  std::ostringstream out;
+  out << "stipple randomness\n";
+  out << "  sightings: " << survey.sightings_label << "\n";
+  if (!survey.plots_label.empty()) out << "  plots:     " << survey.plots_label << "\n";
+  out << "  CRS:       " << survey.crs.code << " (" << survey.crs.name << "); "
+      << crs_area_note(survey.crs) << "\n";
+  out << "  " << result.simulations << " CSR simulations (binomial process, same n and window), seed "
+      << result.seed << ", alpha " << format_general(result.alpha) << "\n\n";
+  write_groups_table(out, result);
+  write_departures(out, result);
+  if (!result.interactions.empty()) write_interactions(out, result);
+  if (!result.skipped.empty()) {
+    out << "Skipped\n";
+    for (const auto& s : result.skipped)
+      out << "  - " << s.plot << " " << species_text(s.species) << " (n = " << s.n << "): " << s.reason << "\n";
+    out << "\n";
+  }
+  if (const auto notes = table_notes(survey, result); !notes.empty()) {
     out << "Notes\n";
     for (const auto& n : notes) out << "  - " << n << "\n";
   }
