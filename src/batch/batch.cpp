@@ -29,6 +29,10 @@ namespace stipple {
 
 namespace {
 
+bool ends_with(const std::string& text, const std::string& end) {
+  return text.size() >= end.size() && text.compare(text.size() - end.size(), end.size(), end) == 0;
+}
+
 using Json = nlohmann::ordered_json;
 
 std::string stem_of(const std::string& name) {
@@ -122,10 +126,10 @@ void analyse_plots(FileResults& r, const BatchOptions& options) {
     ro.threads = 1;  // files run in parallel already
     r.randomness = analyse_randomness(s, ro);
     if (options.figures)
-      for (auto& [file, svg] : randomness_figures(*r.randomness))
-        if (file.size() > 4 && file.substr(file.size() - 4) == ".svg" && file.rfind("L-", 0) == 0)
-          r.figures.push_back({{"L", "figures/" + stem + "/" + file, r.source.name + ": " + file.substr(0, file.size() - 4)},
-                               std::move(svg)});
+      for (auto& f : randomness_figures(*r.randomness))
+        if (ends_with(f.name, ".svg") && f.name.rfind("L-", 0) == 0)
+          r.figures.push_back({{"L", "figures/" + stem + "/" + f.name, r.source.name + ": " + f.title},
+                               std::move(f.content)});
   }
   if (options.surfaces) {
     const double per_unit = square_metres_per(options.density.unit);
@@ -155,11 +159,10 @@ void analyse_transect_file(FileResults& r, const BatchOptions& options) {
   r.input.warnings.insert(r.input.warnings.end(), loaded.warnings.begin(), loaded.warnings.end());
   if (options.figures) {
     const std::string stem = stem_of(r.source.name);
-    for (auto& [file, svg] : transect_figures(loaded, *r.transect))
-      if (file.size() > 4 && file.substr(file.size() - 4) == ".svg")
-        r.figures.push_back({{"detection", "figures/" + stem + "/" + file,
-                              r.source.name + ": " + file.substr(0, file.size() - 4)},
-                             std::move(svg)});
+    for (auto& f : transect_figures(loaded, *r.transect))
+      if (ends_with(f.name, ".svg"))
+        r.figures.push_back({{"detection", "figures/" + stem + "/" + f.name, r.source.name + ": " + f.title},
+                             std::move(f.content)});
   }
 }
 

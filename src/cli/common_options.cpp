@@ -231,11 +231,10 @@ void write_output(const std::string& path, const std::string& content,
   write_file_safely(path, content, inputs);
 }
 
-void write_folder(const std::string& folder, const std::vector<std::pair<std::string, std::string>>& files,
+void write_folder(const std::string& folder, const std::vector<FigureFile>& files,
                   const std::vector<std::string>& inputs) {
   make_folder(folder);
-  for (const auto& [name, content] : files)
-    write_file_safely((std::filesystem::path(folder) / name).string(), content, inputs);
+  for (const auto& f : files) write_file_safely((std::filesystem::path(folder) / f.name).string(), f.content, inputs);
 }
 
 }  // namespace stipple::cli

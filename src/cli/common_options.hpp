@@ -11,6 +11,7 @@
 #include <CLI/CLI.hpp>
 
 #include "stipple/io/reader.hpp"
+#include "stipple/report/figure.hpp"
 
 namespace stipple::cli {
 
@@ -87,7 +88,7 @@ void write_output(const std::string& path, const std::string& content,
                   const std::vector<std::string>& inputs);
 
 /// Writes (file name, content) pairs into `folder`, creating it, safely.
-void write_folder(const std::string& folder, const std::vector<std::pair<std::string, std::string>>& files,
+void write_folder(const std::string& folder, const std::vector<FigureFile>& files,
                   const std::vector<std::string>& inputs);
 
 }  // namespace stipple::cli

@@ -1,7 +1,8 @@
 #pragma once
 // Progress of a long single command on a terminal: a bar with an ETA on standard error,
 // shown only when standard error is a terminal and the work has run for two seconds
-// (short runs stay quiet), redrawn at most five times a second.
+// (short runs stay quiet), redrawn at most five times a second. The environment variable
+// STIPPLE_PROGRESS_DELAY (seconds) changes the two seconds; the tests set it to 0.
 
 #include <chrono>
 #include <cstddef>
@@ -23,6 +24,7 @@ class TerminalProgress {
   void update(std::size_t done, std::size_t total);
   std::string label_;
   bool terminal_ = false;
+  double delay_s_ = 2.0;
   bool shown_ = false;
   std::chrono::steady_clock::time_point start_;
   std::chrono::steady_clock::time_point last_;

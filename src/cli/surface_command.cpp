@@ -1,11 +1,13 @@
 // `stipple surface`: kernel-smoothed intensity surfaces per species as GeoTIFF.
 
 #include <filesystem>
+#include <functional>
 #include <iostream>
 #include <memory>
 
 #include "commands.hpp"
 #include "common_options.hpp"
+#include "progress.hpp"
 #include "stipple/error.hpp"
 #include "stipple/format.hpp"
 #include "stipple/intensity/kernel.hpp"
@@ -42,12 +44,25 @@ Action add_surface_command(CLI::App& app) {
     const Survey& s = survey.survey;
     // Every surface is computed before the folder is made, so a refusal leaves nothing behind.
     std::vector<std::pair<std::string, IntensityRaster>> rasters;
+    // Each species' surface and then all together: every sighting is smoothed twice.
+    TerminalProgress bar("stipple surface: sightings smoothed");
+    const auto draw = bar.callback();
+    const std::size_t all_work = 2 * s.sighting_count();
+    std::size_t finished = 0;
     for (std::size_t k = 0; k <= s.species.size(); ++k) {
       const std::optional<std::size_t> species = k < s.species.size() ? std::optional<std::size_t>(k) : std::nullopt;
-      rasters.emplace_back(species ? file_name_safe(s.species[k]) : "all-species",
-                           intensity_surface(s, species, per_unit,
-                                             o->pixel > 0.0 ? std::optional<double>(o->pixel) : std::nullopt,
-                                             o->bandwidth > 0.0 ? std::optional<double>(o->bandwidth) : std::nullopt));
+      std::function<void(std::size_t, std::size_t)> progress;
+      std::size_t smoothed = 0;  // sightings of this surface
+      if (draw)
+        progress = [&](std::size_t done, std::size_t total) {
+          smoothed = total;
+          draw(finished + done, all_work);
+        };
+      IntensityRaster raster =
+          intensity_surface(s, species, per_unit, o->pixel > 0.0 ? std::optional<double>(o->pixel) : std::nullopt,
+                            o->bandwidth > 0.0 ? std::optional<double>(o->bandwidth) : std::nullopt, progress);
+      finished += smoothed;
+      rasters.emplace_back(species ? file_name_safe(s.species[k]) : "all-species", std::move(raster));
     }
     make_folder(o->out);
     for (const auto& [name, raster] : rasters) {

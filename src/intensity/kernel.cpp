@@ -4,6 +4,7 @@
 #include <cmath>
 #include <limits>
 
+#include <boost/math/constants/constants.hpp>
 #include <boost/math/quadrature/gauss_kronrod.hpp>
 
 #include "stipple/error.hpp"
@@ -12,7 +13,7 @@
 namespace stipple {
 
 namespace {
-constexpr double pi = 3.14159265358979323846;
+constexpr double pi = boost::math::double_constants::pi;
 }  // namespace
 
 double scott_bandwidth(const std::vector<Point>& points) {
@@ -90,10 +91,11 @@ IntensityRaster make_raster(const Bounds& bounds, double pixel_m) {
 }
 
 double add_kernel_intensity(IntensityRaster& raster, const std::vector<Point>& points, const Window& window,
-                            double bandwidth_m, double per_unit) {
+                            double bandwidth_m, double per_unit,
+                            const std::function<void(std::size_t, std::size_t)>& progress) {
   if (!(bandwidth_m > 0.0)) throw AnalysisError("the kernel bandwidth must be positive");
   const double h2 = bandwidth_m * bandwidth_m;
-  const double norm = 1.0 / (2.0 * 3.14159265358979323846 * h2);
+  const double norm = 1.0 / (boost::math::double_constants::two_pi * h2);
   const double reach = 4.0 * bandwidth_m;
   const double px = raster.pixel_m;
   const auto centre = [&](std::size_t col, std::size_t row) {
@@ -120,7 +122,9 @@ double add_kernel_intensity(IntensityRaster& raster, const std::vector<Point>& p
   // Local edge correction: each sighting's kernel is divided by its own mass inside the
   // window, e_h(x_i), computed from the window's edges (gaussian_window_mass).
   std::vector<double> sum(raster.values.size(), 0.0);
-  for (const auto& p : points) {
+  for (std::size_t i = 0; i < points.size(); ++i) {
+    const Point& p = points[i];
+    if (progress) progress(i, points.size());
     const double mass = gaussian_window_mass(window, p, bandwidth_m);
     const double weight = mass > 0.0 ? norm / mass : 0.0;
     const long pc = col_of(p.x), pr = row_of(p.y);
@@ -134,6 +138,7 @@ double add_kernel_intensity(IntensityRaster& raster, const std::vector<Point>& p
       }
     }
   }
+  if (progress) progress(points.size(), points.size());
   for (const auto idx : inside) raster.values[idx] = sum[idx] * per_unit;
   double integral = 0.0;
   for (const auto idx : inside) integral += raster.values[idx];
@@ -141,7 +146,8 @@ double add_kernel_intensity(IntensityRaster& raster, const std::vector<Point>& p
 }
 
 IntensityRaster intensity_surface(const Survey& survey, std::optional<std::size_t> species, double per_unit,
-                                  std::optional<double> pixel_m, std::optional<double> bandwidth_m) {
+                                  std::optional<double> pixel_m, std::optional<double> bandwidth_m,
+                                  const std::function<void(std::size_t, std::size_t)>& progress) {
   if (survey.plots.empty()) throw AnalysisError("an intensity surface needs at least one plot");
   Bounds all = survey.plots.front().window.bounds();
   for (const auto& plot : survey.plots) {
@@ -172,9 +178,15 @@ IntensityRaster intensity_surface(const Survey& survey, std::optional<std::size_
   if (!pixel_m && std::isfinite(finest))
     pixel = std::max(std::min(pixel, finest / 10.0), std::sqrt(all.width() * all.height() / 20e6));
   IntensityRaster raster = make_raster(all, pixel);
+  std::size_t total = 0;
+  for (const auto& plot_points : points) total += plot_points.size();
+  std::size_t done = 0;
   for (std::size_t p = 0; p < survey.plots.size(); ++p) {
+    std::function<void(std::size_t, std::size_t)> plot_progress;
+    if (progress) plot_progress = [&](std::size_t i, std::size_t) { progress(done + i, total); };
     const double integral =
-        add_kernel_intensity(raster, points[p], survey.plots[p].window, bandwidths[p], per_unit);
+        add_kernel_intensity(raster, points[p], survey.plots[p].window, bandwidths[p], per_unit, plot_progress);
+    done += points[p].size();
     const auto n = static_cast<double>(points[p].size());
     if (n > 0.0 && std::abs(integral - n) > 0.02 * n) {
       raster.warnings.push_back("plot '" + survey.plots[p].id + "': the surface integrates to " +

@@ -327,17 +327,17 @@ std::string randomness_curves_csv(const RandomnessResult& result) {
   return out.str();
 }
 
-std::vector<std::pair<std::string, std::string>> randomness_figures(const RandomnessResult& result) {
-  std::vector<std::pair<std::string, std::string>> files;
+std::vector<FigureFile> randomness_figures(const RandomnessResult& result) {
+  std::vector<FigureFile> files;
   FileNamer namer;
   std::string manifest = "file,plot,species,figure\n";
   const auto add = [&](const std::string& stem, const std::string& title, const std::string& y_label,
-                       const EnvelopeResult& e, const std::string& caption) {
+                       const EnvelopeResult& e, const std::string& caption, const std::string& shows) {
     EnvelopeFigure f{title, y_label, e.r, e.observed, e.theoretical, e.pointwise_low,
                      e.pointwise_high, e.global_low, e.global_high, caption};
     const Chart chart = envelope_chart(f);
-    files.emplace_back(stem + ".svg", chart_svg(chart));
-    files.emplace_back(stem + ".png", chart_png(chart));
+    files.push_back({stem + ".svg", chart_svg(chart), shows});
+    files.push_back({stem + ".png", chart_png(chart), shows});
   };
   const auto list = [&](const std::string& stem, const std::string& plot, const std::string& species,
                         const std::string& figure) {
@@ -353,17 +353,19 @@ std::vector<std::pair<std::string, std::string>> randomness_figures(const Random
     add(stem, g.plot + " - " + species_text(g.species),
         "L(r) (m)", *l,
         std::to_string(l->simulations) + " CSR simulations; MAD p = " + format_p_value(l->mad_p_value) +
-            ", DCLF p = " + format_p_value(l->dclf_p_value) + "; verdict: " + g.verdict);
+            ", DCLF p = " + format_p_value(l->dclf_p_value) + "; verdict: " + g.verdict,
+        "L-function of " + species_text(g.species) + " in plot " + g.plot);
   }
   for (const auto& i : result.interactions) {
     const std::string stem = namer.stem("cross-L", {i.plot, i.species_a, i.species_b});
     list(stem, i.plot, i.species_a + " x " + i.species_b, "cross-L random labelling");
     add(stem, i.plot + " - " + i.species_b + " around " + i.species_a, "cross-L(r) (m)", i.cross_l,
         std::to_string(i.cross_l.simulations) + " random labellings; p = " + format_p_value(i.p_value) +
-            "; " + i.direction);
+            "; " + i.direction,
+        "cross-L of " + i.species_b + " around " + i.species_a + " in plot " + i.plot);
   }
   // Which file shows which plot and species: names are shortened or hashed when needed.
-  if (!files.empty()) files.emplace_back("figures.csv", manifest);
+  if (!files.empty()) files.push_back({"figures.csv", manifest, ""});
   return files;
 }
 

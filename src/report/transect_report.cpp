@@ -242,9 +242,8 @@ std::string transect_csv(const TransectResult& result) {
   return csv_text(transect_rows(result));
 }
 
-std::vector<std::pair<std::string, std::string>> transect_figures(const LoadedTransects& input,
-                                                                 const TransectResult& result) {
-  std::vector<std::pair<std::string, std::string>> files;
+std::vector<FigureFile> transect_figures(const LoadedTransects& input, const TransectResult& result) {
+  std::vector<FigureFile> files;
   std::set<std::string> done;
   FileNamer namer;
   std::string manifest = "file,species,figure\n";
@@ -286,8 +285,9 @@ std::vector<std::pair<std::string, std::string>> transect_figures(const LoadedTr
     const std::string stem = namer.stem("detection", {name});
     manifest += csv_field(stem + ".svg") + "," + csv_field(name) + ",detection function\n" +
                 csv_field(stem + ".png") + "," + csv_field(name) + ",detection function\n";
-    files.emplace_back(stem + ".svg", chart_svg(detection));
-    files.emplace_back(stem + ".png", chart_png(detection));
+    const std::string shows = "detection function of " + name;
+    files.push_back({stem + ".svg", chart_svg(detection), shows});
+    files.push_back({stem + ".png", chart_png(detection), shows});
 
     // Q-Q plot of exact distances within the truncation distance.
     std::vector<double> x;
@@ -309,13 +309,13 @@ std::vector<std::pair<std::string, std::string>> transect_figures(const LoadedTr
                           : std::string();
     qq.series = {ChartSeries{ChartSeries::Kind::dashed_line, {0.0, 1.0}, {0.0, 1.0}, {}, 1, "1:1"}, points};
     const std::string qq_stem = namer.stem("qq", {name});
-    files.emplace_back(qq_stem + ".svg", chart_svg(qq));
-    files.emplace_back(qq_stem + ".png", chart_png(qq));
+    files.push_back({qq_stem + ".svg", chart_svg(qq), "Q-Q plot of the distances of " + name});
+    files.push_back({qq_stem + ".png", chart_png(qq), "Q-Q plot of the distances of " + name});
     manifest += csv_field(qq_stem + ".svg") + "," + csv_field(name) + ",Q-Q plot\n" +
                 csv_field(qq_stem + ".png") + "," + csv_field(name) + ",Q-Q plot\n";
   }
   // Which file shows which species: names are shortened or hashed when needed.
-  if (!files.empty()) files.emplace_back("figures.csv", manifest);
+  if (!files.empty()) files.push_back({"figures.csv", manifest, ""});
   return files;
 }
 

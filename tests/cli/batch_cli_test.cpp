@@ -1,8 +1,11 @@
 // `stipple batch`, `merge`, `report` and `surface` as a user runs them on sample-plots/.
 
 #include <cairo.h>
+
+#include <algorithm>
 #include <filesystem>
 #include <fstream>
+#include <map>
 #include <regex>
 #include <set>
 #include <sstream>
@@ -342,6 +345,131 @@ TEST(BatchCli, ReportRendersInHeadlessChromium) {
   cairo_surface_destroy(image);
   // A blank page has no dark pixels; the report's text and tables cover several percent.
   EXPECT_GT(static_cast<double>(ink) / (static_cast<double>(width) * height), 0.02);
+}
+
+namespace {
+
+// A PNG screenshot of `page` by headless Chromium, `width` x `height` pixels.
+struct Screenshot {
+  cairo_surface_t* image = nullptr;
+  Screenshot(const TempDir& dir, const std::string& page, const std::string& name, int width, int height) {
+    const std::string png = dir.file(name + ".png");
+    const std::string command =
+        "/usr/bin/chromium --headless --no-sandbox --disable-gpu --disable-quic --no-first-run "
+        "--disable-background-networking --disable-component-update --disable-sync --hide-scrollbars "
+        "--force-device-scale-factor=1 --user-data-dir=" + dir.file("profile-" + name) + " --window-size=" +
+        std::to_string(width) + "," + std::to_string(height) + " --screenshot=" + png + " file://" + page +
+        " > /dev/null 2>&1";
+    if (std::system(command.c_str()) == 0) image = cairo_image_surface_create_from_png(png.c_str());
+  }
+  ~Screenshot() {
+    if (image != nullptr) cairo_surface_destroy(image);
+  }
+  Screenshot(const Screenshot&) = delete;
+  Screenshot& operator=(const Screenshot&) = delete;
+  [[nodiscard]] bool ok() const { return image != nullptr && cairo_surface_status(image) == CAIRO_STATUS_SUCCESS; }
+  // Darkest channel of the pixel at (x, y).
+  [[nodiscard]] int dark(int x, int y) const {
+    const unsigned char* px = cairo_image_surface_get_data(image) + y * cairo_image_surface_get_stride(image) + 4 * x;
+    return std::min({px[0], px[1], px[2]});
+  }
+};
+
+std::string unescape(std::string text) {
+  for (const auto& [entity, c] : {std::pair{"&lt;", "<"}, std::pair{"&gt;", ">"}, std::pair{"&quot;", "\""},
+                                  std::pair{"&#39;", "'"}, std::pair{"&amp;", "&"}})
+    for (auto at = text.find(entity); at != std::string::npos; at = text.find(entity, at + 1))
+      text.replace(at, std::string(entity).size(), c);
+  return text;
+}
+
+}  // namespace
+
+// Each figure as the report shows it must look as its own SVG file drawn alone. Both
+// pages lay the figures out on the same grid: the report with each inlined figure moved
+// onto its cell (the rest of the page under it), the reference with each figure's file as
+// an image (an image is its own document, so its ids cannot clash). Were the figures' glyph
+// ids to clash, the titles and labels in the report would take another figure's letter
+// shapes and the cells would differ where the text is.
+TEST(BatchCli, ReportFigureTitlesRenderAsTheirOwnFiles) {
+  if (!fs::exists("/usr/bin/chromium")) GTEST_SKIP() << "chromium not installed (scripts/install-deps.sh installs it)";
+  TempDir out;
+  ASSERT_EQ(run_cli(batch(sample("season"), out.file("o"), "--report")).exit_code, 0);
+  std::string html = read(out.file("o/report.html"));
+  // figures.csv: title -> file.
+  std::map<std::string, std::string> file_of;
+  {
+    std::ifstream in(out.file("o/figures.csv"));
+    std::string line;
+    std::getline(in, line);
+    while (std::getline(in, line)) {
+      const auto a = line.find(','), b = line.find(',', a + 1), c = line.find(',', b + 1);
+      file_of[line.substr(c + 1)] = line.substr(b + 1, c - b - 1);
+    }
+  }
+  constexpr int cell_w = 450, cell_h = 300, columns = 4;
+  std::string reference = "<!doctype html><html><body style=\"margin:0;background:#fff\">";
+  std::string placed;
+  std::size_t k = 0;
+  // Each inlined figure (std::regex recurses per character: found by hand).
+  std::string without_figures;
+  std::size_t from = 0;
+  for (auto open = html.find("<figure>"); open != std::string::npos; open = html.find("<figure>", from), ++k) {
+    const auto caption = html.find("<figcaption>", open);
+    const auto caption_end = html.find("</figcaption></figure>", caption);
+    ASSERT_NE(caption_end, std::string::npos);
+    const std::string svg = html.substr(open + 8, caption - open - 8);
+    const std::string title = unescape(html.substr(caption + 12, caption_end - caption - 12));
+    without_figures += html.substr(from, open - from);
+    from = caption_end + 22;
+    ASSERT_TRUE(file_of.count(title)) << "figure '" << title << "' is not in figures.csv";
+    const std::string at = "left:" + std::to_string(static_cast<int>(k % columns) * cell_w) + "px;top:" +
+                           std::to_string(static_cast<int>(k / columns) * cell_h) + "px;";
+    const std::string box = "position:absolute;" + at + "width:" + std::to_string(cell_w) + "px;height:" +
+                            std::to_string(cell_h) + "px;margin:0;display:block;";
+    reference += "<img style=\"" + box + "\" src=\"" + out.file("o/" + file_of[title]) + "\">";
+    placed += "<div style=\"" + box + "background:#fff;z-index:" + std::to_string(100 + k) + "\">" + svg + "</div>";
+  }
+  without_figures += html.substr(from);
+  html = without_figures;
+  ASSERT_GE(k, 20u);  // the demo season: 4 plot maps and the L figures
+  reference += "</body></html>";
+  // The report itself, with every inlined figure moved onto its cell above the page.
+  const std::string style =
+      "<style>html,body{margin:0!important;padding:0!important;background:#fff}"
+      ".cell svg{width:" + std::to_string(cell_w) + "px!important;height:" + std::to_string(cell_h) +
+      "px!important;border:0!important;display:block}</style>";
+  html.insert(html.find("</head>"), style);
+  html.insert(html.find("</body>"), "<div class=cell>" + placed + "</div>");
+  const std::string report_page = out.write("report-test.html", html);
+  const std::string reference_page = out.write("reference.html", reference);
+  const int rows = static_cast<int>((k + columns - 1) / columns);
+  const Screenshot shown(out, report_page, "report", columns * cell_w, rows * cell_h);
+  const Screenshot expected(out, reference_page, "reference", columns * cell_w, rows * cell_h);
+  ASSERT_TRUE(shown.ok() && expected.ok());
+  for (std::size_t f = 0; f < k; ++f) {
+    const int x0 = static_cast<int>(f % columns) * cell_w;
+    const int y0 = static_cast<int>(f / columns) * cell_h;
+    // Pixels that are ink in either image and differ between them, as a share of the ink:
+    // none in a faithful rendering; most of the text when letters take other shapes. First
+    // in the title band (the top 1/12 of the figure, where charts and maps put the title),
+    // then over the whole figure (axis labels, legend, caption).
+    const auto compare = [&](int height) {
+      std::size_t ink = 0, differ = 0;
+      for (int y = y0; y < y0 + height; ++y)
+        for (int x = x0; x < x0 + cell_w; ++x) {
+          if (std::min(shown.dark(x, y), expected.dark(x, y)) >= 160) continue;
+          ++ink;
+          differ += std::abs(shown.dark(x, y) - expected.dark(x, y)) > 64;
+        }
+      return std::pair{ink, static_cast<double>(differ) / static_cast<double>(std::max<std::size_t>(ink, 1))};
+    };
+    const auto [title_ink, title_differ] = compare(cell_h / 12);
+    const auto [ink, differ] = compare(cell_h);
+    EXPECT_GT(title_ink, 50u) << "figure " << f << ": no title drawn";
+    EXPECT_LT(title_differ, 0.05) << "figure " << f << ": title differs";
+    EXPECT_LT(differ, 0.02) << "figure " << f << " differs";
+  }
 }
 
 // Inlined SVGs share cairo's glyph and clip names; ids are global in an HTML page, so

@@ -4,10 +4,14 @@
 
 #include <algorithm>
 #include <cmath>
+#include <optional>
 
 #include <boost/geometry.hpp>
 #include <boost/math/distributions/normal.hpp>
 #include <gtest/gtest.h>
+
+#include "stipple/error.hpp"
+#include "stipple/geometry/survey.hpp"
 
 namespace stipple {
 namespace {
@@ -92,6 +96,74 @@ TEST(KernelSurface, KeepsItsMassAtTheEdges) {
   IntensityRaster raster = make_raster(Bounds{-0.17, -0.23, 50.0, 30.0}, 0.3);
   const double integral = add_kernel_intensity(raster, points, w, h, 1.0);
   EXPECT_NEAR(integral, 5.0, 0.1);
+}
+
+// Two plots, two species: plot A holds 6 oaks and 2 ashes, plot B 3 oaks.
+Survey two_plot_survey() {
+  std::vector<Sighting> sightings;
+  std::int64_t fid = 0;
+  for (const Point p : {Point{5, 5}, Point{12, 8}, Point{20, 20}, Point{30, 12}, Point{35, 30}, Point{8, 33}})
+    sightings.push_back({p, ++fid, "oak", std::nullopt});
+  for (const Point p : {Point{15, 25}, Point{28, 6}}) sightings.push_back({p, ++fid, "ash", std::nullopt});
+  for (const Point p : {Point{65, 10}, Point{72, 25}, Point{80, 18}}) sightings.push_back({p, ++fid, "oak", std::nullopt});
+  return assign_to_plots(sightings, {Plot{"A", Window::rectangle(0, 0, 40, 40)}, Plot{"B", Window::rectangle(60, 0, 90, 30)}});
+}
+
+// Sum of the raster's values over the pixels whose centres lie in `w`, times the pixel area.
+double mass_in(const IntensityRaster& raster, const Window& w) {
+  double sum = 0.0;
+  for (std::size_t row = 0; row < raster.height; ++row)
+    for (std::size_t col = 0; col < raster.width; ++col) {
+      const Point u{raster.x_min + (static_cast<double>(col) + 0.5) * raster.pixel_m,
+                    raster.y_max - (static_cast<double>(row) + 0.5) * raster.pixel_m};
+      const double v = raster.values[row * raster.width + col];
+      if (w.contains_almost_surely(u) && std::isfinite(v)) sum += v;
+    }
+  return sum * raster.pixel_m * raster.pixel_m;
+}
+
+TEST(IntensitySurface, EachPlotKeepsItsOwnSpeciesCount) {
+  // Every plot is smoothed in its own window with the local correction, so each plot's
+  // surface integrates to its own count of the species (van Lieshout 2012, from memory),
+  // within the 2% the pixel grid allows; per hectare the same mass divided by 1e4.
+  const Survey s = two_plot_survey();
+  const std::size_t oak = 1;  // species are sorted: ash, oak
+  ASSERT_EQ(s.species[oak], "oak");
+  const IntensityRaster per_m2 = intensity_surface(s, oak, 1.0, std::nullopt, 4.0);
+  EXPECT_NEAR(mass_in(per_m2, s.plots[0].window), 6.0, 0.12);
+  EXPECT_NEAR(mass_in(per_m2, s.plots[1].window), 3.0, 0.06);
+  const IntensityRaster all = intensity_surface(s, std::nullopt, 1.0, std::nullopt, 4.0);
+  EXPECT_NEAR(mass_in(all, s.plots[0].window), 8.0, 0.16);
+  const IntensityRaster per_ha = intensity_surface(s, oak, 1e4, std::nullopt, 4.0);
+  EXPECT_NEAR(mass_in(per_ha, s.plots[0].window) / 1e4, 6.0, 0.12);
+  EXPECT_TRUE(per_m2.warnings.empty());
+  // Between the plots there is no window: no value.
+  const auto col = static_cast<std::size_t>((50.0 - per_m2.x_min) / per_m2.pixel_m);
+  EXPECT_TRUE(std::isnan(per_m2.values[col]));
+}
+
+TEST(IntensitySurface, RefusesAPixelCoarserThanTheKernel) {
+  EXPECT_THROW(static_cast<void>(intensity_surface(two_plot_survey(), std::nullopt, 1.0, 5.0, 4.0)), InputError);
+}
+
+TEST(IntensitySurface, ReportsProgressOverTheSightingsItSmooths) {
+  // Progress counts the sightings of the surface (9 oaks), never goes back, and ends at
+  // (9, 9); a surface of all species counts all 11.
+  const Survey s = two_plot_survey();
+  for (const auto& [species, expected] : {std::pair{std::optional<std::size_t>(1), std::size_t{9}},
+                                          std::pair{std::optional<std::size_t>(), std::size_t{11}}}) {
+    std::vector<std::pair<std::size_t, std::size_t>> calls;
+    static_cast<void>(intensity_surface(s, species, 1.0, std::nullopt, 4.0,
+                                        [&](std::size_t done, std::size_t total) { calls.emplace_back(done, total); }));
+    ASSERT_FALSE(calls.empty());
+    EXPECT_EQ(calls.back(), (std::pair{expected, expected}));
+    for (std::size_t i = 0; i < calls.size(); ++i) {
+      EXPECT_EQ(calls[i].second, expected);
+      if (i > 0) {
+        EXPECT_GE(calls[i].first, calls[i - 1].first);
+      }
+    }
+  }
 }
 
 }  // namespace

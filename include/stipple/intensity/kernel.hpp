@@ -2,6 +2,7 @@
 /// Kernel-smoothed intensity surfaces with edge correction.
 
 #include <cstddef>
+#include <functional>
 #include <optional>
 #include <string>
 #include <vector>
@@ -43,9 +44,10 @@ struct IntensityRaster {
 /// gaussian_window_mass (Diggle 1985; Jones 1993; van Lieshout 2012: the surface integrates
 /// over W to exactly n), scaled by `per_unit` (square metres per unit area). Returns the
 /// surface's integral over the window's pixels (expected number of sightings), to check its
-/// mass.
+/// mass. `progress`, when given, is called with (sightings done, sightings in `points`).
 double add_kernel_intensity(IntensityRaster& raster, const std::vector<Point>& points, const Window& window,
-                          double bandwidth_m, double per_unit);
+                            double bandwidth_m, double per_unit,
+                            const std::function<void(std::size_t, std::size_t)>& progress = {});
 
 /// The surface of one species (or all together) over every plot of a survey: one raster
 /// covering all plots, each plot smoothed in its own window with its own Scott bandwidth
@@ -54,9 +56,11 @@ double add_kernel_intensity(IntensityRaster& raster, const std::vector<Point>& p
 /// the plots' extent, or a tenth of the smallest bandwidth when that is finer (at most 20
 /// million pixels), so every kernel spans many pixels; a given `pixel_m` larger than a bandwidth is refused
 /// (InputError). A plot whose surface integrates to more than 2% away from its count gets a
-/// warning in the raster. Values per unit area (`per_unit` square metres).
+/// warning in the raster. Values per unit area (`per_unit` square metres). `progress`, when
+/// given, is called with (sightings smoothed, sightings of the surface) as the work goes on.
 [[nodiscard]] IntensityRaster intensity_surface(const Survey& survey, std::optional<std::size_t> species,
                                                 double per_unit, std::optional<double> pixel_m,
-                                                std::optional<double> bandwidth_m);
+                                                std::optional<double> bandwidth_m,
+                                                const std::function<void(std::size_t, std::size_t)>& progress = {});
 
 }  // namespace stipple

@@ -31,6 +31,14 @@ struct Chart {
 /// PNG bytes, 900 x 600 px.
 [[nodiscard]] std::string chart_png(const Chart& chart);
 
+/// A file of a folder of figures: its name, its bytes, and what it shows in words (for a
+/// caption; empty for the folder's manifest).
+struct FigureFile {
+  std::string name;
+  std::string content;
+  std::string title;
+};
+
 /// A summary function with its Monte Carlo envelopes, as a chart.
 struct EnvelopeFigure {
   std::string title;

@@ -7,6 +7,7 @@
 
 #include "stipple/io/reader.hpp"
 #include "stipple/randomness/analysis.hpp"
+#include "stipple/report/figure.hpp"
 
 namespace stipple {
 
@@ -21,9 +22,9 @@ namespace stipple {
 /// One row per group, function and distance: plot, species, species_b, function, r,
 /// observed, theoretical, low, high (pointwise envelope), global_low, global_high.
 [[nodiscard]] std::string randomness_curves_csv(const RandomnessResult& result);
-/// One (file name, content) pair per figure: L with its envelopes, SVG and PNG, per group
-/// and per species pair.
-[[nodiscard]] std::vector<std::pair<std::string, std::string>> randomness_figures(
+/// The figures: L with its envelopes, SVG and PNG, per group and per species pair, and a
+/// manifest `figures.csv` of which file shows which plot and species.
+[[nodiscard]] std::vector<FigureFile> randomness_figures(
     const RandomnessResult& result);
 
 }  // namespace stipple

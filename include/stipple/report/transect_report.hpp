@@ -6,6 +6,7 @@
 #include <vector>
 
 #include "stipple/io/transect_reader.hpp"
+#include "stipple/report/figure.hpp"
 #include "stipple/transect/estimate.hpp"
 
 namespace stipple {
@@ -24,7 +25,7 @@ namespace stipple {
 [[nodiscard]] std::string transect_csv(const TransectResult& result);
 /// Per fitted detection function: the distance histogram scaled to g with the fitted curve,
 /// and a Q-Q plot of exact distances; SVG and PNG (file name, content).
-[[nodiscard]] std::vector<std::pair<std::string, std::string>> transect_figures(const LoadedTransects& input,
+[[nodiscard]] std::vector<FigureFile> transect_figures(const LoadedTransects& input,
                                                                                const TransectResult& result);
 
 }  // namespace stipple
