@@ -75,6 +75,16 @@ bool file_exists(const fs::path& path) {
   return fs::exists(path, ec);
 }
 
+// The chi-square part of a homogeneity or composition record.
+template <typename Test>
+void read_chi_square_test(const Json& record, Test& t) {
+  t.chi_square.statistic = record.value("statistic", 0.0);
+  t.chi_square.df = record.value("df", 0.0);
+  t.p_value = record.value("p_value", 1.0);
+  t.monte_carlo = record.value("p_value_method", "") == "monte-carlo";
+  t.significant = record.value("significant", false);
+}
+
 std::optional<double> opt_number(const Json& v) {
   return v.is_number() ? std::optional<double>(v.get<double>()) : std::nullopt;
 }
@@ -134,12 +144,8 @@ PooledEstimate pooled_of(const Json& p) {
   if (p["homogeneity"].is_object()) {
     const Json& h = p["homogeneity"];
     HomogeneityTest t;
-    t.chi_square.statistic = h.value("statistic", 0.0);
-    t.chi_square.df = h.value("df", 0.0);
-    t.p_value = h.value("p_value", 1.0);
-    t.monte_carlo = h.value("p_value_method", "") == "monte-carlo";
+    read_chi_square_test(h, t);
     t.dispersion_ratio = h.value("dispersion_ratio", 0.0);
-    t.significant = h.value("significant", false);
     t.between_plot_se = h.value("between_plot_se", 0.0);
     t.between_plot_ci = interval_of(h["between_plot_ci"]);
     t.corrected_between_plot_se = h.value("corrected_between_plot_se", 0.0);
@@ -422,11 +428,7 @@ DensityResult pooled_result_of(const Json& doc) {
   if (doc["composition"].is_object()) {
     const Json& c = doc["composition"];
     CompositionTest t;
-    t.chi_square.statistic = c.value("statistic", 0.0);
-    t.chi_square.df = c.value("df", 0.0);
-    t.p_value = c.value("p_value", 1.0);
-    t.monte_carlo = c.value("p_value_method", "") == "monte-carlo";
-    t.significant = c.value("significant", false);
+    read_chi_square_test(c, t);
     pooled.composition = t;
   }
   return pooled;
