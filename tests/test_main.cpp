@@ -19,7 +19,7 @@ int main(int argc, char** argv) {
       break;
     }
   }
-  stipple::initialise_gdal();
+  stipple::register_gdal_drivers();
   ::testing::InitGoogleTest(&argc, argv);
   return RUN_ALL_TESTS();
 }

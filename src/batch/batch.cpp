@@ -13,10 +13,11 @@
 #include "json_text.hpp"
 #include "report/records.hpp"
 #include "stipple/error.hpp"
+#include "stipple/version.hpp"
 #include "stipple/format.hpp"
 #include "stipple/io/inspect.hpp"
 #include "stipple/io/output.hpp"
-#include "stipple/parallel.hpp"
+#include "detail/parallel.hpp"
 #include "stipple/report/density_report.hpp"
 #include "stipple/report/figure.hpp"
 #include "stipple/report/randomness_report.hpp"
@@ -422,7 +423,7 @@ class SeasonWriter {
     const Table table = pooled_rows(pooled);
     write_file_safely((dir_ / "pooled.csv").string(), csv_text(table), protect_);
     Json doc;
-    doc["stipple_version"] = STIPPLE_VERSION;
+    doc["stipple_version"] = std::string(version());
     doc["command"] = "batch";
     doc["crs"] = crs_code_;
     doc["unit"] = std::string(unit_name(pooled.unit));
@@ -444,7 +445,7 @@ class SeasonWriter {
   void write_run(const std::vector<std::string>& season_warnings) {
     const SeasonRun& run = summary_.report.run;
     Json doc;
-    doc["stipple_version"] = STIPPLE_VERSION;
+    doc["stipple_version"] = std::string(version());
     doc["options"] = run.options_text;
     doc["analyses"] = Json::array();
     if (run.density) doc["analyses"].push_back("density");

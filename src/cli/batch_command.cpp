@@ -16,6 +16,7 @@
 #include "progress.hpp"
 #include "stipple/batch/batch.hpp"
 #include "stipple/error.hpp"
+#include "stipple/version.hpp"
 #include "stipple/format.hpp"
 #include "stipple/io/output.hpp"
 #include "stipple/randomness/quadrat.hpp"
@@ -340,7 +341,7 @@ std::string detection_text(const BatchCommandOptions& o, const std::optional<Det
 SeasonRun season_run_of(const BatchCommandOptions& o, const BatchOptions& options,
                         const std::optional<Detection>& single) {
   SeasonRun run;
-  run.version = STIPPLE_VERSION;
+  run.version = std::string(version());
   run.options_text = options_used_text(o);
   run.density = options.run_density;
   run.randomness = options.run_randomness;

@@ -14,6 +14,7 @@
 #include "common_options.hpp"
 #include "stipple/error.hpp"
 #include "stipple/io/gdal_session.hpp"
+#include "stipple/version.hpp"
 
 namespace {
 
@@ -56,7 +57,7 @@ int main(int argc, char** argv) {
   using stipple::ExitCode;
   CLI::App app{"stipple: densities and spatial-randomness tests for mapped sightings of plants "
                "and animals"};
-  app.set_version_flag("--version", std::string("stipple ") + STIPPLE_VERSION);
+  app.set_version_flag("--version", std::string("stipple ") + std::string(stipple::version()));
   app.require_subcommand(1);
   std::vector<stipple::cli::Action> actions{stipple::cli::add_density_command(app),
                                             stipple::cli::add_randomness_command(app),
@@ -88,7 +89,7 @@ int main(int argc, char** argv) {
     return static_cast<int>(ExitCode::bad_input);
   }
   try {
-    stipple::initialise_gdal();
+    stipple::register_gdal_drivers();
     for (const auto& action : actions) {
       const int code = action();
       if (code < 0) continue;

@@ -5,6 +5,7 @@
 #include <limits>
 #include <sstream>
 
+#include <boost/math/constants/constants.hpp>
 #include <boost/geometry.hpp>
 
 #include "stipple/error.hpp"
@@ -64,7 +65,7 @@ double Window::boundary_distance(const Point& p) const {
 
 double Window::circle_fraction_inside(const Point& c, double r) const {
   constexpr double two_pi = 6.283185307179586;
-  constexpr double pi = 3.141592653589793;
+  constexpr double pi = boost::math::double_constants::pi;
   if (!(r > 0.0)) return contains_almost_surely(c) ? 1.0 : 0.0;
   // Crossings of the circle with every edge: angle and unit direction from the centre.
   struct Crossing {

@@ -233,7 +233,8 @@ DensityResult estimate_density(const PlotCounts& table, const DensityOptions& op
     pooled.ci = e.ci;
     pooled.corrected = e.corrected;
     if (n_plots >= 2 && pooled.count > 0) {
-      const std::string key = "homogeneity/" + (pooled.species ? *pooled.species : std::string());
+      const std::string key =
+          seed_key({"homogeneity", pooled.species ? "species" : "all species", pooled.species.value_or("")});
       pooled.homogeneity = test_homogeneity(plot_counts, areas, options, result.alpha, key);
       std::vector<std::size_t> used_species;
       for (std::size_t s = 0; s < n_species; ++s)
@@ -263,7 +264,7 @@ DensityResult estimate_density(const PlotCounts& table, const DensityOptions& op
     c.chi_square = pearson_contingency(counts);
     c.p_value = c.chi_square.p_upper;
     if (needs_monte_carlo(c.chi_square) && options.simulations > 0) {
-      Engine engine(derive_seed(options.seed, "composition"));
+      Engine engine(derive_seed(options.seed, seed_key({"composition"})));
       c.chi_square.monte_carlo_p_value =
           contingency_monte_carlo_p(counts, options.simulations, engine);
       c.chi_square.simulations = options.simulations;

@@ -1,6 +1,8 @@
 // Local equal-area analysis CRS and geodesic areas (PROJ's geodesic routines, Karney 2013).
 
 #include <cmath>
+
+#include <boost/math/constants/constants.hpp>
 #include <cstdio>
 
 #include <cpl_conv.h>
@@ -13,7 +15,7 @@ namespace stipple::io_detail {
 
 namespace {
 
-constexpr double degree = 3.14159265358979323846 / 180.0;
+constexpr double degree = boost::math::double_constants::degree;
 
 OGRSpatialReference geographic_of(const OGRSpatialReference& srs) {
   OGRSpatialReference geographic;

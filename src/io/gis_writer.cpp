@@ -106,6 +106,7 @@ struct PlotResultsWriter::State {
 PlotResultsWriter::PlotResultsWriter(const std::string& path, const std::string& crs_wkt,
                                      const std::vector<std::string>& protect)
     : state_(std::make_unique<State>(path, protect)) {
+  const GdalScope gdal;
   const FixedDate fixed;
   GDALDriver* driver = GetGDALDriverManager()->GetDriverByName("GPKG");
   if (driver == nullptr) throw Error("GDAL has no GeoPackage driver");
@@ -118,9 +119,13 @@ PlotResultsWriter::PlotResultsWriter(const std::string& path, const std::string&
       create_layer(*state_->ds, "plot_species", state_->srs, std::begin(wide_fields), std::end(wide_fields), path);
 }
 
-PlotResultsWriter::~PlotResultsWriter() = default;
+PlotResultsWriter::~PlotResultsWriter() {
+  const GdalScope gdal;  // closing an uncommitted GeoPackage talks to GDAL too
+  state_.reset();
+}
 
 void PlotResultsWriter::add(const std::vector<PlotResultFeature>& features, const std::string& source_crs_wkt) {
+  const GdalScope gdal;
   State& st = *state_;
   if (!st.ds) throw InputError(st.path + ": written after it was committed");
   const FixedDate fixed;
@@ -185,6 +190,7 @@ void PlotResultsWriter::add(const std::vector<PlotResultFeature>& features, cons
 }
 
 void PlotResultsWriter::commit() {
+  const GdalScope gdal;
   State& st = *state_;
   if (!st.ds) throw InputError(st.path + ": committed twice");
   const FixedDate fixed;
@@ -194,6 +200,7 @@ void PlotResultsWriter::commit() {
 
 void write_plot_results(const std::string& path, const std::string& crs_wkt,
                         const std::vector<PlotResultFeature>& features, const std::vector<std::string>& protect) {
+  const GdalScope gdal;
   PlotResultsWriter writer(path, crs_wkt, protect);
   writer.add(features, crs_wkt);
   writer.commit();
@@ -201,6 +208,7 @@ void write_plot_results(const std::string& path, const std::string& crs_wkt,
 
 void merge_plot_results(const std::vector<std::string>& inputs, const std::string& path,
                         const std::vector<std::string>& protect) {
+  const GdalScope gdal;
   // Every shard's features, ordered by file (stable), reprojected to the first shard's CRS.
   std::vector<std::pair<PlotResultFeature, std::string>> all;  // feature, its CRS as WKT
   std::string target;
@@ -258,6 +266,7 @@ void merge_plot_results(const std::vector<std::string>& inputs, const std::strin
 
 void write_geotiff(const std::string& path, const IntensityRaster& raster, const std::string& crs_wkt,
                    const std::string& description, const std::vector<std::string>& protect) {
+  const GdalScope gdal;
   TemporaryOutput output(checked_output_path(path, protect), true);
   const std::string& temporary = output.path();
   GDALDriver* driver = GetGDALDriverManager()->GetDriverByName("GTiff");

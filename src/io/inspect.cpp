@@ -92,6 +92,7 @@ void summarise_plots(OGRLayer& layer, const std::optional<OGRSpatialReference>& 
 }  // namespace
 
 SourceSummary inspect_source(const std::string& path, const InspectOptions& options) {
+  const GdalScope gdal;
   DatasetPtr dataset = open_vector(path, CsvColumns{options.x_field, options.y_field}, options.encoding);
   SourceSummary source;
   source.path = path;
@@ -141,6 +142,7 @@ SourceSummary inspect_source(const std::string& path, const InspectOptions& opti
 }
 
 std::vector<LayerShape> layer_shapes(const std::string& path) {
+  const GdalScope gdal;
   DatasetPtr dataset = open_vector(path);
   std::vector<LayerShape> shapes;
   for (int i = 0; i < dataset->GetLayerCount(); ++i) {

@@ -474,6 +474,7 @@ double window_area_error(const std::vector<Plot>& plots, const OGRSpatialReferen
 }  // namespace
 
 LoadedSurvey load_survey(const SurveyReadOptions& options) {
+  const GdalScope gdal;
   if (options.window == WindowMode::plots && !options.plots) {
     throw InputError("the analysis needs the surveyed area: give the plot polygons with --plots PATH "
                      "(or --window convex-hull for a model-based window estimated from the "
@@ -538,6 +539,7 @@ LoadedSurvey load_survey(const SurveyReadOptions& options) {
 }
 
 DetectionTable read_detection_table(const std::string& path, std::optional<Detection> fallback) {
+  const GdalScope gdal;
   DatasetPtr dataset = open_vector(path);
   OGRLayer& layer = pick_layer(*dataset, path, std::nullopt, LayerKind::points, "a single table");
   const std::string label = path;

@@ -478,6 +478,7 @@ void read_study_area(const TransectReadOptions& options, const OGRSpatialReferen
 }  // namespace
 
 LoadedTransects load_transects(const TransectReadOptions& options) {
+  const GdalScope gdal;
   if (!options.lines == !options.stations)
     throw InputError("give the transects with exactly one of --lines PATH or --stations PATH");
   const bool is_line = options.lines.has_value();

@@ -4,37 +4,25 @@
 #include <cmath>
 #include <numeric>
 
-#include <boost/random/uniform_int_distribution.hpp>
+#include <boost/math/constants/constants.hpp>
+
 
 #include "stipple/error.hpp"
 #include "stipple/format.hpp"
 #include "stipple/geometry/spatial_index.hpp"
-#include "stipple/parallel.hpp"
+#include "detail/parallel.hpp"
+#include "stats/shuffle.hpp"
+#include "stipple/stats/monte_carlo.hpp"
 #include "stipple/simulate/point_process.hpp"
 
 namespace stipple {
 
 namespace {
 
-constexpr double pi = 3.14159265358979323846;
+constexpr double pi = boost::math::double_constants::pi;
 
 std::string group_key(const std::string& plot, const std::optional<std::string>& species) {
-  return plot + "/" + (species ? *species : std::string("*"));
-}
-
-// Two-sided Monte Carlo p of a statistic against simulated values (Hope 1968).
-double two_sided_monte_carlo(double observed, const std::vector<double>& simulated) {
-  std::size_t upper = 0;
-  std::size_t lower = 0;
-  std::size_t used = 0;
-  for (const double v : simulated) {
-    if (std::isnan(v)) continue;
-    ++used;
-    upper += v >= observed ? 1u : 0u;
-    lower += v <= observed ? 1u : 0u;
-  }
-  const double n = static_cast<double>(used + 1);
-  return std::min(1.0, 2.0 * std::min(static_cast<double>(upper + 1), static_cast<double>(lower + 1)) / n);
+  return seed_key({"group", plot, species ? "species" : "all species", species.value_or("")});
 }
 
 std::vector<double> curve_of(const SummaryCurves& c, std::size_t which) {
@@ -99,7 +87,7 @@ GroupResult analyse_pattern(const std::vector<Point>& points, const Window& wind
   if (options.run_quadrat) {
     QuadratOptions q = options.quadrat;
     q.simulations = options.simulations;
-    Engine engine(derive_seed(options.seed, key + "/quadrat"));
+    Engine engine(derive_seed(options.seed, key + seed_key({"quadrat"})));
     try {
       g.quadrat = quadrat_test(points, window, q, engine);
     } catch (const AnalysisError& e) {
@@ -145,7 +133,7 @@ GroupResult analyse_pattern(const std::vector<Point>& points, const Window& wind
     const NeighbourEdgeCorrection ce_correction =
         g.clark_evans ? g.clark_evans->edge_correction : NeighbourEdgeCorrection::none;
     parallel_for(options.simulations, options.threads, [&](std::size_t s) {
-      Engine engine(derive_seed(options.seed, key + "/sim/" + std::to_string(s)));
+      Engine engine(derive_seed(options.seed, key + seed_key({"csr", std::to_string(s)})));
       const std::vector<Point> pattern = simulate_binomial(window, n, engine);
       simulated[s] = summary_functions(pattern, context);
       simulated_ce[s] = clark_evans_mean(simulated[s].nearest, simulated[s].boundary, window, ce_correction);
@@ -154,7 +142,7 @@ GroupResult analyse_pattern(const std::vector<Point>& points, const Window& wind
       std::vector<double>().swap(simulated[s].boundary);
     });
     if (g.clark_evans) {
-      g.clark_evans->monte_carlo_p_value = two_sided_monte_carlo(g.clark_evans->mean_distance, simulated_ce);
+      g.clark_evans->monte_carlo_p_value = monte_carlo_tails(g.clark_evans->mean_distance, simulated_ce).two_sided;
       if (g.clark_evans->edge_correction == NeighbourEdgeCorrection::border) {
         g.clark_evans->p_value = *g.clark_evans->monte_carlo_p_value;
         g.clark_evans->p_value_method = "monte-carlo";
@@ -257,12 +245,9 @@ InteractionResult random_labelling_test(const std::vector<Point>& a, const std::
     const std::size_t last = std::min(options.simulations, first + batch);
     std::vector<std::vector<std::uint8_t>> labellings;
     for (std::size_t s = first; s < last; ++s) {
-      Engine engine(derive_seed(options.seed, key + "/labelling/" + std::to_string(s)));
+      Engine engine(derive_seed(options.seed, key + seed_key({"labelling", std::to_string(s)})));
       std::vector<std::uint8_t> shuffled = labels;
-      for (std::size_t i = shuffled.size(); i > 1; --i) {
-        boost::random::uniform_int_distribution<std::size_t> pick(0, i - 1);
-        std::swap(shuffled[i - 1], shuffled[pick(engine)]);
-      }
+      shuffle(shuffled, engine);
       labellings.push_back(std::move(shuffled));
     }
     auto curves = cross_l_batch(labellings);
@@ -350,7 +335,7 @@ RandomnessResult analyse_randomness(const Survey& survey, const RandomnessOption
         if (by_species[s].size() < 2 || by_species[t].size() < 2) continue;
         InteractionResult ir = random_labelling_test(
             by_species[s], by_species[t], plot.window, options,
-            plot.id + "/" + survey.species[s] + "|" + survey.species[t]);
+            seed_key({"pair", plot.id, survey.species[s], survey.species[t]}));
         ir.plot = plot.id;
         ir.species_a = survey.species[s];
         ir.species_b = survey.species[t];

@@ -5,16 +5,13 @@
 #include <limits>
 #include <numeric>
 
+#include "stats/quantile.hpp"
 #include "stipple/error.hpp"
-#include "stipple/quantile.hpp"
+#include "stipple/stats/monte_carlo.hpp"
 
 namespace stipple {
 
 namespace {
-
-bool at_least(double simulated, double observed) {
-  return simulated >= observed - 1e-12 * std::max(1.0, std::abs(observed));
-}
 
 double quantile(std::vector<double> values, double q) {
   std::sort(values.begin(), values.end());
@@ -93,11 +90,11 @@ EnvelopeResult envelope_test(const std::vector<double>& r, const std::vector<dou
     double dclf = 0.0;
     double mean_dev = 0.0;
     statistics(sim, mad, dclf, mean_dev);
-    mad_extreme += at_least(mad, e.mad_statistic) ? 1u : 0u;
-    dclf_extreme += at_least(dclf, e.dclf_statistic) ? 1u : 0u;
+    mad_extreme += at_least_as_large(mad, e.mad_statistic) ? 1U : 0U;
+    dclf_extreme += at_least_as_large(dclf, e.dclf_statistic) ? 1U : 0U;
   }
-  e.mad_p_value = static_cast<double>(1 + mad_extreme) / static_cast<double>(s + 1);
-  e.dclf_p_value = static_cast<double>(1 + dclf_extreme) / static_cast<double>(s + 1);
+  e.mad_p_value = monte_carlo_p_value(mad_extreme, s);
+  e.dclf_p_value = monte_carlo_p_value(dclf_extreme, s);
 
   // Extreme rank lengths over all s + 1 curves (observed first): pointwise two-sided
   // ranks R = min(rank from below, rank from above), each curve's ranks sorted ascending,
@@ -128,10 +125,11 @@ EnvelopeResult envelope_test(const std::vector<double>& r, const std::vector<dou
   std::iota(by_extremeness.begin(), by_extremeness.end(), 0);
   std::sort(by_extremeness.begin(), by_extremeness.end(),
             [&](std::size_t a, std::size_t b) { return ranks[a] < ranks[b]; });
-  // p: share of curves at least as extreme as the observed one (ties count).
+  // p: simulated curves at least as extreme as the observed one (ties count), by the one
+  // Monte Carlo rule.
   std::size_t as_extreme = 0;
-  for (std::size_t c = 0; c < curves; ++c) as_extreme += ranks[c] <= ranks[0] ? 1u : 0u;
-  e.erl_p_value = static_cast<double>(as_extreme) / static_cast<double>(curves);
+  for (std::size_t c = 1; c < curves; ++c) as_extreme += ranks[c] <= ranks[0] ? 1U : 0U;
+  e.erl_p_value = monte_carlo_p_value(as_extreme, s);
 
   // Global envelope (Myllymaki et al. 2017, section 4): the pointwise range of every curve,
   // the observed one included, whose own extreme-rank-length p-value,

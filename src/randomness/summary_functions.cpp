@@ -5,6 +5,8 @@
 #include <limits>
 #include <numeric>
 
+#include <boost/math/constants/constants.hpp>
+
 #include "stipple/error.hpp"
 #include "stipple/geometry/spatial_index.hpp"
 
@@ -12,7 +14,7 @@ namespace stipple {
 
 namespace {
 
-constexpr double pi = 3.14159265358979323846;
+constexpr double pi = boost::math::double_constants::pi;
 const double nan_value = std::numeric_limits<double>::quiet_NaN();
 
 // Ripley's isotropic weight for the pair (centre, other) at distance d.

@@ -10,6 +10,7 @@
 #include "report/records.hpp"
 #include "stipple/format.hpp"
 #include "stipple/report/tables.hpp"
+#include "stipple/version.hpp"
 
 namespace stipple {
 
@@ -176,7 +177,7 @@ const std::vector<std::string>& density_cautions() {
 
 std::string density_json(const LoadedSurvey& survey, const DensityResult& result) {
   Json doc;
-  doc["stipple_version"] = STIPPLE_VERSION;
+  doc["stipple_version"] = std::string(version());
   doc["command"] = "density";
   doc["crs"] = survey.crs.code;
   doc["crs_name"] = survey.crs.name;

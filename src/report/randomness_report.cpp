@@ -5,6 +5,8 @@
 #include <locale>
 #include <sstream>
 
+#include <boost/math/constants/constants.hpp>
+
 #include <nlohmann/json.hpp>
 
 #include "json_text.hpp"
@@ -13,6 +15,7 @@
 #include "stipple/format.hpp"
 #include "stipple/report/tables.hpp"
 #include "stipple/report/figure.hpp"
+#include "stipple/version.hpp"
 
 namespace stipple {
 
@@ -145,7 +148,7 @@ const std::vector<std::string>& randomness_cautions() {
 
 std::string randomness_json(const LoadedSurvey& survey, const RandomnessResult& result) {
   Json doc;
-  doc["stipple_version"] = STIPPLE_VERSION;
+  doc["stipple_version"] = std::string(version());
   doc["command"] = "randomness";
   doc["crs"] = survey.crs.code;
   doc["crs_max_area_error"] = survey.crs.max_area_error;
@@ -321,7 +324,7 @@ std::string randomness_curves_csv(const RandomnessResult& result) {
     EnvelopeResult k = i.cross_l;
     for (auto* series : {&k.observed, &k.theoretical, &k.simulation_mean, &k.pointwise_low,
                          &k.pointwise_high, &k.global_low, &k.global_high})
-      for (double& v : *series) v = 3.14159265358979323846 * v * v;
+      for (double& v : *series) v = boost::math::double_constants::pi * v * v;
     emit(i.plot, i.species_a, i.species_b, "cross-K", k);
   }
   return out.str();

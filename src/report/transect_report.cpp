@@ -9,18 +9,21 @@
 
 #include <nlohmann/json.hpp>
 
+#include <boost/math/constants/constants.hpp>
+
 #include "json_text.hpp"
 #include "report/records.hpp"
 #include "stipple/format.hpp"
 #include "stipple/report/tables.hpp"
 #include "stipple/report/figure.hpp"
+#include "stipple/version.hpp"
 
 namespace stipple {
 
 namespace {
 
 using Json = nlohmann::ordered_json;
-constexpr double pi = 3.14159265358979323846;
+constexpr double pi = boost::math::double_constants::pi;
 
 Json num(double v) { return std::isfinite(v) ? Json(v) : Json(nullptr); }
 Json opt(const std::optional<std::string>& s) { return s ? Json(*s) : Json(nullptr); }
@@ -113,7 +116,7 @@ const std::vector<std::string>& transect_cautions() {
 
 std::string transect_json(const LoadedTransects& input, const TransectResult& result) {
   Json doc;
-  doc["stipple_version"] = STIPPLE_VERSION;
+  doc["stipple_version"] = std::string(version());
   doc["command"] = "transect";
   doc["unit"] = std::string(unit_name(result.unit));
   doc["crs"] = input.crs.code;
@@ -226,7 +229,7 @@ std::string transect_table(const LoadedTransects& input, const TransectResult& r
 std::string effort_json(double pilot_detections, double pilot_effort, double target_cv, double dispersion,
                         double effort_needed) {
   Json doc;
-  doc["stipple_version"] = STIPPLE_VERSION;
+  doc["stipple_version"] = std::string(version());
   doc["command"] = "effort";
   doc["pilot_detections"] = pilot_detections;
   doc["pilot_effort"] = pilot_effort;

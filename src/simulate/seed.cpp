@@ -13,6 +13,16 @@ std::uint64_t splitmix64(std::uint64_t x) {
 
 }  // namespace
 
+std::string seed_key(std::initializer_list<std::string_view> parts) {
+  std::string key;
+  for (const std::string_view part : parts) {
+    key += std::to_string(part.size());
+    key += ':';
+    key += part;
+  }
+  return key;
+}
+
 std::uint64_t derive_seed(std::uint64_t seed, std::string_view key) {
   std::uint64_t hash = 0xCBF29CE484222325ULL;  // FNV-1a 64-bit offset basis
   for (const char c : key) {

@@ -4,6 +4,7 @@
 #include <cmath>
 #include <numeric>
 
+#include <boost/math/constants/constants.hpp>
 #include <boost/math/quadrature/exp_sinh.hpp>
 #include <boost/math/quadrature/gauss_kronrod.hpp>
 #include <boost/math/special_functions/bessel.hpp>
@@ -19,7 +20,7 @@ namespace stipple {
 
 namespace {
 
-constexpr double pi = 3.14159265358979323846;
+constexpr double pi = boost::math::double_constants::pi;
 const double nan_value = std::numeric_limits<double>::quiet_NaN();
 
 std::size_t key_parameter_count(KeyFunction key) {

@@ -12,8 +12,8 @@
 
 #include "stipple/error.hpp"
 #include "stipple/format.hpp"
-#include "stipple/parallel.hpp"
-#include "stipple/quantile.hpp"
+#include "detail/parallel.hpp"
+#include "stipple/stats/interval.hpp"
 
 namespace stipple {
 
@@ -347,7 +347,7 @@ TransectResult analyse_transects(const TransectSurvey& survey, const TransectOpt
     std::mutex progress_mutex;
     std::size_t replicates_done = 0;
     parallel_for(options.bootstrap, options.threads, [&](std::size_t b) {
-      Engine engine(derive_seed(options.seed, "transect-bootstrap/" + std::to_string(b)));
+      Engine engine(derive_seed(options.seed, seed_key({"transect-bootstrap", std::to_string(b)})));
       TransectSurvey replicate;
       replicate.kind = survey.kind;
       std::vector<std::vector<std::size_t>> new_index(survey.transects.size());
@@ -392,10 +392,8 @@ TransectResult analyse_transects(const TransectSurvey& survey, const TransectOpt
       for (const auto& rep : replicates)
         if (std::isfinite(rep[r])) values.push_back(rep[r]);
       if (values.size() < 10) continue;
-      std::sort(values.begin(), values.end());
-      const double a = (1.0 - options.confidence) / 2.0;
       auto& e = result.results[r];
-      e.bootstrap_ci = Interval{quantile_of_sorted(values, a), quantile_of_sorted(values, 1.0 - a)};
+      e.bootstrap_ci = percentile_interval(values, options.confidence);
       const double mean = std::accumulate(values.begin(), values.end(), 0.0) / static_cast<double>(values.size());
       double ss = 0.0;
       for (const double v : values) ss += (v - mean) * (v - mean);

@@ -11,7 +11,7 @@
 #include "stipple/io/reader.hpp"
 
 extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size) {
-  stipple::initialise_gdal();
+  stipple::register_gdal_drivers();
   const stipple::fuzz::BytesFile file(data, size, ".csv");
   try {
     const auto table = stipple::read_detection_table(file.path(), std::nullopt);

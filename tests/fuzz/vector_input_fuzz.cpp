@@ -13,7 +13,7 @@
 
 extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size) {
   if (size < 1) return 0;
-  stipple::initialise_gdal();
+  stipple::register_gdal_drivers();
   const bool geojson = (data[0] & 1) != 0;
   const stipple::fuzz::BytesFile file(data + 1, size - 1, geojson ? ".geojson" : ".csv");
   stipple::SurveyReadOptions options;

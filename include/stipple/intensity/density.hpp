@@ -10,7 +10,7 @@
 
 #include "stipple/geometry/survey.hpp"
 #include "stipple/intensity/detection.hpp"
-#include "stipple/intensity/pearson.hpp"
+#include "stipple/stats/chi_square.hpp"
 #include "stipple/intensity/poisson.hpp"
 #include "stipple/simulate/engine.hpp"
 

@@ -5,13 +5,9 @@
 #include <string>
 #include <string_view>
 
-namespace stipple {
+#include "stipple/stats/interval.hpp"
 
-/// Two-sided confidence limits.
-struct Interval {
-  double lower = 0.0;
-  double upper = 0.0;
-};
+namespace stipple {
 
 /// Exact (Garwood) limits for the mean of a Poisson count x at the given two-sided
 /// confidence level: L = chi2_{a/2; 2x} / 2 (0 when x = 0), U = chi2_{1-a/2; 2x+2} / 2.

@@ -10,7 +10,7 @@
 
 #include "stipple/geometry/point.hpp"
 #include "stipple/geometry/window.hpp"
-#include "stipple/intensity/pearson.hpp"
+#include "stipple/stats/chi_square.hpp"
 #include "stipple/simulate/engine.hpp"
 
 namespace stipple {

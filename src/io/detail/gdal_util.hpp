@@ -16,6 +16,17 @@
 
 namespace stipple::io_detail {
 
+/// Held by every public io function while it runs: GDAL's drivers registered, and GDAL's
+/// messages on this thread sent to a quiet handler (the previous handler is restored on
+/// destruction). See stipple/io/gdal_session.hpp.
+class GdalScope {
+ public:
+  GdalScope();
+  ~GdalScope();
+  GdalScope(const GdalScope&) = delete;
+  GdalScope& operator=(const GdalScope&) = delete;
+};
+
 struct DatasetCloser {
   void operator()(GDALDataset* dataset) const { GDALClose(dataset); }
 };

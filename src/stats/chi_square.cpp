@@ -1,23 +1,18 @@
-#include "stipple/intensity/pearson.hpp"
+#include "stipple/stats/chi_square.hpp"
 
 #include <algorithm>
 #include <numeric>
 
 #include <boost/math/distributions/chi_squared.hpp>
 #include <boost/random/binomial_distribution.hpp>
-#include <boost/random/uniform_int_distribution.hpp>
 
+#include "stats/shuffle.hpp"
 #include "stipple/error.hpp"
+#include "stipple/stats/monte_carlo.hpp"
 
 namespace stipple {
 
 namespace {
-
-// Simulated statistics equal to the observed one up to rounding count as "at least as
-// extreme"; without this, ties in discrete statistics would be split by rounding noise.
-bool at_least(double simulated, double observed) {
-  return simulated >= observed - 1e-9 * std::max(1.0, std::abs(observed));
-}
 
 double statistic_of(const std::vector<std::uint64_t>& observed,
                     const std::vector<double>& expected) {
@@ -129,8 +124,8 @@ MonteCarloTails multinomial_monte_carlo(const std::vector<std::uint64_t>& observ
   }
   const double observed_x2 = statistic_of(observed, null_expected);
 
-  std::size_t upper = 0;
-  std::size_t lower = 0;
+  std::vector<double> simulated;
+  simulated.reserve(simulations);
   std::vector<std::uint64_t> draw(observed.size());
   for (std::size_t s = 0; s < simulations; ++s) {
     // Sequential conditional binomials give one multinomial draw.
@@ -150,16 +145,9 @@ MonteCarloTails multinomial_monte_carlo(const std::vector<std::uint64_t>& observ
       remaining -= draw[i];
       remaining_p -= probabilities[i];
     }
-    const double x2 = statistic_of(draw, null_expected);
-    upper += at_least(x2, observed_x2) ? 1u : 0u;
-    lower += at_least(-x2, -observed_x2) ? 1u : 0u;
+    simulated.push_back(statistic_of(draw, null_expected));
   }
-  MonteCarloTails tails;
-  const double n = static_cast<double>(simulations + 1);
-  tails.upper = static_cast<double>(1 + upper) / n;
-  tails.lower = static_cast<double>(1 + lower) / n;
-  tails.two_sided = std::min(1.0, 2.0 * std::min(tails.upper, tails.lower));
-  return tails;
+  return monte_carlo_tails(observed_x2, simulated);
 }
 
 ChiSquareTest pearson_contingency(const std::vector<std::vector<std::uint64_t>>& table) {
@@ -196,18 +184,15 @@ double contingency_monte_carlo_p(const std::vector<std::vector<std::uint64_t>>& 
                                                std::vector<std::uint64_t>(c.cols.size()));
   std::size_t extreme = 0;
   for (std::size_t s = 0; s < simulations; ++s) {
-    for (std::size_t i = labels.size(); i > 1; --i) {
-      boost::random::uniform_int_distribution<std::size_t> pick(0, i - 1);
-      std::swap(labels[i - 1], labels[pick(engine)]);
-    }
+    shuffle(labels, engine);
     std::size_t k = 0;
     for (std::size_t i = 0; i < c.rows.size(); ++i) {
       std::fill(draw[i].begin(), draw[i].end(), 0);
       for (std::uint64_t m = 0; m < c.rows[i]; ++m) ++draw[i][labels[k++]];
     }
-    if (at_least(contingency_statistic(draw, c.rows, c.cols, c.total), observed_x2)) ++extreme;
+    if (at_least_as_large(contingency_statistic(draw, c.rows, c.cols, c.total), observed_x2)) ++extreme;
   }
-  return static_cast<double>(1 + extreme) / static_cast<double>(simulations + 1);
+  return monte_carlo_p_value(extreme, simulations);
 }
 
 }  // namespace stipple

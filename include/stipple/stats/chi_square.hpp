@@ -7,6 +7,7 @@
 #include <vector>
 
 #include "stipple/simulate/engine.hpp"
+#include "stipple/stats/monte_carlo.hpp"
 
 namespace stipple {
 
@@ -34,13 +35,6 @@ inline constexpr double min_expected_for_chi_square = 5.0;
 /// Throws AnalysisError with fewer than two usable cells.
 [[nodiscard]] ChiSquareTest pearson_goodness_of_fit(const std::vector<std::uint64_t>& observed,
                                                     const std::vector<double>& expected);
-
-/// Monte Carlo p-values of X2 given the total count.
-struct MonteCarloTails {
-  double upper = 1.0;       ///< (1 + #{X2_sim >= X2_obs}) / (N + 1)
-  double lower = 1.0;       ///< (1 + #{X2_sim <= X2_obs}) / (N + 1)
-  double two_sided = 1.0;   ///< 2 min(upper, lower), capped at 1
-};
 
 /// Multinomial draws of the observed total with cell probabilities proportional to
 /// `expected` (for quadrats: the binomial process, same n in the same window); Monte Carlo

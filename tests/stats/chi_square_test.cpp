@@ -1,4 +1,4 @@
-#include "stipple/intensity/pearson.hpp"
+#include "stipple/stats/chi_square.hpp"
 
 #include <gtest/gtest.h>
 

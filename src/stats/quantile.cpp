@@ -1,4 +1,4 @@
-#include "stipple/quantile.hpp"
+#include "stats/quantile.hpp"
 
 #include <algorithm>
 #include <cmath>

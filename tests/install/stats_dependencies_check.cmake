@@ -1,0 +1,32 @@
+# Fails when a source or header of the statistics target includes a header of GDAL/OGR,
+# PROJ, cairo, OpenSSL or nlohmann_json (NLopt only in the transect module's detection
+# functions). Run by CTest: cmake -DSOURCE_DIR=... -P stats_dependencies_check.cmake
+set(statistics geometry intensity randomness simulate stats)
+set(files)
+foreach(module ${statistics})
+  file(GLOB_RECURSE found "${SOURCE_DIR}/src/${module}/*" "${SOURCE_DIR}/include/stipple/${module}/*")
+  list(APPEND files ${found})
+endforeach()
+file(GLOB transect "${SOURCE_DIR}/src/transect/*" "${SOURCE_DIR}/include/stipple/transect/*")
+list(APPEND files ${transect} "${SOURCE_DIR}/include/stipple/error.hpp" "${SOURCE_DIR}/include/stipple/format.hpp"
+     "${SOURCE_DIR}/src/format.cpp")
+set(forbidden "gdal|ogr_|ogrsf|cpl_|proj\\.h|cairo|openssl|nlohmann")
+set(problems "")
+foreach(f ${files})
+  file(STRINGS "${f}" includes REGEX "^[ \t]*#[ \t]*include")
+  foreach(line ${includes})
+    string(TOLOWER "${line}" lower)
+    if(lower MATCHES "[<\"](${forbidden})")
+      string(APPEND problems "\n  ${f}: ${line}")
+    endif()
+    # NLopt: only where detection functions are fitted.
+    if(lower MATCHES "nlopt" AND NOT f MATCHES "src/transect/detection_function.cpp$")
+      string(APPEND problems "\n  ${f}: ${line}")
+    endif()
+  endforeach()
+endforeach()
+if(problems)
+  message(FATAL_ERROR "statistics sources include headers of other dependencies:${problems}")
+endif()
+list(LENGTH files n)
+message(STATUS "${n} statistics files include only the standard library, Boost and stipple")
