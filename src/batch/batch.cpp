@@ -198,7 +198,7 @@ FileResults analyse_file(const BatchInput& source, const BatchOptions& options) 
     r.source = source;
     r.input.name = source.name;
     r.input.status = "failed";
-    r.input.reason = e.what();
+    r.input.reason = options.describe_error ? options.describe_error(e) : std::string(e.what());
   } catch (const std::exception& e) {
     r = FileResults{};
     r.source = source;

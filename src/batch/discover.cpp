@@ -115,7 +115,7 @@ std::pair<std::size_t, std::size_t> parse_shard(const std::string& text) {
     if (k < 1 || n < 1 || k > n) throw std::invalid_argument(text);
     return {k, n};
   } catch (const std::exception&) {
-    throw InputError("--shard must be K/N with 1 <= K <= N (got '" + text + "')");
+    throw InputError("shard must be K/N with 1 <= K <= N (got '" + text + "')", {"shard"});
   }
 }
 

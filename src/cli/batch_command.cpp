@@ -13,6 +13,7 @@
 
 #include "commands.hpp"
 #include "common_options.hpp"
+#include "error_text.hpp"
 #include "progress.hpp"
 #include "stipple/batch/batch.hpp"
 #include "stipple/error.hpp"
@@ -379,6 +380,7 @@ int run_batch_command(BatchCommandOptions& o, CLI::App& command) {
   const std::vector<std::string> protect = inputs_to_protect(o, inputs);
   check_output_folder(o.out, inputs);
   options.run = season_run_of(o, options, single);
+  options.describe_error = [](const Error& e) { return error_text(e); };
   if (!o.quiet)
     std::cerr << "stipple batch: " << inputs.size() << " of " << all_inputs << " input(s)"
               << (o.shard_text.empty() ? "" : " (shard " + o.shard_text + ")") << "\n";

@@ -12,6 +12,7 @@
 
 #include "commands.hpp"
 #include "common_options.hpp"
+#include "error_text.hpp"
 #include "stipple/error.hpp"
 #include "stipple/io/gdal_session.hpp"
 #include "stipple/version.hpp"
@@ -103,10 +104,10 @@ int main(int argc, char** argv) {
     }
     return static_cast<int>(ExitCode::bad_input);
   } catch (const stipple::InputError& e) {
-    std::cerr << "error: " << e.what() << "\n";
+    std::cerr << "error: " << stipple::cli::error_text(e) << "\n";
     return static_cast<int>(ExitCode::bad_input);
   } catch (const stipple::AnalysisError& e) {
-    std::cerr << "error: " << e.what() << "\n";
+    std::cerr << "error: " << stipple::cli::error_text(e) << "\n";
     return static_cast<int>(ExitCode::bad_input);
   } catch (const std::exception& e) {
     std::cerr << "internal error: " << e.what() << "\n";

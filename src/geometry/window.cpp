@@ -138,7 +138,8 @@ Window Window::from_polygons(BgMultiPolygon shape, std::string_view context) {
   std::string reason;
   if (!bg::is_valid(shape, reason)) {
     throw InputError(where + "plot polygon is not valid (" + reason +
-                     "); fix it in a GIS or pass --repair-geometry");
+                         "); fix it in a GIS or set repair_geometry",
+                     {"repair_geometry"});
   }
   const double area = bg::area(shape);
   if (!(area > 0.0)) throw InputError(where + "plot polygon has zero area");
@@ -195,7 +196,8 @@ Window ripley_rasson_hull(const std::vector<Point>& points, std::string_view con
   }
   if (vertices >= n) {
     throw AnalysisError(where + "every sighting is a vertex of its convex hull; the Ripley-Rasson "
-                        "window is undefined (add --plots)");
+                            "window is undefined (give the plot polygons as plots)",
+                        {"plots"});
   }
   BgPoint centroid(0.0, 0.0);
   bg::centroid(hull, centroid);

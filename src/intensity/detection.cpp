@@ -54,7 +54,8 @@ Detection DetectionTable::for_species(const std::string& species) const {
   if (found != by_species_.end()) return found->second;
   if (fallback_) return *fallback_;
   throw InputError(source_ + ": no detection probability for species '" + species +
-                   "' (add a row, or give --detection-prob for unlisted species)");
+                       "' (add a row, or give a detection_probability for unlisted species)",
+                   {"detection_probability"});
 }
 
 bool DetectionTable::is_certain() const {

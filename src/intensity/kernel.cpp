@@ -85,7 +85,8 @@ IntensityRaster make_raster(const Bounds& bounds, double pixel_m) {
   r.height = static_cast<std::size_t>(std::ceil(bounds.height() / pixel_m));
   if (r.width == 0 || r.height == 0 || r.width * r.height > 50'000'000)
     throw InputError("the surface would have " + std::to_string(r.width) + " x " + std::to_string(r.height) +
-                     " pixels; choose a larger --pixel");
+                         " pixels; choose a larger pixel_m",
+                     {"pixel_m"});
   r.values.assign(r.width * r.height, std::numeric_limits<double>::quiet_NaN());
   return r;
 }

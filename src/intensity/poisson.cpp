@@ -11,8 +11,8 @@ namespace stipple {
 
 void check_confidence(double confidence) {
   if (!(confidence > 0.0 && confidence < 1.0))
-    throw InputError("--confidence must lie strictly between 0 and 1 (got " +
-                     format_general(confidence) + ")");
+    throw InputError("confidence must lie strictly between 0 and 1 (got " + format_general(confidence) + ")",
+                     {"confidence"});
 }
 
 double alpha_from_confidence(double confidence) {
@@ -56,7 +56,7 @@ AreaUnit parse_area_unit(std::string_view name) {
   if (name == "m2") return AreaUnit::square_metre;
   if (name == "ha") return AreaUnit::hectare;
   if (name == "km2") return AreaUnit::square_kilometre;
-  throw InputError("--unit must be one of m2, ha, km2 (got '" + std::string(name) + "')");
+  throw InputError("unit must be one of m2, ha, km2 (got '" + std::string(name) + "')", {"unit"});
 }
 
 }  // namespace stipple

@@ -86,7 +86,7 @@ DatasetPtr open_vector(const std::string& path, const CsvColumns& columns,
   const bool shapefile = lower(std::filesystem::path(path).extension().string()) == ".shp" ||
                          lower(std::filesystem::path(path).extension().string()) == ".dbf" ||
                          std::filesystem::is_directory(path, ec);
-  // With --encoding, a Shapefile's text stays raw bytes for TextDecoder to convert.
+  // With an encoding named, a Shapefile's text stays raw bytes for TextDecoder to convert.
   if (encoding && shapefile) open_options.SetNameValue("ENCODING", "");
   auto* handle = GDALOpenEx(path.c_str(), GDAL_OF_VECTOR | GDAL_OF_READONLY,
                             csv ? csv_only : nullptr, open_options.List(),
@@ -119,9 +119,12 @@ OGRLayer& pick_layer(GDALDataset& dataset, const std::string& path,
       of_kind.push_back(layer);
   }
   if (of_kind.size() == 1) return *of_kind.front();
+  if (option_name.empty())
+    throw InputError(path + ": " + std::to_string(of_kind.size()) + " non-empty " + kind_name(kind) +
+                     " layers; give a source with one (layers: " + layer_names(dataset) + ")");
   throw InputError(path + ": " + std::to_string(of_kind.size()) + " non-empty " + kind_name(kind) +
-                   " layers; name one with " + option_name + " (layers: " +
-                   layer_names(dataset) + ")");
+                       " layers; name one with " + option_name + " (layers: " + layer_names(dataset) + ")",
+                   {option_name});
 }
 
 std::string layer_label(const std::string& path, OGRLayer& layer) {
@@ -142,7 +145,7 @@ OGRSpatialReference parse_crs(const std::string& text, const std::string& option
   OGRSpatialReference srs;
   CPLErrorReset();
   if (srs.SetFromUserInput(text.c_str()) != OGRERR_NONE)
-    throw InputError(option_name + " " + text + ": not a coordinate reference system GDAL knows");
+    throw InputError(option_name + " " + text + ": not a coordinate reference system GDAL knows", {option_name});
   srs.SetAxisMappingStrategy(OAMS_TRADITIONAL_GIS_ORDER);
   return srs;
 }
@@ -152,9 +155,10 @@ OGRSpatialReference layer_crs(OGRLayer& layer, const std::string& label,
   const OGRSpatialReference* srs = layer.GetSpatialRef();
   if (srs == nullptr) {
     if (!assume_crs)
-      throw InputError(label + ": has no CRS; give it with --assume-crs EPSG:N "
-                               "(EPSG:4326 for GPS longitude/latitude)");
-    return parse_crs(*assume_crs, "--assume-crs");
+      throw InputError(label + ": has no CRS; give it with assume_crs EPSG:N "
+                               "(EPSG:4326 for GPS longitude/latitude)",
+                       {"assume_crs"});
+    return parse_crs(*assume_crs, "assume_crs");
   }
   OGRSpatialReference copy(*srs);
   copy.SetAxisMappingStrategy(OAMS_TRADITIONAL_GIS_ORDER);
@@ -205,10 +209,11 @@ ChosenCrs choose_analysis_crs(const std::optional<std::string>& target,
   ChosenCrs chosen;
   bool local = false;
   if (target) {
-    chosen.srs = parse_crs(*target, "--crs");
+    chosen.srs = parse_crs(*target, "target_crs");
     if (!is_projected_metres(chosen.srs))
-      throw InputError("--crs " + *target + ": not a projected CRS in metres (analysis needs planar metres)");
-    chosen.reason = "given with --crs";
+      throw InputError("target_crs " + *target + ": not a projected CRS in metres (analysis needs planar metres)",
+                       {"target_crs"});
+    chosen.reason = "given by the user";
   } else {
     bool found = false;
     std::string rejected;
@@ -236,11 +241,11 @@ ChosenCrs choose_analysis_crs(const std::optional<std::string>& target,
                       centre + "), areas exact anywhere on Earth (" +
                       (rejected.empty() ? "input is " + crs_code(*datum) + ", not projected in metres"
                                         : rejected) +
-                      "); override with --crs";
+                      "); another analysis CRS can be named instead";
     }
   }
   if (local) {
-    // A CRS of our own: its PROJ string is the code, so --crs can repeat it exactly.
+    // A CRS of our own: its PROJ string is the code, so naming it as the target CRS repeats it exactly.
     char* proj = nullptr;
     if (chosen.srs.exportToProj4(&proj) == OGRERR_NONE && proj != nullptr) chosen.code = proj;
     CPLFree(proj);

@@ -50,7 +50,8 @@ OGRSpatialReference local_equal_area(const std::vector<CentreSample>& samples,
   }
   if (used == 0)
     throw InputError(label + ": no location could be converted to longitude/latitude to centre "
-                             "the analysis CRS; give one with --crs");
+                             "the analysis CRS; give one as target_crs",
+                     {"target_crs"});
   const double lon = std::atan2(sy, sx) / degree;
   const double lat = std::atan2(sz, std::hypot(sx, sy)) / degree;
   // Rounded to 1e-4 degrees (about 10 m): any centre keeps areas exact; this one reads well.

@@ -133,7 +133,7 @@ std::string TextDecoder::warning(const std::string& label) const {
   if (replaced_ == 0) return {};
   return label + ": " + std::to_string(replaced_) +
          " attribute value(s) are not valid UTF-8; the invalid bytes are shown as U+FFFD. "
-         "Name the source's encoding with --encoding (LATIN1 or CP1252 for most older field "
+         "Name the source's encoding (the encoding option: LATIN1 or CP1252 for most older field "
          "software)";
 }
 

@@ -124,27 +124,30 @@ SightingLayer read_sightings(const SurveyReadOptions& options, LoadedSurvey& loa
   const auto& spec = options.sightings;
   DatasetPtr dataset =
       open_vector(spec.path, CsvColumns{options.x_field, options.y_field}, options.encoding);
-  OGRLayer& layer = pick_layer(*dataset, spec.path, spec.layer, LayerKind::points, "--layer");
+  OGRLayer& layer = pick_layer(*dataset, spec.path, spec.layer, LayerKind::points, "sightings.layer");
   SightingLayer out;
   out.label = layer_label(spec.path, layer);
   OGRFeatureDefn* defn = layer.GetLayerDefn();
   const bool csv = is_csv_path(spec.path);
   if (csv && wkbFlatten(layer.GetGeomType()) == wkbNone && defn->GetGeomFieldCount() == 0) {
     throw InputError(out.label + ": no coordinate columns found (fields: " + field_list(layer) +
-                     "); name them with --x-field and --y-field");
+                         "); name them with x_field and y_field",
+                     {"x_field", "y_field"});
   }
   const int species_index = defn->GetFieldIndex(options.species_field.c_str());
   if (species_index < 0)
     throw InputError(out.label + ": no species field '" + options.species_field +
-                     "' (fields: " + field_list(layer) + "); name it with --species-field");
+                         "' (fields: " + field_list(layer) + "); name it with species_field",
+                     {"species_field"});
   const std::string plot_attribute = options.sighting_plot_field.value_or(options.plot_field);
   const int plot_index = options.assignment == Assignment::location
                              ? -1
                              : defn->GetFieldIndex(plot_attribute.c_str());
   if (plot_index < 0 && options.assignment == Assignment::attribute)
     throw InputError(out.label + ": no plot field '" + plot_attribute + "' (fields: " +
-                     field_list(layer) + "); name it with --sightings-plot-field, or assign "
-                     "by location with --assign location");
+                         field_list(layer) + "); name it with sighting_plot_field, or assign "
+                                             "by location with assignment location",
+                     {"sighting_plot_field", "assignment"});
   if (plot_index >= 0) out.plot_attribute = plot_attribute;
   if (plot_index < 0 && options.assignment == Assignment::automatic &&
       (options.plot_field_given || options.sighting_plot_field) &&
@@ -155,7 +158,7 @@ SightingLayer read_sightings(const SurveyReadOptions& options, LoadedSurvey& loa
   out.crs = layer_crs(layer, out.label, options.assume_crs);
   if (layer.GetSpatialRef() == nullptr)
     loaded.notes.push_back(out.label + ": CRS assumed to be " + *options.assume_crs +
-                           " (--assume-crs)");
+                           " (as given)");
 
   TextDecoder decode(options.encoding);
   std::map<std::string, std::set<std::string>> species_forms;  // lower-case trimmed -> as written
@@ -229,7 +232,8 @@ PlotLayer read_plots(OGRLayer& layer, const std::string& label, const OGRSpatial
       id_index < 0 && !options.plot_field_given && layer.GetFeatureCount() == 1;
   if (id_index < 0 && !id_from_layer_name)
     throw InputError(out.label + ": no plot field '" + options.plot_field + "' (fields: " +
-                     field_list(layer) + "); name it with --plot-field");
+                         field_list(layer) + "); name it with plot_field",
+                     {"plot_field"});
   if (id_from_layer_name)
     notes.push_back(out.label + ": one polygon and no field '" + options.plot_field +
                     "': the plot id is the layer name");
@@ -259,7 +263,8 @@ PlotLayer read_plots(OGRLayer& layer, const std::string& label, const OGRSpatial
         throw InputError(where + ": plot polygon has zero area");
       if (!options.repair_geometry)
         throw InputError(where + ": plot polygon is not valid (self-intersecting or with "
-                                 "crossing rings); fix it in a GIS or pass --repair-geometry");
+                                 "crossing rings); fix it in a GIS or set repair_geometry",
+                         {"repair_geometry"});
       shape = std::move(valid);
       ++repaired;
     }
@@ -276,7 +281,7 @@ PlotLayer read_plots(OGRLayer& layer, const std::string& label, const OGRSpatial
   if (out.features.empty()) throw InputError(out.label + ": holds no plot polygons");
   if (repaired > 0)
     notes.push_back(out.label + ": " + std::to_string(repaired) +
-                    " invalid polygon(s) repaired with GDAL MakeValid (--repair-geometry)");
+                    " invalid polygon(s) repaired with GDAL MakeValid, as asked");
   if (const std::string w = decode.warning(out.label); !w.empty()) warnings.push_back(w);
   return out;
 }
@@ -454,12 +459,12 @@ void check_assignment(const Survey& survey, const SightingLayer& sightings,
     message += "; the sightings' field '" + sightings.plot_attribute + "' holds " +
                quoted_list(values, 3) + ", the plots' field '" + options.plot_field +
                "' holds " + quoted_list(ids, 3) +
-               ": assign by location with --assign location, or name the sightings' plot "
-               "field with --sightings-plot-field";
-  } else {
-    message += "; wrong CRS (see --assume-crs) or the wrong plots file?";
+               ": assign by location with assignment location, or name the sightings' plot "
+               "field with sighting_plot_field";
+    throw InputError(message, {"assignment", "sighting_plot_field"});
   }
-  throw InputError(message);
+  message += "; wrong CRS (see assume_crs) or the wrong plots file?";
+  throw InputError(message, {"assume_crs"});
 }
 
 double window_area_error(const std::vector<Plot>& plots, const OGRSpatialReference& target) {
@@ -476,9 +481,10 @@ double window_area_error(const std::vector<Plot>& plots, const OGRSpatialReferen
 LoadedSurvey load_survey(const SurveyReadOptions& options) {
   const GdalScope gdal;
   if (options.window == WindowMode::plots && !options.plots) {
-    throw InputError("the analysis needs the surveyed area: give the plot polygons with --plots PATH "
-                     "(or --window convex-hull for a model-based window estimated from the "
-                     "points)");
+    throw InputError("the analysis needs the surveyed area: give the plot polygons with plots PATH "
+                     "(or window convex-hull for a model-based window estimated from the "
+                     "points)",
+                     {"plots", "window"});
   }
   LoadedSurvey loaded;
   loaded.window = options.window;
@@ -490,7 +496,7 @@ LoadedSurvey load_survey(const SurveyReadOptions& options) {
   if (options.window == WindowMode::plots) {
     plots_dataset = open_vector(options.plots->path, {}, options.encoding);
     OGRLayer& layer = pick_layer(*plots_dataset, options.plots->path, options.plots->layer,
-                                 LayerKind::polygons, "--plots-layer");
+                                 LayerKind::polygons, "plots.layer");
     loaded.plots_label = layer_label(options.plots->path, layer);
     const OGRSpatialReference crs = layer_crs(layer, loaded.plots_label, options.assume_crs);
     plot_layer = read_plots(layer, loaded.plots_label, crs, options, loaded.notes, loaded.warnings);
@@ -514,7 +520,7 @@ LoadedSurvey load_survey(const SurveyReadOptions& options) {
     loaded.warnings.push_back("plot areas in " + loaded.crs.code + " differ from their geodesic "
                               "(ellipsoidal) areas by up to " +
                               format_significant(100.0 * loaded.crs.max_area_error, 2) +
-                              "%; densities carry that error (choose an equal-area CRS with --crs)");
+                              "%; densities carry that error (choose an equal-area analysis CRS)");
   loaded.survey = assign_to_plots(located, std::move(plots));
   if (options.window == WindowMode::plots)
     check_assignment(loaded.survey, sightings, loaded.plots_label, options);
@@ -541,7 +547,7 @@ LoadedSurvey load_survey(const SurveyReadOptions& options) {
 DetectionTable read_detection_table(const std::string& path, std::optional<Detection> fallback) {
   const GdalScope gdal;
   DatasetPtr dataset = open_vector(path);
-  OGRLayer& layer = pick_layer(*dataset, path, std::nullopt, LayerKind::points, "a single table");
+  OGRLayer& layer = pick_layer(*dataset, path, std::nullopt, LayerKind::points, "");
   const std::string label = path;
   OGRFeatureDefn* defn = layer.GetLayerDefn();
   const auto find = [&](std::initializer_list<const char*> names) {

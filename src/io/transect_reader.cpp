@@ -34,7 +34,8 @@ int field_index(OGRLayer& layer, const std::string& name) {
 int required_field(OGRLayer& layer, const std::string& label, const std::string& name, const std::string& option) {
   const int index = field_index(layer, name);
   if (index < 0)
-    throw InputError(label + ": no field '" + name + "' (fields: " + field_list(layer) + "); name it with " + option);
+    throw InputError(label + ": no field '" + name + "' (fields: " + field_list(layer) + "); name it with " + option,
+                     {option});
   return index;
 }
 
@@ -154,8 +155,9 @@ void check_some_ids_match(OGRLayer& layer, const std::string& label, int index,
   }
   throw InputError(label + ": none of the sightings' '" + sighting_field + "' values (" + shown +
                    ", ...) is a transect id in field '" + transect_field + "' (" + known +
-                   ", ...): assign by location (nearest transect) with --assign location, or name the "
-                   "sightings' field with --sightings-transect-field");
+                       ", ...): assign by location (nearest transect) with assignment location, or name the "
+                       "sightings' field with sighting_transect_field",
+                   {"assignment", "sighting_transect_field"});
 }
 
 // The opened transect and sighting layers and the analysis CRS chosen for them.
@@ -175,13 +177,14 @@ OpenedSources open_sources(const TransectReadOptions& options, bool is_line, Loa
   OpenedSources s;
   s.transects_ds = open_vector(spec.path, {}, options.encoding);
   s.transect_layer = &pick_layer(*s.transects_ds, spec.path, spec.layer,
-                                 is_line ? LayerKind::lines : LayerKind::points, "--transects-layer");
+                                 is_line ? LayerKind::lines : LayerKind::points,
+                                 is_line ? "lines.layer" : "stations.layer");
   loaded.transects_label = layer_label(spec.path, *s.transect_layer);
   s.transect_crs = layer_crs(*s.transect_layer, loaded.transects_label, options.assume_crs);
 
   s.sightings_ds = open_vector(options.sightings.path, CsvColumns{options.x_field, options.y_field}, options.encoding);
   s.sightings_layer = &pick_layer(*s.sightings_ds, options.sightings.path, options.sightings.layer,
-                                  LayerKind::points, "--layer");
+                                  LayerKind::points, "sightings.layer");
   loaded.sightings_label = layer_label(options.sightings.path, *s.sightings_layer);
   s.sightings_have_geometry = wkbFlatten(s.sightings_layer->GetGeomType()) != wkbNone;
   if (s.sightings_have_geometry)
@@ -235,13 +238,13 @@ TransectTable read_transects(const TransectReadOptions& options, bool is_line, c
                              const std::string& tl, TextDecoder& decode) {
   OGRLayer& layer = *sources.transect_layer;
   const SourceSpec& spec = is_line ? *options.lines : *options.stations;
-  const int id_index = required_field(layer, tl, options.transect_field, "--transect-field");
+  const int id_index = required_field(layer, tl, options.transect_field, "transect_field");
   const int effort_index =
-      options.effort_field ? required_field(layer, tl, *options.effort_field, "--effort-field") : -1;
-  const int visits_index = options.visits_field ? required_field(layer, tl, *options.visits_field, "--visits-field")
+      options.effort_field ? required_field(layer, tl, *options.effort_field, "effort_field") : -1;
+  const int visits_index = options.visits_field ? required_field(layer, tl, *options.visits_field, "visits_field")
                                                 : field_index(layer, "visits");
   const int stratum_index =
-      options.stratum_field ? required_field(layer, tl, *options.stratum_field, "--stratum-field") : -1;
+      options.stratum_field ? required_field(layer, tl, *options.stratum_field, "stratum_field") : -1;
   const TransformPtr to_target = make_transform(sources.transect_crs, sources.target, tl);
   TransectTable table;
   scan_layer(layer, tl, is_csv_path(spec.path), [&](OGRFeature& feature) {
@@ -303,21 +306,24 @@ SightingFields sighting_fields(const TransectReadOptions& options, const OpenedS
                                const TransectTable& table, const std::string& sl) {
   OGRLayer& layer = *sources.sightings_layer;
   SightingFields f;
-  f.species = required_field(layer, sl, options.species_field, "--species-field");
+  f.species = required_field(layer, sl, options.species_field, "species_field");
   f.transect_name = options.sighting_transect_field.value_or(options.transect_field);
   f.transect = options.assignment == Assignment::location ? -1 : field_index(layer, f.transect_name);
   if (f.transect < 0 && options.assignment == Assignment::attribute)
     throw InputError(sl + ": no transect field '" + f.transect_name + "' (fields: " + field_list(layer) +
-                     "); name it with --sightings-transect-field, or assign by location with --assign location");
+                         "); name it with sighting_transect_field, or assign by location with assignment location",
+                     {"sighting_transect_field", "assignment"});
   if (f.transect >= 0) check_some_ids_match(layer, sl, f.transect, table.by_id, f.transect_name, options.transect_field);
-  f.distance = options.distance_field ? required_field(layer, sl, *options.distance_field, "--distance-field") : -1;
-  f.angle = options.angle_field ? required_field(layer, sl, *options.angle_field, "--angle-field") : -1;
-  f.size = options.size_field ? required_field(layer, sl, *options.size_field, "--size-field") : -1;
+  f.distance = options.distance_field ? required_field(layer, sl, *options.distance_field, "distance_field") : -1;
+  f.angle = options.angle_field ? required_field(layer, sl, *options.angle_field, "angle_field") : -1;
+  f.size = options.size_field ? required_field(layer, sl, *options.size_field, "size_field") : -1;
   if (f.distance < 0 && !sources.sightings_have_geometry)
-    throw InputError(sl + ": has neither locations nor a distance field; name the distances with --distance-field");
+    throw InputError(sl + ": has neither locations nor a distance field; name the distances with distance_field",
+                     {"distance_field"});
   if (f.distance >= 0 && f.transect < 0 && !sources.sightings_have_geometry)
     throw InputError(sl + ": recorded distances need the transect of each sighting: no field '" + f.transect_name +
-                     "' (fields: " + field_list(layer) + "); name it with --sightings-transect-field");
+                         "' (fields: " + field_list(layer) + "); name it with sighting_transect_field",
+                     {"sighting_transect_field"});
   return f;
 }
 
@@ -383,8 +389,9 @@ class SightingReader {
     if (!d) throw InputError(context + ": distance field '" + *options_.distance_field + "' is empty");
     if (*d < 0.0) throw InputError(context + ": distance " + format_general(*d) + " is negative");
     if (*d > options_.max_offset_m)
-      throw InputError(context + ": distance " + format_general(*d) + " m is more than --max-offset " +
-                       format_general(options_.max_offset_m) + " m (wrong unit or a typing error?)");
+      throw InputError(context + ": distance " + format_general(*d) + " m is more than max_offset_m " +
+                           format_general(options_.max_offset_m) + " m (wrong unit or a typing error?)",
+                       {"max_offset_m"});
     if (fields_.angle < 0) return *d;
     const auto a = number(feature, fields_.angle, context, "angle");
     if (!a) throw InputError(context + ": angle field '" + *options_.angle_field + "' is empty");
@@ -420,8 +427,9 @@ class SightingReader {
     const auto [which, best] = nearest(*location);
     if (best > options_.max_offset_m)
       throw InputError(context + ": lies " + format_fixed(best, 0) +
-                       " m from the nearest transect, more than --max-offset " +
-                       format_general(options_.max_offset_m) + " m (wrong CRS or wrong transect file?)");
+                           " m from the nearest transect, more than max_offset_m " +
+                           format_general(options_.max_offset_m) + " m (wrong CRS or wrong transect file?)",
+                       {"max_offset_m"});
     return which;
   }
 
@@ -433,8 +441,9 @@ class SightingReader {
       throw InputError(context + ": lies " + format_fixed(best, 0) + " m from " +
                        (named ? "its transect '" + table_.geometries[*named].id + "'"
                               : std::string("the nearest transect")) +
-                       ", more than --max-offset " + format_general(options_.max_offset_m) +
-                       " m (wrong CRS or wrong transect file?)");
+                           ", more than max_offset_m " + format_general(options_.max_offset_m) +
+                           " m (wrong CRS or wrong transect file?)",
+                       {"max_offset_m"});
     return {which, best};
   }
 
@@ -465,14 +474,14 @@ class SightingReader {
 void read_study_area(const TransectReadOptions& options, const OGRSpatialReference& target, LoadedTransects& loaded) {
   DatasetPtr area_ds = open_vector(options.study_area->path, {}, options.encoding);
   OGRLayer& area_layer = pick_layer(*area_ds, options.study_area->path, options.study_area->layer,
-                                    LayerKind::polygons, "--study-area-layer");
+                                    LayerKind::polygons, "study_area.layer");
   const std::string al = layer_label(options.study_area->path, area_layer);
   loaded.study_area_m2 = polygon_area(area_layer, layer_crs(area_layer, al, options.assume_crs), target, al,
                                       options.stratum_field, loaded.stratum_area_m2, loaded.crs.max_area_error);
   if (loaded.crs.max_area_error > max_crs_area_error)
     loaded.warnings.push_back("study-area polygons in " + loaded.crs.code + " differ from their geodesic areas by up to " +
                               format_significant(100.0 * loaded.crs.max_area_error, 2) +
-                              "% (choose an equal-area CRS with --crs)");
+                              "% (choose an equal-area analysis CRS)");
 }
 
 }  // namespace
@@ -480,7 +489,7 @@ void read_study_area(const TransectReadOptions& options, const OGRSpatialReferen
 LoadedTransects load_transects(const TransectReadOptions& options) {
   const GdalScope gdal;
   if (!options.lines == !options.stations)
-    throw InputError("give the transects with exactly one of --lines PATH or --stations PATH");
+    throw InputError("give the transects with exactly one of lines PATH or stations PATH", {"lines", "stations"});
   const bool is_line = options.lines.has_value();
   LoadedTransects loaded;
   loaded.survey.kind = is_line ? TransectKind::line : TransectKind::point;

@@ -170,7 +170,7 @@ InteractionResult random_labelling_test(const std::vector<Point>& a, const std::
                                         const Window& window, const RandomnessOptions& options,
                                         const std::string& key) {
   if (a.size() < 2 || b.size() < 2) throw AnalysisError("random labelling needs 2 points of each species");
-  if (options.simulations == 0) throw AnalysisError("random labelling needs --simulations > 0");
+  if (options.simulations == 0) throw AnalysisError("random labelling needs simulations > 0", {"simulations"});
   InteractionResult result;
   result.n_a = a.size();
   result.n_b = b.size();

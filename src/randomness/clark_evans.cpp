@@ -42,8 +42,8 @@ NeighbourEdgeCorrection parse_edge_correction(std::string_view name) {
   if (name == "none") return NeighbourEdgeCorrection::none;
   if (name == "donnelly") return NeighbourEdgeCorrection::donnelly;
   if (name == "border") return NeighbourEdgeCorrection::border;
-  throw InputError("--edge-correction must be none, donnelly or border (got '" +
-                   std::string(name) + "')");
+  throw InputError("edge_correction must be none, donnelly or border (got '" + std::string(name) + "')",
+                   {"edge_correction"});
 }
 
 NeighbourEdgeCorrection default_edge_correction(const Window& window) {

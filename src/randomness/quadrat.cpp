@@ -19,18 +19,20 @@ std::pair<std::size_t, std::size_t> parse_quadrat_grid(const std::string& text) 
   // neither a sign nor an overflow can slip through.
   const auto factor = [&](std::string_view digits) -> std::size_t {
     const auto value = parse_whole_number(digits);
-    if (!value) throw InputError("--quadrats must look like 4x4, two whole numbers (got '" + text + "')");
+    if (!value) throw InputError("quadrats must look like 4x4, two whole numbers (got '" + text + "')", {"quadrats"});
     if (*value < 1 || *value > 10000)
-      throw InputError("--quadrats needs between 2 and 10000 cells, each side 1 to 10000 (got '" + text + "')");
+      throw InputError("quadrats needs between 2 and 10000 cells, each side 1 to 10000 (got '" + text + "')",
+                       {"quadrats"});
     return static_cast<std::size_t>(*value);
   };
   const auto x = text.find_first_of("xX");
-  if (x == std::string::npos) throw InputError("--quadrats must look like 4x4, two whole numbers (got '" + text + "')");
+  if (x == std::string::npos)
+    throw InputError("quadrats must look like 4x4, two whole numbers (got '" + text + "')", {"quadrats"});
   const std::string_view view(text);
   const std::size_t nx = factor(view.substr(0, x));
   const std::size_t ny = factor(view.substr(x + 1));
   if (nx * ny < 2 || nx * ny > 10000)
-    throw InputError("--quadrats needs between 2 and 10000 cells (got '" + text + "')");
+    throw InputError("quadrats needs between 2 and 10000 cells (got '" + text + "')", {"quadrats"});
   return {nx, ny};
 }
 

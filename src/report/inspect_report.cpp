@@ -22,7 +22,7 @@ std::string inspect_table(const SourceSummary& source) {
     if (!layer.read_error.empty()) out << "\n  WARNING: reading stopped on an error: " << layer.read_error;
     if (layer.undecodable_values > 0)
       out << "\n  WARNING: " << layer.undecodable_values
-          << " text value(s) are not valid UTF-8 (shown with U+FFFD); give the encoding with --encoding";
+          << " text value(s) are not valid UTF-8 (shown with U+FFFD); name the source's encoding for the analysis";
     out << "\n  fields: ";
     for (std::size_t i = 0; i < layer.fields.size(); ++i)
       out << (i ? ", " : "") << layer.fields[i].name << " (" << layer.fields[i].type << ")";
@@ -45,7 +45,7 @@ std::string inspect_table(const SourceSummary& source) {
       out << table.render("    ");
     }
     if (layer.crs == "none")
-      out << "  note: no CRS; analysis commands need --assume-crs EPSG:N for this layer\n";
+      out << "  note: no CRS; the analysis needs an assumed CRS (EPSG:N) for this layer\n";
   }
   return out.str();
 }

@@ -194,7 +194,7 @@ KeyFunction parse_key_function(std::string_view name) {
   if (name == "half-normal") return KeyFunction::half_normal;
   if (name == "hazard-rate") return KeyFunction::hazard_rate;
   if (name == "uniform") return KeyFunction::uniform;
-  throw InputError("--models takes half-normal, hazard-rate, uniform (got '" + std::string(name) + "')");
+  throw InputError("keys takes half-normal, hazard-rate, uniform (got '" + std::string(name) + "')", {"keys"});
 }
 
 Adjustment parse_adjustment(std::string_view name) {
@@ -202,7 +202,8 @@ Adjustment parse_adjustment(std::string_view name) {
   if (name == "cosine") return Adjustment::cosine;
   if (name == "polynomial") return Adjustment::polynomial;
   if (name == "hermite") return Adjustment::hermite;
-  throw InputError("--adjustments takes none, cosine, polynomial, hermite (got '" + std::string(name) + "')");
+  throw InputError("adjustments takes none, cosine, polynomial, hermite (got '" + std::string(name) + "')",
+                   {"adjustments"});
 }
 
 std::vector<std::string> parameter_names(const DetectionModel& model) {
@@ -451,7 +452,8 @@ DetectionFit fit_detection_function(const DistanceData& data, const DetectionMod
   if (m.adjustment == Adjustment::none) m.terms = 0;
   if (!std::isfinite(w) && (m.key == KeyFunction::uniform || m.terms > 0))
     throw AnalysisError("the " + std::string(key_function_name(m.key)) +
-                        " model with adjustments needs a truncation distance (--truncate)");
+                            " model with adjustments needs a truncation distance (truncation)",
+                        {"truncation"});
   if (n < q + 2)
     throw AnalysisError("too few detections (" + std::to_string(n) + ") to fit a " +
                         std::string(key_function_name(m.key)) + " model with " + std::to_string(q) +

@@ -135,7 +135,7 @@ Truncation parse_truncation(const std::string& text) {
   if (text.back() == '%') {
     const auto share = parse_double(text.substr(0, text.size() - 1));
     if (!share || !(*share >= 0.0 && *share < 100.0))
-      throw InputError("--truncate " + text + ": a percentage must lie in [0, 100)");
+      throw InputError("truncation " + text + ": a percentage must lie in [0, 100)", {"truncation"});
     t.largest_share = *share / 100.0;
     return t;
   }
@@ -144,7 +144,9 @@ Truncation parse_truncation(const std::string& text) {
     return t;
   }
   const auto w = parse_double(text);
-  if (!w || !(*w > 0.0)) throw InputError("--truncate " + text + ": give a distance in metres, a percentage like 5%, or none");
+  if (!w || !(*w > 0.0))
+    throw InputError("truncation " + text + ": give a distance in metres, a percentage like 5%, or none",
+                     {"truncation"});
   t.distance_m = *w;
   return t;
 }
@@ -232,7 +234,7 @@ TransectResult analyse_transects(const TransectSurvey& survey, const TransectOpt
   if (!options.bin_edges.empty()) {
     for (std::size_t k = 1; k < options.bin_edges.size(); ++k)
       if (!(options.bin_edges[k] > options.bin_edges[k - 1]))
-        throw InputError("--bins must increase strictly");
+        throw InputError("bin_edges must increase strictly", {"bin_edges"});
   }
   TransectResult result;
   result.kind = survey.kind;

@@ -71,7 +71,7 @@ TEST(Window, RefusesSelfIntersectingPolygon) {
   } catch (const InputError& e) {
     EXPECT_NE(std::string(e.what()).find("plots.gpkg: plot polygon is not valid"), std::string::npos)
         << e.what();
-    EXPECT_NE(std::string(e.what()).find("--repair-geometry"), std::string::npos);
+    EXPECT_NE(std::string(e.what()).find("repair_geometry"), std::string::npos);
   }
 }
 

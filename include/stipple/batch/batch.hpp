@@ -8,6 +8,7 @@
 #include <string>
 #include <vector>
 
+#include "stipple/error.hpp"
 #include "stipple/intensity/density.hpp"
 #include "stipple/intensity/kernel.hpp"
 #include "stipple/io/gis_writer.hpp"
@@ -63,6 +64,9 @@ struct BatchOptions {
   /// first of all inputs, also when this run is one shard, so shards agree.
   std::optional<BatchInput> crs_reference;
   SeasonRun run;                   ///< run facts for run.json and the report (version, options text...)
+  /// How a failed file's error is worded in failures.csv and run.json; by default its
+  /// message (a front end can name its own options, see Error::parameters).
+  std::function<std::string(const Error&)> describe_error;
 };
 
 /// What a file holds, judged from its layers' geometry before any analysis.

@@ -20,7 +20,7 @@ struct SourceSpec {
 
 /// Where the survey windows come from.
 enum class WindowMode {
-  plots,        ///< polygons from --plots
+  plots,        ///< polygons from `plots`
   convex_hull,  ///< Ripley-Rasson enlarged convex hull of the sightings (model-based)
 };
 
@@ -43,8 +43,8 @@ struct SurveyReadOptions {
   std::optional<std::string> encoding;  ///< text encoding of the sources (CPLRecode name); default UTF-8
   std::optional<std::string> x_field; ///< CSV coordinate columns; default x/lon/longitude/easting
   std::optional<std::string> y_field; ///< default y/lat/latitude/northing
-  std::optional<std::string> target_crs;  ///< --crs: analysis CRS, projected, metres
-  std::optional<std::string> assume_crs;  ///< --assume-crs: for layers without a CRS
+  std::optional<std::string> target_crs;  ///< analysis CRS, projected, metres
+  std::optional<std::string> assume_crs;  ///< for layers without a CRS
   bool repair_geometry = false;           ///< fix invalid polygons with GDAL's MakeValid
 };
 

@@ -14,8 +14,8 @@ namespace stipple {
 
 struct TransectReadOptions {
   SourceSpec sightings;
-  std::optional<SourceSpec> lines;     ///< --lines: line layer, one or more features per transect
-  std::optional<SourceSpec> stations;  ///< --stations: point layer, one feature per station
+  std::optional<SourceSpec> lines;     ///< line layer, one or more features per transect
+  std::optional<SourceSpec> stations;  ///< point layer, one feature per station
   std::string transect_field = "transect";  ///< transect id of the lines or stations
   std::optional<std::string> sighting_transect_field;  ///< the sightings' one; default transect_field
   Assignment assignment = Assignment::automatic;  ///< location = nearest transect

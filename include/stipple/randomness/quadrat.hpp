@@ -35,7 +35,7 @@ struct QuadratResult {
   bool cells_too_small = false;           ///< some expected count below 5
 };
 
-/// Parses a quadrat grid "NxM" (2 to 10000 cells); throws InputError naming --quadrats.
+/// Parses a quadrat grid "NxM" (2 to 10000 cells); throws InputError naming `quadrats`.
 [[nodiscard]] std::pair<std::size_t, std::size_t> parse_quadrat_grid(const std::string& text);
 
 /// Counts points in an nx x ny grid over the window's bounding box, each cell clipped to

@@ -70,7 +70,7 @@ struct Truncation {
   std::optional<double> largest_share;
 };
 
-/// Parses --truncate: a distance in metres, a percentage of the largest distances ("5%"),
+/// Parses a truncation: a distance in metres, a percentage of the largest distances ("5%"),
 /// or "none" (infinite). Throws InputError otherwise.
 [[nodiscard]] Truncation parse_truncation(const std::string& text);
 

@@ -108,7 +108,7 @@ OGRSpatialReference local_equal_area(const std::vector<CentreSample>& samples,
 double geodesic_area(const BgMultiPolygon& shape, const OGRSpatialReference& srs,
                      const std::string& label);
 
-/// The analysis CRS: `target` (--crs) when given, which must be projected in metres; else
+/// The analysis CRS: `target` when given, which must be projected in metres; else
 /// the first candidate CRS projected in metres whose plot areas (`area_error`, the largest
 /// |planar / geodesic - 1|; null = nothing to measure) are within 0.1% of the geodesic
 /// ones; else the local equal-area CRS of the samples. `reason` says which, for the output.

@@ -1,0 +1,21 @@
+# Fails when a string literal of the library (everything but src/cli) names a command-line
+# flag ("--confidence"): the library speaks of its parameters; src/cli/error_text.cpp says
+# the flags. Run by CTest: cmake -DSOURCE_DIR=... -P library_names_no_flag_check.cmake
+file(GLOB_RECURSE files "${SOURCE_DIR}/src/*.cpp" "${SOURCE_DIR}/src/*.hpp" "${SOURCE_DIR}/include/stipple/*.hpp")
+set(problems "")
+foreach(f ${files})
+  if(f MATCHES "/src/cli/")
+    continue()
+  endif()
+  file(STRINGS "${f}" lines REGEX "\"[^\"]*--[a-z][^\"]*\"")
+  foreach(line ${lines})
+    string(STRIP "${line}" line)
+    if(NOT line MATCHES "^//")
+      string(APPEND problems "\n  ${f}: ${line}")
+    endif()
+  endforeach()
+endforeach()
+if(problems)
+  message(FATAL_ERROR "library strings name command-line flags:${problems}")
+endif()
+message(STATUS "no library string names a command-line flag")
