@@ -160,7 +160,7 @@ void analyse_transect_file(FileResults& r, const BatchOptions& options) {
   r.input.warnings.insert(r.input.warnings.end(), loaded.warnings.begin(), loaded.warnings.end());
   if (options.figures) {
     const std::string stem = stem_of(r.source.name);
-    for (auto& f : transect_figures(loaded, *r.transect))
+    for (auto& f : transect_figures(loaded.survey, *r.transect))
       if (ends_with(f.name, ".svg"))
         r.figures.push_back({{"detection", "figures/" + stem + "/" + f.name, r.source.name + ": " + f.title},
                              std::move(f.content)});

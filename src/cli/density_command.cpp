@@ -51,10 +51,10 @@ int run_density(const DensityCommandOptions& o) {
   const DensityResult result = estimate_density(survey.survey, options);
 
   const bool stdout_taken = o.common.json == "-" || o.common.csv == "-";
-  if (!o.common.json.empty()) write_output(o.common.json, density_json(survey, result), inputs);
+  if (!o.common.json.empty()) write_output(o.common.json, density_json(survey, survey.survey, result), inputs);
   if (!o.common.csv.empty()) write_output(o.common.csv, density_csv(result), inputs);
   if (!stdout_taken) {
-    std::cout << density_table(survey, result);
+    std::cout << density_table(survey, survey.survey, result);
   } else {
     for (const auto& w : survey.warnings) std::cerr << "warning: " << w << "\n";
     for (const auto& w : density_warnings(result)) std::cerr << "warning: " << w << "\n";

@@ -135,8 +135,8 @@ int run_transect(const TransectCommandOptions& o) {
   const bool stdout_taken = o.common.json == "-" || o.common.csv == "-";
   if (!o.common.json.empty()) write_output(o.common.json, transect_json(input, result), inputs);
   if (!o.common.csv.empty()) write_output(o.common.csv, transect_csv(result), inputs);
-  if (!o.figures.empty()) write_folder(o.figures, transect_figures(input, result), inputs);
-  if (!stdout_taken) std::cout << transect_table(input, result);
+  if (!o.figures.empty()) write_folder(o.figures, transect_figures(input.survey, result), inputs);
+  if (!stdout_taken) std::cout << transect_table(input, input.survey, result);
   return 0;
 }
 

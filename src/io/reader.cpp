@@ -488,6 +488,7 @@ LoadedSurvey load_survey(const SurveyReadOptions& options) {
   }
   LoadedSurvey loaded;
   loaded.window = options.window;
+  loaded.model_based_window = options.window == WindowMode::convex_hull;
   SightingLayer sightings = read_sightings(options, loaded);
   loaded.sightings_label = sightings.label;
 

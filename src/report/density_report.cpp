@@ -175,22 +175,22 @@ const std::vector<std::string>& density_cautions() {
   return cautions;
 }
 
-std::string density_json(const LoadedSurvey& survey, const DensityResult& result) {
+std::string density_json(const InputFacts& input, const Survey& plots, const DensityResult& result) {
   Json doc;
   doc["stipple_version"] = std::string(version());
   doc["command"] = "density";
-  doc["crs"] = survey.crs.code;
-  doc["crs_name"] = survey.crs.name;
-  doc["crs_reason"] = survey.crs.reason;
-  doc["crs_max_area_error"] = survey.crs.max_area_error;
+  doc["crs"] = input.crs.code;
+  doc["crs_name"] = input.crs.name;
+  doc["crs_reason"] = input.crs.reason;
+  doc["crs_max_area_error"] = input.crs.max_area_error;
   doc["unit"] = std::string(unit_name(result.unit));
   doc["confidence"] = result.confidence;
   doc["alpha"] = result.alpha;
   doc["seed"] = result.seed;
   doc["simulations"] = result.simulations;
-  doc["sightings"] = survey.sightings_label;
-  doc["plots"] = survey.plots_label.empty() ? Json(nullptr) : Json(survey.plots_label);
-  doc["window"] = survey.window == WindowMode::plots ? "plots" : "convex-hull";
+  doc["sightings"] = input.sightings_label;
+  doc["plots"] = input.plots_label.empty() ? Json(nullptr) : Json(input.plots_label);
+  doc["window"] = input.model_based_window ? "convex-hull" : "plots";
   doc["interval_method"] = "exact Poisson (Garwood 1936)";
 
   Json estimates = Json::array();
@@ -203,7 +203,7 @@ std::string density_json(const LoadedSurvey& survey, const DensityResult& result
 
   doc["composition"] = report_detail::composition_record(result.composition);
 
-  const Survey& s = survey.survey;
+  const Survey& s = plots;
   Json excluded;
   excluded["outside_plots"] = s.outside_feature_ids.size();
   excluded["outside_plots_feature_ids"] = ids_json(s.outside_feature_ids);
@@ -215,10 +215,10 @@ std::string density_json(const LoadedSurvey& survey, const DensityResult& result
   assignment["outside_own_plot_feature_ids"] = ids_json(s.off_window_feature_ids);
   doc["assignment"] = std::move(assignment);
   doc["detection_method"] = method_line(result);
-  doc["duplicate_locations"] = duplicate_locations_json(survey);
-  doc["notes"] = survey.notes;
+  doc["duplicate_locations"] = duplicate_locations_json(input);
+  doc["notes"] = input.notes;
   Json warnings = Json::array();
-  for (const auto& w : survey.warnings) warnings.push_back(w);
+  for (const auto& w : input.warnings) warnings.push_back(w);
   for (const auto& w : density_warnings(result)) warnings.push_back(w);
   doc["warnings"] = std::move(warnings);
   doc["cautions"] = density_cautions();
@@ -286,15 +286,15 @@ void write_composition_line(std::ostream& out, const CompositionTest& c) {
       << "\n\n";
 }
 
-void write_notes_warnings_cautions(std::ostream& out, const LoadedSurvey& survey, const DensityResult& result) {
-  if (!survey.notes.empty()) {
+void write_notes_warnings_cautions(std::ostream& out, const InputFacts& input, const DensityResult& result) {
+  if (!input.notes.empty()) {
     out << "\nNotes\n";
-    for (const auto& n : survey.notes) out << "  - " << n << "\n";
+    for (const auto& n : input.notes) out << "  - " << n << "\n";
   }
   const std::vector<std::string> warnings = density_warnings(result);
-  if (!survey.warnings.empty() || !warnings.empty()) {
+  if (!input.warnings.empty() || !warnings.empty()) {
     out << "\nWarnings\n";
-    for (const auto& w : survey.warnings) out << "  - " << w << "\n";
+    for (const auto& w : input.warnings) out << "  - " << w << "\n";
     for (const auto& w : warnings) out << "  - " << w << "\n";
   }
   out << "\nCautions\n";
@@ -303,26 +303,26 @@ void write_notes_warnings_cautions(std::ostream& out, const LoadedSurvey& survey
 
 }  // namespace
 
-std::string density_table(const LoadedSurvey& survey, const DensityResult& result) {
+std::string density_table(const InputFacts& input, const Survey& plots, const DensityResult& result) {
   std::ostringstream out;
   const std::string unit(unit_name(result.unit));
   const std::string level = level_text(result.confidence);
   out << "stipple density\n";
-  out << "  sightings: " << survey.sightings_label << "\n";
-  if (!survey.plots_label.empty()) out << "  plots:     " << survey.plots_label << "\n";
-  out << "  CRS:       " << survey.crs.code << " (" << survey.crs.name << "), "
-      << survey.crs.reason << "; " << crs_area_note(survey.crs) << "\n";
+  out << "  sightings: " << input.sightings_label << "\n";
+  if (!input.plots_label.empty()) out << "  plots:     " << input.plots_label << "\n";
+  out << "  CRS:       " << input.crs.code << " (" << input.crs.name << "), "
+      << input.crs.reason << "; " << crs_area_note(input.crs) << "\n";
   out << "  intensity per " << unit << "; " << level
       << " exact Poisson (Garwood) intervals; " << method_line(result) << "\n\n";
   write_plot_section(out, result, unit, level);
   if (!result.pooled.empty()) write_pooled_section(out, result, unit, level);
   if (result.composition) write_composition_line(out, *result.composition);
-  const Survey& s = survey.survey;
+  const Survey& s = plots;
   out << "Sightings: " << s.sighting_count() << " analysed, "
       << s.outside_feature_ids.size() + s.unknown_plot_feature_ids.size() << " excluded; "
       << "assigned by " << (s.assigned_by_attribute ? "plot attribute" : "point-in-polygon")
       << "\n";
-  write_notes_warnings_cautions(out, survey, result);
+  write_notes_warnings_cautions(out, input, result);
   return out.str();
 }
 

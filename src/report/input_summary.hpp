@@ -7,7 +7,7 @@
 #include <nlohmann/json.hpp>
 
 #include "stipple/format.hpp"
-#include "stipple/io/reader.hpp"
+#include "stipple/input_facts.hpp"
 
 namespace stipple::report_detail {
 
@@ -18,7 +18,7 @@ inline std::string crs_area_note(const AnalysisCrs& crs) {
 }
 
 /// The `duplicate_locations` records: x, y (analysis CRS) and the feature ids found there.
-inline nlohmann::ordered_json duplicate_locations_json(const LoadedSurvey& survey) {
+inline nlohmann::ordered_json duplicate_locations_json(const InputFacts& survey) {
   nlohmann::ordered_json out = nlohmann::ordered_json::array();
   for (const auto& d : survey.duplicate_locations)
     out.push_back({{"x", d.location.x}, {"y", d.location.y}, {"feature_ids", d.feature_ids}});

@@ -146,17 +146,17 @@ const std::vector<std::string>& randomness_cautions() {
   return cautions;
 }
 
-std::string randomness_json(const LoadedSurvey& survey, const RandomnessResult& result) {
+std::string randomness_json(const InputFacts& input, const RandomnessResult& result) {
   Json doc;
   doc["stipple_version"] = std::string(version());
   doc["command"] = "randomness";
-  doc["crs"] = survey.crs.code;
-  doc["crs_max_area_error"] = survey.crs.max_area_error;
+  doc["crs"] = input.crs.code;
+  doc["crs_max_area_error"] = input.crs.max_area_error;
   doc["simulations"] = result.simulations;
   doc["seed"] = result.seed;
   doc["alpha"] = result.alpha;
-  doc["sightings"] = survey.sightings_label;
-  doc["plots"] = survey.plots_label.empty() ? Json(nullptr) : Json(survey.plots_label);
+  doc["sightings"] = input.sightings_label;
+  doc["plots"] = input.plots_label.empty() ? Json(nullptr) : Json(input.plots_label);
   Json results = Json::array();
   for (const auto& g : result.results) results.push_back(report_detail::randomness_group_record(g));
   doc["results"] = std::move(results);
@@ -168,9 +168,9 @@ std::string randomness_json(const LoadedSurvey& survey, const RandomnessResult& 
     skipped.push_back({{"plot", s.plot}, {"species", s.species ? Json(*s.species) : Json(nullptr)},
                        {"n", s.n}, {"reason", s.reason}});
   doc["skipped"] = std::move(skipped);
-  doc["duplicate_locations"] = duplicate_locations_json(survey);
-  doc["notes"] = survey.notes;
-  doc["warnings"] = survey.warnings;
+  doc["duplicate_locations"] = duplicate_locations_json(input);
+  doc["notes"] = input.notes;
+  doc["warnings"] = input.warnings;
   doc["cautions"] = randomness_cautions();
   return json_text(doc);
 }
@@ -238,7 +238,7 @@ void write_interactions(std::ostream& out, const RandomnessResult& result) {
 
 // The notes of every group, each note shared by several groups (e.g. too few simulations)
 // once with a count; small quadrat cells, common in small plots, in one line for all.
-std::vector<std::string> table_notes(const LoadedSurvey& survey, const RandomnessResult& result) {
+std::vector<std::string> table_notes(const InputFacts& input, const RandomnessResult& result) {
   std::size_t small_cells = 0;
   std::vector<std::pair<std::string, std::vector<std::string>>> shared;  // note, groups
   for (const auto& g : result.results) {
@@ -262,19 +262,19 @@ std::vector<std::string> table_notes(const LoadedSurvey& survey, const Randomnes
     notes.push_back(std::to_string(small_cells) + " of " + std::to_string(result.results.size()) +
                     " groups have quadrat cells with expected counts below 5: their quadrat p-value "
                     "is the Monte Carlo one (consider fewer quadrats; per-group details in the JSON)");
-  notes.insert(notes.end(), survey.notes.begin(), survey.notes.end());
+  notes.insert(notes.end(), input.notes.begin(), input.notes.end());
   return notes;
 }
 
 }  // namespace
 
-std::string randomness_table(const LoadedSurvey& survey, const RandomnessResult& result) {
+std::string randomness_table(const InputFacts& input, const RandomnessResult& result) {
   std::ostringstream out;
   out << "stipple randomness\n";
-  out << "  sightings: " << survey.sightings_label << "\n";
-  if (!survey.plots_label.empty()) out << "  plots:     " << survey.plots_label << "\n";
-  out << "  CRS:       " << survey.crs.code << " (" << survey.crs.name << "); "
-      << crs_area_note(survey.crs) << "\n";
+  out << "  sightings: " << input.sightings_label << "\n";
+  if (!input.plots_label.empty()) out << "  plots:     " << input.plots_label << "\n";
+  out << "  CRS:       " << input.crs.code << " (" << input.crs.name << "); "
+      << crs_area_note(input.crs) << "\n";
   out << "  " << result.simulations << " CSR simulations (binomial process, same n and window), seed "
       << result.seed << ", alpha " << format_general(result.alpha) << "\n\n";
   write_groups_table(out, result);
@@ -286,13 +286,13 @@ std::string randomness_table(const LoadedSurvey& survey, const RandomnessResult&
       out << "  - " << s.plot << " " << species_text(s.species) << " (n = " << s.n << "): " << s.reason << "\n";
     out << "\n";
   }
-  if (const auto notes = table_notes(survey, result); !notes.empty()) {
+  if (const auto notes = table_notes(input, result); !notes.empty()) {
     out << "Notes\n";
     for (const auto& n : notes) out << "  - " << n << "\n";
   }
-  if (!survey.warnings.empty()) {
+  if (!input.warnings.empty()) {
     out << "\nWarnings\n";
-    for (const auto& w : survey.warnings) out << "  - " << w << "\n";
+    for (const auto& w : input.warnings) out << "  - " << w << "\n";
   }
   out << "\nCautions\n";
   for (const auto& c : randomness_cautions()) out << "  - " << c << "\n";

@@ -114,7 +114,7 @@ const std::vector<std::string>& transect_cautions() {
   return cautions;
 }
 
-std::string transect_json(const LoadedTransects& input, const TransectResult& result) {
+std::string transect_json(const InputFacts& input, const TransectResult& result) {
   Json doc;
   doc["stipple_version"] = std::string(version());
   doc["command"] = "transect";
@@ -145,13 +145,13 @@ std::string transect_json(const LoadedTransects& input, const TransectResult& re
   return json_text(doc);
 }
 
-std::string transect_table(const LoadedTransects& input, const TransectResult& result) {
+std::string transect_table(const InputFacts& input, const TransectSurvey& survey, const TransectResult& result) {
   std::ostringstream out;
   const std::string unit(unit_name(result.unit));
   const bool lines = result.kind == TransectKind::line;
   out << "stipple transect (" << (lines ? "line" : "point") << " transects)\n";
   out << "  sightings: " << input.sightings_label << "\n";
-  out << "  transects: " << input.transects_label << " (" << input.survey.transects.size() << ")\n";
+  out << "  transects: " << input.transects_label << " (" << survey.transects.size() << ")\n";
   out << "  CRS:       " << input.crs.code << " (" << input.crs.name << "), " << input.crs.reason << "\n";
   out << "  truncation " << format_significant(result.truncation_m, 4) << " m (" << result.truncated
       << " detections beyond it); density per " << unit << "; "
@@ -245,7 +245,7 @@ std::string transect_csv(const TransectResult& result) {
   return csv_text(transect_rows(result));
 }
 
-std::vector<FigureFile> transect_figures(const LoadedTransects& input, const TransectResult& result) {
+std::vector<FigureFile> transect_figures(const TransectSurvey& survey, const TransectResult& result) {
   std::vector<FigureFile> files;
   std::set<std::string> done;
   FileNamer namer;
@@ -294,7 +294,7 @@ std::vector<FigureFile> transect_figures(const LoadedTransects& input, const Tra
 
     // Q-Q plot of exact distances within the truncation distance.
     std::vector<double> x;
-    for (const auto& o : input.survey.observations)
+    for (const auto& o : survey.observations)
       if ((!e.species || o.species == *e.species) && o.distance_m <= result.truncation_m) x.push_back(o.distance_m);
     if (x.size() < 3) continue;
     std::sort(x.begin(), x.end());

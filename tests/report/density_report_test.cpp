@@ -6,11 +6,17 @@
 namespace stipple {
 namespace {
 
-LoadedSurvey tiny_survey() {
-  LoadedSurvey s;
-  s.crs = AnalysisCrs{"EPSG:32630", "WGS 84 / UTM zone 30N", "given with --crs", ""};
-  s.sightings_label = "s.gpkg: layer 'stems'";
-  s.plots_label = "p.gpkg: layer 'plots'";
+// A report from results that did not come from a file: the facts and the survey by hand.
+struct Tiny {
+  InputFacts input;
+  Survey survey;
+};
+
+Tiny tiny_survey() {
+  Tiny s;
+  s.input.crs = AnalysisCrs{"EPSG:32630", "WGS 84 / UTM zone 30N", "given by the user", "", 0.0};
+  s.input.sightings_label = "s.gpkg: layer 'stems'";
+  s.input.plots_label = "p.gpkg: layer 'plots'";
   std::vector<Sighting> sightings;
   for (int i = 0; i < 31; ++i)
     sightings.push_back(Sighting{{1.0 + i, 50.0}, i + 1, "oak", std::nullopt});
@@ -19,10 +25,10 @@ LoadedSurvey tiny_survey() {
 }
 
 TEST(DensityJson, CarriesTheContractKeysAndValues) {
-  const LoadedSurvey s = tiny_survey();
+  const Tiny s = tiny_survey();
   DensityOptions options;
   options.detection = DetectionTable::uniform(Detection{0.8, 0.0});
-  const auto doc = nlohmann::json::parse(density_json(s, estimate_density(s.survey, options)));
+  const auto doc = nlohmann::json::parse(density_json(s.input, s.survey, estimate_density(s.survey, options)));
   EXPECT_EQ(doc["crs"], "EPSG:32630");
   EXPECT_EQ(doc["unit"], "ha");
   const auto& e = doc["estimates"][0];
@@ -40,9 +46,11 @@ TEST(DensityJson, CarriesTheContractKeysAndValues) {
 }
 
 TEST(DensityTable, ShowsCautions) {
-  const LoadedSurvey s = tiny_survey();
-  const std::string table = density_table(s, estimate_density(s.survey, DensityOptions{}));
+  const Tiny s = tiny_survey();
+  const std::string table = density_table(s.input, s.survey, estimate_density(s.survey, DensityOptions{}));
   EXPECT_NE(table.find("P1"), std::string::npos);
+  EXPECT_NE(table.find("s.gpkg: layer 'stems'"), std::string::npos);
+  EXPECT_NE(table.find("EPSG:32630 (WGS 84 / UTM zone 30N), given by the user"), std::string::npos);
   EXPECT_NE(table.find("local agency"), std::string::npos);
 }
 

@@ -8,6 +8,7 @@
 #include <vector>
 
 #include "stipple/geometry/survey.hpp"
+#include "stipple/input_facts.hpp"
 #include "stipple/intensity/detection.hpp"
 
 namespace stipple {
@@ -48,33 +49,10 @@ struct SurveyReadOptions {
   bool repair_geometry = false;           ///< fix invalid polygons with GDAL's MakeValid
 };
 
-/// The analysis CRS and why it was chosen.
-struct AnalysisCrs {
-  std::string code;    ///< "EPSG:32630", or the CRS name when it has no authority code
-  std::string name;    ///< "WGS 84 / UTM zone 30N"
-  std::string reason;  ///< how it was chosen, for the output
-  std::string wkt;     ///< WKT, for GIS outputs
-  /// Largest |planar area / geodesic area - 1| of any plot window in this CRS (0 when
-  /// there are no windows to measure).
-  double max_area_error = 0.0;
-};
-
-/// Several sightings recorded at exactly the same coordinates.
-struct DuplicateLocation {
-  Point location;                       ///< in the analysis CRS
-  std::vector<std::int64_t> feature_ids;
-};
-
-/// A survey read from its sources and assigned to plots.
-struct LoadedSurvey {
-  AnalysisCrs crs;
-  std::string sightings_label;  ///< "path: layer 'name'"
-  std::string plots_label;      ///< empty for convex-hull windows
+/// A survey read from its sources and assigned to plots, with the facts of its reading.
+struct LoadedSurvey : InputFacts {
   WindowMode window = WindowMode::plots;
   Survey survey;
-  std::vector<DuplicateLocation> duplicate_locations;  ///< zero nearest-neighbour distances
-  std::vector<std::string> notes;     ///< facts worth printing (reprojection, repairs)
-  std::vector<std::string> warnings;  ///< things the user must know (exclusions, model-based)
 };
 
 /// Reads sightings and windows, reprojects them to the analysis CRS and assigns every

@@ -36,15 +36,11 @@ struct TransectReadOptions {
   std::optional<SourceSpec> study_area;      ///< polygons; with stratum_field: per stratum
 };
 
-struct LoadedTransects {
-  AnalysisCrs crs;
-  std::string sightings_label;
-  std::string transects_label;
+/// Transects and sightings as read, with the facts of their reading (`study_area_m2` when a
+/// study area was given; warnings: undecodable text, area error).
+struct LoadedTransects : InputFacts {
   TransectSurvey survey;
-  std::optional<double> study_area_m2;
   std::map<std::string, double> stratum_area_m2;
-  std::vector<std::string> notes;
-  std::vector<std::string> warnings;  ///< things the user must know (undecodable text, area error)
 };
 
 /// Reads transects and sightings. Throws InputError naming the file, layer, field and

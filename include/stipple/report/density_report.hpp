@@ -5,7 +5,8 @@
 #include <vector>
 
 #include "stipple/intensity/density.hpp"
-#include "stipple/io/reader.hpp"
+#include "stipple/geometry/survey.hpp"
+#include "stipple/input_facts.hpp"
 
 namespace stipple {
 
@@ -16,11 +17,12 @@ namespace stipple {
 /// then too narrow) and a species mix that differs between plots.
 [[nodiscard]] std::vector<std::string> density_warnings(const DensityResult& result);
 
-/// A readable report for the terminal.
-[[nodiscard]] std::string density_table(const LoadedSurvey& survey, const DensityResult& result);
+/// A readable report for the terminal of `result`, estimated from `plots`, whose data came
+/// from `input` (a reader's LoadedSurvey, or facts filled by hand).
+[[nodiscard]] std::string density_table(const InputFacts& input, const Survey& plots, const DensityResult& result);
 
 /// The JSON document of `stipple density --json` (contract in README, "JSON output").
-[[nodiscard]] std::string density_json(const LoadedSurvey& survey, const DensityResult& result);
+[[nodiscard]] std::string density_json(const InputFacts& input, const Survey& plots, const DensityResult& result);
 
 /// One row per plot x species and per pooled species (column `scope`: plot | pooled),
 /// empty species = all species together.

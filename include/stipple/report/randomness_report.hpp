@@ -5,7 +5,7 @@
 #include <utility>
 #include <vector>
 
-#include "stipple/io/reader.hpp"
+#include "stipple/input_facts.hpp"
 #include "stipple/randomness/analysis.hpp"
 #include "stipple/report/figure.hpp"
 
@@ -14,9 +14,9 @@ namespace stipple {
 /// The cautions printed with every randomness result.
 [[nodiscard]] const std::vector<std::string>& randomness_cautions();
 
-[[nodiscard]] std::string randomness_table(const LoadedSurvey& survey, const RandomnessResult& result);
+[[nodiscard]] std::string randomness_table(const InputFacts& input, const RandomnessResult& result);
 /// The JSON document of `stipple randomness --json` (contract in README, "JSON output").
-[[nodiscard]] std::string randomness_json(const LoadedSurvey& survey, const RandomnessResult& result);
+[[nodiscard]] std::string randomness_json(const InputFacts& input, const RandomnessResult& result);
 /// `--csv`: one row per plot x species with every p-value and the verdict (tables.hpp).
 [[nodiscard]] std::string randomness_csv(const RandomnessResult& result);
 /// One row per group, function and distance: plot, species, species_b, function, r,
