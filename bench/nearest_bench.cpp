@@ -26,8 +26,11 @@ void NearestNeighbourGrid(benchmark::State& state) {
   state.SetItemsProcessed(state.iterations() * state.range(0));
   state.SetComplexityN(state.range(0));
 }
-BENCHMARK(NearestNeighbourGrid)->RangeMultiplier(10)->Range(10'000, 1'000'000)
-    ->Unit(benchmark::kMillisecond)->Complexity(benchmark::oN);
+BENCHMARK(NearestNeighbourGrid)
+    ->RangeMultiplier(10)
+    ->Range(10'000, 1'000'000)
+    ->Unit(benchmark::kMillisecond)
+    ->Complexity(benchmark::oN);
 
 void NearestNeighbourRtree(benchmark::State& state) {
   namespace bg = boost::geometry;
@@ -49,7 +52,6 @@ void NearestNeighbourRtree(benchmark::State& state) {
   }
   state.SetItemsProcessed(state.iterations() * state.range(0));
 }
-BENCHMARK(NearestNeighbourRtree)->RangeMultiplier(10)->Range(10'000, 1'000'000)
-    ->Unit(benchmark::kMillisecond);
+BENCHMARK(NearestNeighbourRtree)->RangeMultiplier(10)->Range(10'000, 1'000'000)->Unit(benchmark::kMillisecond);
 
 }  // namespace

@@ -20,8 +20,7 @@ void FullRandomnessRun(benchmark::State& state) {
   }
   state.SetComplexityN(state.range(0));
 }
-BENCHMARK(FullRandomnessRun)->Args({1'000, 999})->Args({10'000, 999})
-    ->Unit(benchmark::kSecond)->Iterations(1);
+BENCHMARK(FullRandomnessRun)->Args({1'000, 999})->Args({10'000, 999})->Unit(benchmark::kSecond)->Iterations(1);
 
 void RandomLabellingRun(benchmark::State& state) {
   const auto n = static_cast<std::size_t>(state.range(0));
@@ -30,8 +29,7 @@ void RandomLabellingRun(benchmark::State& state) {
   const auto a = stipple::simulate_binomial(window, n / 2, engine);
   const auto b = stipple::simulate_binomial(window, n / 2, engine);
   stipple::RandomnessOptions options;
-  for (auto _ : state)
-    benchmark::DoNotOptimize(stipple::random_labelling_test(a, b, window, options, "bench"));
+  for (auto _ : state) benchmark::DoNotOptimize(stipple::random_labelling_test(a, b, window, options, "bench"));
 }
 BENCHMARK(RandomLabellingRun)->Arg(10'000)->Unit(benchmark::kSecond)->Iterations(1);
 

@@ -2,6 +2,8 @@
 
 namespace stipple {
 
-std::string_view version() noexcept { return STIPPLE_VERSION; }
+std::string_view version() noexcept {
+  return STIPPLE_VERSION;
+}
 
 }  // namespace stipple

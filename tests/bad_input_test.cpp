@@ -28,7 +28,9 @@ struct BadCase {
   std::string arguments;
 };
 
-std::string corpus_dir() { return std::string(STIPPLE_TEST_DATA_DIR) + "/bad"; }
+std::string corpus_dir() {
+  return std::string(STIPPLE_TEST_DATA_DIR) + "/bad";
+}
 
 std::vector<BadCase> load_cases() {
   std::vector<BadCase> cases;
@@ -83,8 +85,7 @@ TEST_P(BadInput, IsRefusedOrWarnedAndLeavesEveryInputUnchanged) {
   const int exit_code = WIFEXITED(status) ? WEXITSTATUS(status) : -1;
 
   EXPECT_EQ(exit_code, c.exit_code) << command << "\n" << err;
-  EXPECT_NE((out + err).find(c.fragment), std::string::npos)
-      << "expected: " << c.fragment << "\nstderr: " << err;
+  EXPECT_NE((out + err).find(c.fragment), std::string::npos) << "expected: " << c.fragment << "\nstderr: " << err;
   if (c.exit_code == 2) {
     // A refusal is one line: "error: ..." naming what was wrong.
     EXPECT_EQ(err.rfind("error: ", 0), 0u) << err;
@@ -102,7 +103,9 @@ std::string case_name(const testing::TestParamInfo<BadCase>& info) {
 
 INSTANTIATE_TEST_SUITE_P(Corpus, BadInput, testing::ValuesIn(load_cases()), case_name);
 
-TEST(BadInputCorpus, HoldsAtLeastSixtyCases) { EXPECT_GE(load_cases().size(), 60u); }
+TEST(BadInputCorpus, HoldsAtLeastSixtyCases) {
+  EXPECT_GE(load_cases().size(), 60u);
+}
 
 }  // namespace
 }  // namespace stipple::test

@@ -1,7 +1,7 @@
 #include "stipple/format.hpp"
 
-#include <cmath>
 #include <charconv>
+#include <cmath>
 #include <string>
 
 #include <gtest/gtest.h>
@@ -32,8 +32,8 @@ TEST(Format, IgnoresTheLocaleDecimalSeparator) {
 TEST(Format, RoundTripFormReadsBackTheSameDouble) {
   // C++17 [charconv]: std::to_chars without a precision gives the shortest text that
   // from_chars reads back as the same value.
-  for (const double x : {1.0 / 3.0, 2.0 / 3.0 * 1e-7, 123456.789012345678, 5e-324, 1.7976931348623157e308,
-                         -0.1, 0.95, 55.59999999999999}) {
+  for (const double x : {1.0 / 3.0, 2.0 / 3.0 * 1e-7, 123456.789012345678, 5e-324, 1.7976931348623157e308, -0.1, 0.95,
+                         55.59999999999999}) {
     const std::string text = format_round_trip(x);
     EXPECT_EQ(read_double(text), x) << text;
     EXPECT_EQ(text.find(','), std::string::npos);

@@ -1,6 +1,7 @@
 #pragma once
 // Test helpers: temporary folders, small input files, and running the stipple binary.
 
+#include <sys/wait.h>
 #include <algorithm>
 #include <cstdio>
 #include <filesystem>
@@ -8,7 +9,6 @@
 #include <random>
 #include <sstream>
 #include <string>
-#include <sys/wait.h>
 
 #include <gtest/gtest.h>
 
@@ -52,7 +52,8 @@ inline const char* utm30_prj() {
 /// A GeoJSON FeatureCollection in EPSG:32630 from feature texts.
 inline std::string geojson_utm(const std::string& features) {
   return "{\"type\":\"FeatureCollection\",\"crs\":{\"type\":\"name\",\"properties\":{\"name\":"
-         "\"urn:ogc:def:crs:EPSG::32630\"}},\"features\":[" + features + "]}";
+         "\"urn:ogc:def:crs:EPSG::32630\"}},\"features\":[" +
+         features + "]}";
 }
 
 /// A polygon feature with a plot id, from a ring given as "[[x,y],...]".
@@ -74,12 +75,11 @@ inline RunResult run_cli(const std::string& args) {
   const std::string err_file = dir.file("stderr.txt");
   const bool subcommand = args.empty() || args[0] == '-' || args.rfind("inspect", 0) == 0 ||
                           args.rfind("randomness", 0) == 0 || args.rfind("transect", 0) == 0 ||
-                          args.rfind("effort", 0) == 0 || args.rfind("batch", 0) == 0 ||
-                          args.rfind("merge", 0) == 0 || args.rfind("report", 0) == 0 ||
-                          args.rfind("surface", 0) == 0 ||
+                          args.rfind("effort", 0) == 0 || args.rfind("batch", 0) == 0 || args.rfind("merge", 0) == 0 ||
+                          args.rfind("report", 0) == 0 || args.rfind("surface", 0) == 0 ||
                           args.rfind("density", 0) == 0;
-  const std::string command = std::string(STIPPLE_CLI) + (subcommand ? " " : " density ") + args +
-                              " 2>" + err_file + " </dev/null";
+  const std::string command =
+      std::string(STIPPLE_CLI) + (subcommand ? " " : " density ") + args + " 2>" + err_file + " </dev/null";
   RunResult result;
   FILE* pipe = popen(command.c_str(), "r");
   if (pipe == nullptr) return result;

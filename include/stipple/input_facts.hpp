@@ -32,14 +32,14 @@ struct DuplicateLocation {
 /// Where a survey's data came from and what reading them noted.
 struct InputFacts {
   AnalysisCrs crs;
-  std::string sightings_label;   ///< "path: layer 'name'"
-  std::string plots_label;       ///< the plot polygons; empty for a model-based window or transects
-  std::string transects_label;   ///< the transect lines or stations; empty for plots
-  bool model_based_window = false;  ///< windows estimated from the points (convex hull), not surveyed
+  std::string sightings_label;          ///< "path: layer 'name'"
+  std::string plots_label;              ///< the plot polygons; empty for a model-based window or transects
+  std::string transects_label;          ///< the transect lines or stations; empty for plots
+  bool model_based_window = false;      ///< windows estimated from the points (convex hull), not surveyed
   std::optional<double> study_area_m2;  ///< transects: the area they stand for, square metres
   std::vector<DuplicateLocation> duplicate_locations;  ///< zero nearest-neighbour distances
-  std::vector<std::string> notes;     ///< facts worth printing (reprojection, repairs)
-  std::vector<std::string> warnings;  ///< things the user must know (exclusions, model-based)
+  std::vector<std::string> notes;                      ///< facts worth printing (reprojection, repairs)
+  std::vector<std::string> warnings;                   ///< things the user must know (exclusions, model-based)
 };
 
 }  // namespace stipple

@@ -10,19 +10,19 @@
 
 #include <nlohmann/json.hpp>
 
+#include "detail/parallel.hpp"
 #include "json_text.hpp"
 #include "report/records.hpp"
 #include "stipple/error.hpp"
-#include "stipple/version.hpp"
 #include "stipple/format.hpp"
 #include "stipple/io/inspect.hpp"
 #include "stipple/io/output.hpp"
-#include "detail/parallel.hpp"
 #include "stipple/report/density_report.hpp"
 #include "stipple/report/figure.hpp"
 #include "stipple/report/randomness_report.hpp"
 #include "stipple/report/tables.hpp"
 #include "stipple/report/transect_report.hpp"
+#include "stipple/version.hpp"
 
 namespace fs = std::filesystem;
 
@@ -99,8 +99,10 @@ void keep_plots_with_sightings(LoadedSurvey& loaded) {
   }
   const std::size_t left_out = s.plots.size() - plots.size();
   if (left_out > 0)
-    loaded.notes.push_back(std::to_string(plots.size()) + " plot(s) of the shared plots layer hold this file's sightings; "
-                           "the other " + std::to_string(left_out) + " are left to the files that cover them");
+    loaded.notes.push_back(std::to_string(plots.size()) +
+                           " plot(s) of the shared plots layer hold this file's sightings; "
+                           "the other " +
+                           std::to_string(left_out) + " are left to the files that cover them");
   s.plots = std::move(plots);
   s.patterns = std::move(patterns);
 }
@@ -108,8 +110,10 @@ void keep_plots_with_sightings(LoadedSurvey& loaded) {
 void analyse_plots(FileResults& r, const BatchOptions& options) {
   SurveyReadOptions read = options.read;
   read.sightings = SourceSpec{r.source.path, options.read.sightings.layer};
-  if (options.shared_plots) read.plots = *options.shared_plots;
-  else read.plots = SourceSpec{r.source.plots_path, options.read.plots ? options.read.plots->layer : std::nullopt};
+  if (options.shared_plots)
+    read.plots = *options.shared_plots;
+  else
+    read.plots = SourceSpec{r.source.plots_path, options.read.plots ? options.read.plots->layer : std::nullopt};
   read.window = WindowMode::plots;
   r.survey = load_survey(read);
   if (options.shared_plots) keep_plots_with_sightings(*r.survey);
@@ -129,8 +133,8 @@ void analyse_plots(FileResults& r, const BatchOptions& options) {
     if (options.figures)
       for (auto& f : randomness_figures(*r.randomness))
         if (ends_with(f.name, ".svg") && f.name.rfind("L-", 0) == 0)
-          r.figures.push_back({{"L", "figures/" + stem + "/" + f.name, r.source.name + ": " + f.title},
-                               std::move(f.content)});
+          r.figures.push_back(
+              {{"L", "figures/" + stem + "/" + f.name, r.source.name + ": " + f.title}, std::move(f.content)});
   }
   if (options.surfaces) {
     const double per_unit = square_metres_per(options.density.unit);
@@ -162,8 +166,8 @@ void analyse_transect_file(FileResults& r, const BatchOptions& options) {
     const std::string stem = stem_of(r.source.name);
     for (auto& f : transect_figures(loaded.survey, *r.transect))
       if (ends_with(f.name, ".svg"))
-        r.figures.push_back({{"detection", "figures/" + stem + "/" + f.name, r.source.name + ": " + f.title},
-                             std::move(f.content)});
+        r.figures.push_back(
+            {{"detection", "figures/" + stem + "/" + f.name, r.source.name + ": " + f.title}, std::move(f.content)});
   }
 }
 
@@ -190,8 +194,8 @@ FileResults analyse_file(const BatchInput& source, const BatchOptions& options) 
       r.input.status = "skipped";
       r.input.reason = evidence + "; " +
                        (kind == InputKind::transects ? "not a plot file (the transect analysis fits it)"
-                        : kind == InputKind::plots   ? "not a transect file (the density and randomness analyses fit it)"
-                                                     : "nothing to analyse");
+                        : kind == InputKind::plots ? "not a transect file (the density and randomness analyses fit it)"
+                                                   : "nothing to analyse");
     }
   } catch (const Error& e) {
     r = FileResults{};
@@ -322,12 +326,13 @@ class SeasonWriter {
     if (crs_wkt_.empty() && !r.crs_wkt.empty())
       set_batch_crs(r.input.crs, r.survey ? r.survey->crs.name : r.input.crs, r.crs_wkt);
     if (!r.crs_wkt.empty() && r.input.crs != crs_code_ && (r.survey || r.transect))
-      r.input.warnings.push_back("analysed in its own CRS " + r.input.crs + "; its GIS features are reprojected to the batch CRS " +
-                                 crs_code_);
+      r.input.warnings.push_back("analysed in its own CRS " + r.input.crs +
+                                 "; its GIS features are reprojected to the batch CRS " + crs_code_);
     const std::string& name = r.source.name;
     if (r.density) {
       density_->csv.write(csv_rows_with_file(density_rows(*r.density), name));
-      for (const auto& e : r.density->estimates) density_->json.add(with_file(name, report_detail::density_estimate_record(e)));
+      for (const auto& e : r.density->estimates)
+        density_->json.add(with_file(name, report_detail::density_estimate_record(e)));
       const auto rows = season_density_rows(name, *r.density);
       summary_.report.densities.insert(summary_.report.densities.end(), rows.begin(), rows.end());
       season_counts_.append(PlotCounts::of(r.survey->survey), name + ":");
@@ -335,9 +340,11 @@ class SeasonWriter {
     }
     if (r.randomness) {
       randomness_->csv.write(csv_rows_with_file(randomness_rows(*r.randomness), name));
-      for (const auto& g : r.randomness->results) randomness_->json.add(with_file(name, report_detail::randomness_group_record(g)));
+      for (const auto& g : r.randomness->results)
+        randomness_->json.add(with_file(name, report_detail::randomness_group_record(g)));
       interactions_->csv.write(csv_rows_with_file(interaction_rows(*r.randomness), name));
-      for (const auto& i : r.randomness->interactions) interactions_->json.add(with_file(name, report_detail::interaction_record(i)));
+      for (const auto& i : r.randomness->interactions)
+        interactions_->json.add(with_file(name, report_detail::interaction_record(i)));
       const auto rows = season_randomness_rows(name, *r.randomness);
       summary_.report.randomness.insert(summary_.report.randomness.end(), rows.begin(), rows.end());
       const auto pairs = season_interaction_rows(name, *r.randomness);
@@ -365,11 +372,12 @@ class SeasonWriter {
     for (const auto& [path, raster] : r.surfaces) {
       const fs::path target = dir_ / path;
       make_folder(target.parent_path().string());
-      write_geotiff(target.string(), raster, r.crs_wkt,
-                    "intensity per " + std::string(unit_name(options_.density.unit)) +
-                        ", Gaussian kernel, Scott bandwidth per plot, local edge correction (Jones 1993), in the CRS of " +
-                        name + " (" + r.input.crs + ")",
-                    protect_);
+      write_geotiff(
+          target.string(), raster, r.crs_wkt,
+          "intensity per " + std::string(unit_name(options_.density.unit)) +
+              ", Gaussian kernel, Scott bandwidth per plot, local edge correction (Jones 1993), in the CRS of " + name +
+              " (" + r.input.crs + ")",
+          protect_);
     }
     if (r.input.status != "ok") {
       failures_->write(csv_field(name) + "," + r.input.status + "," + csv_field(r.input.reason) + "\n");
@@ -481,9 +489,12 @@ class SeasonWriter {
     for (const auto& w : season_warnings) warnings.push_back(w);
     doc["warnings"] = std::move(warnings);
     Json cautions = Json::array();
-    if (run.density) for (const auto& c : density_cautions()) cautions.push_back(c);
-    if (run.randomness) for (const auto& c : randomness_cautions()) cautions.push_back(c);
-    if (run.transect) for (const auto& c : transect_cautions()) cautions.push_back(c);
+    if (run.density)
+      for (const auto& c : density_cautions()) cautions.push_back(c);
+    if (run.randomness)
+      for (const auto& c : randomness_cautions()) cautions.push_back(c);
+    if (run.transect)
+      for (const auto& c : transect_cautions()) cautions.push_back(c);
     doc["cautions"] = std::move(cautions);
     write_file_safely((dir_ / "run.json").string(), json_text(doc), protect_);
   }

@@ -67,8 +67,8 @@ std::vector<BatchInput> discover_inputs(const std::string& root, const std::stri
       std::string capture;
       const std::string file_name = it->path().filename().string();
       if (!glob_match(pattern, file_name, &capture)) continue;
-      inputs.push_back({it->path().string(), fs::relative(it->path(), root, ec).generic_string(),
-                        plots_for(it->path(), capture)});
+      inputs.push_back(
+          {it->path().string(), fs::relative(it->path(), root, ec).generic_string(), plots_for(it->path(), capture)});
     }
   } else if (is_vector_file(root)) {
     // One survey file given directly: a batch of one.

@@ -11,13 +11,13 @@
 #include <nlohmann/json.hpp>
 
 #include "json_text.hpp"
+#include "report/records.hpp"
 #include "stipple/batch/batch.hpp"
 #include "stipple/error.hpp"
 #include "stipple/io/gis_writer.hpp"
 #include "stipple/io/output.hpp"
 #include "stipple/report/density_report.hpp"
 #include "stipple/report/tables.hpp"
-#include "report/records.hpp"
 
 namespace fs = std::filesystem;
 
@@ -41,9 +41,12 @@ std::vector<std::string> csv_cells(const std::string& line) {
   for (std::size_t i = 0; i < line.size(); ++i) {
     const char c = line[i];
     if (quoted) {
-      if (c == '"' && i + 1 < line.size() && line[i + 1] == '"') cells.back() += '"', ++i;
-      else if (c == '"') quoted = false;
-      else cells.back() += c;
+      if (c == '"' && i + 1 < line.size() && line[i + 1] == '"')
+        cells.back() += '"', ++i;
+      else if (c == '"')
+        quoted = false;
+      else
+        cells.back() += c;
     } else if (c == '"') {
       quoted = true;
     } else if (c == ',') {
@@ -91,7 +94,9 @@ std::optional<double> opt_number(const Json& v) {
 std::optional<std::string> opt_text(const Json& v) {
   return v.is_string() ? std::optional<std::string>(v.get<std::string>()) : std::nullopt;
 }
-double number_or_nan(const Json& v) { return v.is_number() ? v.get<double>() : std::numeric_limits<double>::quiet_NaN(); }
+double number_or_nan(const Json& v) {
+  return v.is_number() ? v.get<double>() : std::numeric_limits<double>::quiet_NaN();
+}
 Interval interval_of(const Json& v) {
   if (!v.is_array() || v.size() != 2) return {};
   return {number_or_nan(v[0]), number_or_nan(v[1])};
@@ -250,8 +255,8 @@ std::vector<std::string> read_lines(const fs::path& path, std::string& header) {
 // Tables: rows of all shards, stably ordered by input name (the first column).
 void merge_tables(const std::vector<std::string>& shard_dirs, const fs::path& out,
                   const std::vector<std::string>& protect) {
-  for (const char* table : {"density.csv", "randomness.csv", "interactions.csv", "transect.csv", "failures.csv",
-                            "figures.csv"}) {
+  for (const char* table :
+       {"density.csv", "randomness.csv", "interactions.csv", "transect.csv", "failures.csv", "figures.csv"}) {
     std::string header;
     std::vector<std::string> rows;
     bool present = false;
@@ -388,9 +393,15 @@ SeasonRandomnessRow randomness_row_of(const Json& g) {
 }
 
 SeasonInteractionRow interaction_row_of(const Json& i) {
-  return {i.value("file", ""),       i.value("plot", ""),          i.value("species_a", ""),
-          i.value("species_b", ""),  i.value("n_a", std::size_t{0}), i.value("n_b", std::size_t{0}),
-          i.value("p_value", 1.0),   i.value("direction", ""),     departures_of(i["departures"])};
+  return {i.value("file", ""),
+          i.value("plot", ""),
+          i.value("species_a", ""),
+          i.value("species_b", ""),
+          i.value("n_a", std::size_t{0}),
+          i.value("n_b", std::size_t{0}),
+          i.value("p_value", 1.0),
+          i.value("direction", ""),
+          departures_of(i["departures"])};
 }
 
 SeasonTransectRow transect_row_of(const Json& e) {
@@ -455,19 +466,22 @@ void merge_batch_outputs(const std::vector<std::string>& shard_dirs, const std::
   merge_tables(shard_dirs, out, protect);
   const std::vector<Json> density_records = merge_twins(shard_dirs, out, protect);
   Json run = merged_manifest(shard_dirs);
-  if (file_exists(fs::path(shard_dirs.front()) / "pooled.json")) merge_pooled(shard_dirs, density_records, run, out, protect);
+  if (file_exists(fs::path(shard_dirs.front()) / "pooled.json"))
+    merge_pooled(shard_dirs, density_records, run, out, protect);
   write_file_safely((out / "run.json").string(), json_text(run), protect);
   // GIS layer: every shard's features, ordered by file.
   std::vector<std::string> gpkgs;
   for (const auto& dir : shard_dirs)
-    if (file_exists(fs::path(dir) / "plot-results.gpkg")) gpkgs.push_back((fs::path(dir) / "plot-results.gpkg").string());
+    if (file_exists(fs::path(dir) / "plot-results.gpkg"))
+      gpkgs.push_back((fs::path(dir) / "plot-results.gpkg").string());
   if (!gpkgs.empty()) merge_plot_results(gpkgs, (out / "plot-results.gpkg").string(), protect);
   copy_figure_files(shard_dirs, out, protect);
 }
 
 SeasonReport load_batch_folder(const std::string& dir_text) {
   const fs::path dir(dir_text);
-  if (!file_exists(dir / "run.json")) throw InputError(dir_text + ": no run.json; is this a stipple batch output folder?");
+  if (!file_exists(dir / "run.json"))
+    throw InputError(dir_text + ": no run.json; is this a stipple batch output folder?");
   SeasonReport report;
   load_run(read_json_file(dir / "run.json"), report);
   const auto records = [&](const char* name) {
@@ -477,14 +491,16 @@ SeasonReport load_batch_folder(const std::string& dir_text) {
     if (!array.is_array()) throw InputError(path.string() + ": not a JSON array of records");
     return array;
   };
-  for (const auto& e : records("density.json")) report.densities.push_back({e.value("file", ""), density_estimate_of(e)});
+  for (const auto& e : records("density.json"))
+    report.densities.push_back({e.value("file", ""), density_estimate_of(e)});
   for (const auto& g : records("randomness.json")) report.randomness.push_back(randomness_row_of(g));
   for (const auto& i : records("interactions.json")) report.interactions.push_back(interaction_row_of(i));
   for (const auto& e : records("transect.json")) report.transects.push_back(transect_row_of(e));
   if (file_exists(dir / "pooled.json")) {
     const Json doc = read_json_file(dir / "pooled.json");
     report.pooled = pooled_result_of(doc);
-    for (const auto& w : doc.value("warnings", Json::array())) report.warnings.push_back("season: " + w.get<std::string>());
+    for (const auto& w : doc.value("warnings", Json::array()))
+      report.warnings.push_back("season: " + w.get<std::string>());
   }
   if (file_exists(dir / "figures.csv")) report.figures = figures_of(dir / "figures.csv");
   return report;

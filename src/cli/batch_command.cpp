@@ -17,12 +17,12 @@
 #include "progress.hpp"
 #include "stipple/batch/batch.hpp"
 #include "stipple/error.hpp"
-#include "stipple/version.hpp"
 #include "stipple/format.hpp"
 #include "stipple/io/output.hpp"
 #include "stipple/randomness/quadrat.hpp"
 #include "stipple/report/season_report.hpp"
 #include "stipple/transect/detection_function.hpp"
+#include "stipple/version.hpp"
 
 namespace stipple::cli {
 
@@ -61,9 +61,10 @@ struct BatchCommandOptions {
 // Refuses a key the run file format does not have, naming the nearest valid one: a typing
 // error must not silently leave an option at its default.
 void check_run_file_keys(const toml::table& file, const std::string& path) {
-  static const std::vector<std::string> top{"analyses", "pattern", "plots_name", "plots", "species_field", "plot_field",
-                                            "sightings_plot_field", "assign", "encoding", "unit", "crs",
-                                            "assume_crs", "confidence", "gis", "surface", "density", "randomness"};
+  static const std::vector<std::string> top{
+      "analyses", "pattern",  "plots_name", "plots", "species_field", "plot_field", "sightings_plot_field",
+      "assign",   "encoding", "unit",       "crs",   "assume_crs",    "confidence", "gis",
+      "surface",  "density",  "randomness"};
   static const std::vector<std::string> density{"detection", "detection_prob", "detection_se"};
   static const std::vector<std::string> randomness{"simulations", "seed", "quadrats", "edge_correction", "rmax"};
   const auto check = [&](const toml::table& table, const std::vector<std::string>& known, const std::string& where) {
@@ -207,12 +208,12 @@ std::string read_output_file(const std::string& dir, const std::string& relative
   if (path.is_absolute() || (!path.empty() && *path.begin() == ".."))
     throw InputError(dir + "/figures.csv: figure path '" + relative + "' leaves the folder");
   std::ifstream in(std::filesystem::path(dir) / path, std::ios::binary);
-  if (!in) throw InputError((std::filesystem::path(dir) / path).string() + ": listed in figures.csv but cannot be read");
+  if (!in)
+    throw InputError((std::filesystem::path(dir) / path).string() + ": listed in figures.csv but cannot be read");
   std::stringstream text;
   text << in.rdbuf();
   return text.str();
 }
-
 
 std::optional<Detection> single_detection(const BatchCommandOptions& o, CLI::App& command) {
   if (command.get_option("--detection-prob")->count() > 0 || o.detection_prob != 1.0 || o.detection_se != 0.0)
@@ -223,10 +224,14 @@ std::optional<Detection> single_detection(const BatchCommandOptions& o, CLI::App
 void set_analyses(const BatchCommandOptions& o, BatchOptions& options) {
   options.run_density = options.run_randomness = options.run_transect = false;
   for (const auto& a : o.analyses) {
-    if (a == "density") options.run_density = true;
-    else if (a == "randomness") options.run_randomness = true;
-    else if (a == "transect") options.run_transect = true;
-    else throw InputError("--analyses takes density, randomness, transect (got '" + a + "')");
+    if (a == "density")
+      options.run_density = true;
+    else if (a == "randomness")
+      options.run_randomness = true;
+    else if (a == "transect")
+      options.run_transect = true;
+    else
+      throw InputError("--analyses takes density, randomness, transect (got '" + a + "')");
   }
 }
 
@@ -243,16 +248,17 @@ void set_transect_options(const BatchCommandOptions& o, CLI::App& command, Batch
   options.transect.truncation = parse_truncation(o.truncate);
 }
 
-BatchOptions batch_options_of(const BatchCommandOptions& o, CLI::App& command,
-                              const std::optional<Detection>& single) {
+BatchOptions batch_options_of(const BatchCommandOptions& o, CLI::App& command, const std::optional<Detection>& single) {
   BatchOptions options;
   options.read = to_read_options(o.common);
   set_analyses(o, options);
   options.density.unit = parse_area_unit(o.common.unit);
   options.density.confidence = o.common.confidence;
   options.density.seed = o.seed;
-  if (!o.detection_file.empty()) options.density.detection = read_detection_table(o.detection_file, single);
-  else if (single) options.density.detection = DetectionTable::uniform(*single);
+  if (!o.detection_file.empty())
+    options.density.detection = read_detection_table(o.detection_file, single);
+  else if (single)
+    options.density.detection = DetectionTable::uniform(*single);
   options.randomness.simulations = o.simulations;
   options.randomness.seed = o.seed;
   options.randomness.alpha = alpha_from_confidence(o.common.confidence);
@@ -268,8 +274,8 @@ BatchOptions batch_options_of(const BatchCommandOptions& o, CLI::App& command,
   if (o.bandwidth > 0.0) options.bandwidth_m = o.bandwidth;
   if (!o.plots.empty()) {
     if (!o.plots_name.empty()) throw InputError("--plots and --plots-name both name the plots; give one");
-    options.shared_plots =
-        SourceSpec{o.plots, o.common.plots_layer.empty() ? std::nullopt : std::optional<std::string>(o.common.plots_layer)};
+    options.shared_plots = SourceSpec{
+        o.plots, o.common.plots_layer.empty() ? std::nullopt : std::optional<std::string>(o.common.plots_layer)};
   }
   return options;
 }
@@ -306,8 +312,10 @@ std::function<void(std::size_t, std::size_t, const SeasonInput&)> file_progress(
   return [start](std::size_t done, std::size_t total, const SeasonInput& r) {
     const double elapsed = std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
     std::cerr << "stipple batch: " << done << "/" << total << " " << r.name << " "
-              << (r.status == "ok" ? "ok" : r.status == "skipped" ? "skipped" : "FAILED") << " ("
-              << format_fixed(elapsed, 1) << " s)\n";
+              << (r.status == "ok"        ? "ok"
+                  : r.status == "skipped" ? "skipped"
+                                          : "FAILED")
+              << " (" << format_fixed(elapsed, 1) << " s)\n";
   };
 }
 
@@ -317,7 +325,8 @@ std::string options_used_text(const BatchCommandOptions& o) {
   std::string used = "analyses=";
   for (const auto& a : o.analyses) used += a + ",";
   used += " unit=" + o.common.unit + " confidence=" + format_general(o.common.confidence) +
-          " simulations=" + std::to_string(o.simulations) + " seed=" + std::to_string(o.seed) + " quadrats=" + o.quadrats;
+          " simulations=" + std::to_string(o.simulations) + " seed=" + std::to_string(o.seed) +
+          " quadrats=" + o.quadrats;
   if (!o.edge_correction.empty()) used += " edge-correction=" + o.edge_correction;
   if (o.rmax > 0.0) used += " rmax=" + format_general(o.rmax);
   if (!o.detection_file.empty()) used += " detection=" + name(o.detection_file);
@@ -359,8 +368,8 @@ SeasonRun season_run_of(const BatchCommandOptions& o, const BatchOptions& option
   std::string models;
   for (const auto k : options.transect.keys) models += (models.empty() ? "" : ", ") + std::string(key_function_name(k));
   for (const auto a : options.transect.adjustments)
-    models += " with up to " + std::to_string(options.transect.max_terms) + " " + std::string(adjustment_name(a)) +
-              " terms";
+    models +=
+        " with up to " + std::to_string(options.transect.max_terms) + " " + std::string(adjustment_name(a)) + " terms";
   run.transect_models = models;
   run.truncation = o.truncate.empty() ? "at the largest distance" : o.truncate;
   return run;
@@ -423,9 +432,14 @@ Action add_batch_command(CLI::App& app) {
   c->add_option("--distance-field", o->distance_field, "transect: recorded distance field (else from locations)");
   c->add_option("--size-field", o->size_field, "transect: cluster size field");
   c->add_option("--transect-field", o->transect_field, "transect: transect id field")->capture_default_str();
-  c->add_option("--truncate", o->truncate, "transect: truncation distance (m > 0), percentage in [0, 100) (5%) or none (default: the largest distance)");
-  c->add_option("--shard", o->shard_text, "Process only the K-th of N deterministic slices, K/N with 1 <= K <= N (default: all inputs)");
-  c->add_option("--threads", o->threads, "Files processed in parallel (0 = all cores)")->check(whole_number(0, 1024))->capture_default_str();
+  c->add_option(
+      "--truncate", o->truncate,
+      "transect: truncation distance (m > 0), percentage in [0, 100) (5%) or none (default: the largest distance)");
+  c->add_option("--shard", o->shard_text,
+                "Process only the K-th of N deterministic slices, K/N with 1 <= K <= N (default: all inputs)");
+  c->add_option("--threads", o->threads, "Files processed in parallel (0 = all cores)")
+      ->check(whole_number(0, 1024))
+      ->capture_default_str();
   c->add_flag("--quiet", o->quiet, "No progress output");
   c->add_option("--run-file", o->run_file, "TOML run file with the analyses and options (the command line wins)");
   c->add_flag("--report", o->report, "Also write OUT/report.html");
@@ -438,8 +452,9 @@ Action add_batch_command(CLI::App& app) {
   c->add_option("--layer", o->common.layer, "Sightings layer in each input");
   c->add_option("--plots-layer", o->common.plots_layer, "Plots layer in each input");
   o->common.plot_field_option =
-      c->add_option("--plot-field", o->common.plot_field,
-                    "Plot-id attribute of the plot polygons (and of the sightings, unless --sightings-plot-field names theirs)")
+      c->add_option(
+           "--plot-field", o->common.plot_field,
+           "Plot-id attribute of the plot polygons (and of the sightings, unless --sightings-plot-field names theirs)")
           ->capture_default_str();
   c->add_option("--sightings-plot-field", o->common.sightings_plot_field,
                 "Plot attribute of the sightings (default: the --plot-field name)");
@@ -448,20 +463,28 @@ Action add_batch_command(CLI::App& app) {
                 "Text encoding of the inputs' attributes, e.g. LATIN1 (default: UTF-8; invalid bytes shown as U+FFFD)");
   c->add_option("--species-field", o->common.species_field, "Species attribute")->capture_default_str();
   c->add_option("--crs", o->common.crs, "Analysis CRS, projected in metres (default: as for density)");
-  c->add_option("--assume-crs", o->common.assume_crs, "CRS of layers that carry none (default: none; such layers are refused)");
-  c->add_option("--unit", o->common.unit, "Area unit: m2, ha or km2")->check(CLI::IsMember({"m2", "ha", "km2"}))
+  c->add_option("--assume-crs", o->common.assume_crs,
+                "CRS of layers that carry none (default: none; such layers are refused)");
+  c->add_option("--unit", o->common.unit, "Area unit: m2, ha or km2")
+      ->check(CLI::IsMember({"m2", "ha", "km2"}))
       ->capture_default_str();
   c->add_option("--confidence", o->common.confidence, "Two-sided confidence level")
       ->check(number_between(0.0, 1.0, "e.g. 0.95"))
       ->capture_default_str();
   c->add_option("--detection", o->detection_file, "CSV of detection probabilities: species, p, optional se");
-  c->add_option("--detection-prob", o->detection_prob, "One detection probability for every species (default: 1, no correction)")
+  c->add_option("--detection-prob", o->detection_prob,
+                "One detection probability for every species (default: 1, no correction)")
       ->check(probability());
-  c->add_option("--detection-se", o->detection_se, "Standard error of --detection-prob (default: 0)")->check(non_negative_number());
-  c->add_option("--simulations", o->simulations, "CSR simulations per group")->check(whole_number(0, 1000000))->capture_default_str();
-  c->add_option("--seed", o->seed, "Seed; each plot's simulations derive their own from it")->check(whole_number(0, 18446744073709551615ULL))
+  c->add_option("--detection-se", o->detection_se, "Standard error of --detection-prob (default: 0)")
+      ->check(non_negative_number());
+  c->add_option("--simulations", o->simulations, "CSR simulations per group")
+      ->check(whole_number(0, 1000000))
       ->capture_default_str();
-  c->add_option("--quadrats", o->quadrats, "Quadrat grid NxM: 1-10000 cells a side, 2-10000 in all")->capture_default_str();
+  c->add_option("--seed", o->seed, "Seed; each plot's simulations derive their own from it")
+      ->check(whole_number(0, 18446744073709551615ULL))
+      ->capture_default_str();
+  c->add_option("--quadrats", o->quadrats, "Quadrat grid NxM: 1-10000 cells a side, 2-10000 in all")
+      ->capture_default_str();
   c->add_option("--edge-correction", o->edge_correction, "Clark-Evans edge correction: none, donnelly, border")
       ->check(CLI::IsMember({"none", "donnelly", "border"}));
   c->add_option("--rmax", o->rmax,
@@ -500,8 +523,9 @@ Action add_report_command(CLI::App& app) {
     check_outputs({{"--out", target}}, protect);
     const SeasonReport report = load_batch_folder(*dir);
     const std::string folder = *dir;
-    write_file_safely(target, season_report_html(report, [&](const std::string& path) { return read_output_file(folder, path); }),
-                      protect);
+    write_file_safely(
+        target, season_report_html(report, [&](const std::string& path) { return read_output_file(folder, path); }),
+        protect);
     std::cout << "report written to " << target << "\n";
     return 0;
   };

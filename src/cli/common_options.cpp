@@ -19,17 +19,15 @@ std::optional<std::string> optional(const std::string& value) {
 }  // namespace
 
 void add_sighting_options(CLI::App& command, CommonOptions& o) {
-  command.add_option("SIGHTINGS", o.sightings,
-                     "Sightings: any OGR vector source (GeoPackage, Shapefile, GeoJSON, GPX, "
-                     "KML, CSV with coordinate columns)")
+  command
+      .add_option("SIGHTINGS", o.sightings,
+                  "Sightings: any OGR vector source (GeoPackage, Shapefile, GeoJSON, GPX, "
+                  "KML, CSV with coordinate columns)")
       ->required();
   command.add_option("--layer", o.layer, "Layer of SIGHTINGS to read (default: the only point layer)");
-  command.add_option("--species-field", o.species_field, "Species attribute of the sightings")
-      ->capture_default_str();
-  command.add_option("--x-field", o.x_field,
-                     "CSV column of x or longitude (default: x, lon, longitude or easting)");
-  command.add_option("--y-field", o.y_field,
-                     "CSV column of y or latitude (default: y, lat, latitude or northing)");
+  command.add_option("--species-field", o.species_field, "Species attribute of the sightings")->capture_default_str();
+  command.add_option("--x-field", o.x_field, "CSV column of x or longitude (default: x, lon, longitude or easting)");
+  command.add_option("--y-field", o.y_field, "CSV column of y or latitude (default: y, lat, latitude or northing)");
   command.add_option("--crs", o.crs,
                      "Analysis CRS, projected in metres, e.g. EPSG:32630 (default: the data's "
                      "own projected CRS when plot areas in it are within 0.1% of the geodesic "
@@ -78,8 +76,7 @@ Assignment parse_assignment(const std::string& text) {
 CLI::Option* add_assign_option(CLI::App& command, std::string& target, const std::string& unit) {
   return command
       .add_option("--assign", target,
-                  "How sightings find their " + unit + ": attribute (the sightings' " + unit +
-                      " field), location (" +
+                  "How sightings find their " + unit + ": attribute (the sightings' " + unit + " field), location (" +
                       (unit == "plot" ? std::string("point in polygon") : std::string("nearest transect")) +
                       ") or auto (attribute when the sightings have the field)")
       ->check(CLI::IsMember({"auto", "attribute", "location"}))
@@ -89,17 +86,18 @@ CLI::Option* add_assign_option(CLI::App& command, std::string& target, const std
 void add_window_options(CLI::App& command, CommonOptions& o) {
   command.add_option("--plots", o.plots, "Plot polygons (survey windows): any OGR polygon source");
   command.add_option("--plots-layer", o.plots_layer, "Layer of --plots to read");
-  o.plot_field_option =
-      command.add_option("--plot-field", o.plot_field,
-                         "Plot-id attribute of the plot polygons (and of the sightings, unless "
-                         "--sightings-plot-field names theirs)")
-          ->capture_default_str();
+  o.plot_field_option = command
+                            .add_option("--plot-field", o.plot_field,
+                                        "Plot-id attribute of the plot polygons (and of the sightings, unless "
+                                        "--sightings-plot-field names theirs)")
+                            ->capture_default_str();
   command.add_option("--sightings-plot-field", o.sightings_plot_field,
                      "Plot attribute of the sightings (default: the --plot-field name)");
   add_assign_option(command, o.assign, "plot");
-  command.add_option("--window", o.window,
-                     "Survey windows: plots (from --plots) or convex-hull (Ripley-Rasson "
-                     "estimate from the points; model-based)")
+  command
+      .add_option("--window", o.window,
+                  "Survey windows: plots (from --plots) or convex-hull (Ripley-Rasson "
+                  "estimate from the points; model-based)")
       ->check(CLI::IsMember({"plots", "convex-hull"}))
       ->capture_default_str();
   command.add_flag("--repair-geometry", o.repair_geometry,
@@ -153,7 +151,8 @@ CLI::Validator whole_number(std::uint64_t min, std::uint64_t max) {
   return CLI::Validator(
       [min, max, range](std::string& text) -> std::string {
         const auto value = parse_whole_number(text);
-        if (!value || *value < min || *value > max) return "must be a whole number from " + range + " (got '" + text + "')";
+        if (!value || *value < min || *value > max)
+          return "must be a whole number from " + range + " (got '" + text + "')";
         return {};
       },
       "whole number " + range);
@@ -222,8 +221,7 @@ void check_outputs(const std::vector<std::pair<std::string, std::string>>& outpu
   }
 }
 
-void write_output(const std::string& path, const std::string& content,
-                  const std::vector<std::string>& inputs) {
+void write_output(const std::string& path, const std::string& content, const std::vector<std::string>& inputs) {
   if (path == "-") {
     std::cout << content << std::flush;
     return;

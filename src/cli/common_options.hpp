@@ -84,8 +84,7 @@ void check_outputs(const std::vector<std::pair<std::string, std::string>>& outpu
                    const std::vector<std::string>& inputs);
 
 /// Writes `content` to `path` ("-" = standard output) safely.
-void write_output(const std::string& path, const std::string& content,
-                  const std::vector<std::string>& inputs);
+void write_output(const std::string& path, const std::string& content, const std::vector<std::string>& inputs);
 
 /// Writes (file name, content) pairs into `folder`, creating it, safely.
 void write_folder(const std::string& folder, const std::vector<FigureFile>& files,

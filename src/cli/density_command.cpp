@@ -28,8 +28,7 @@ struct DensityCommandOptions {
 int run_density(const DensityCommandOptions& o) {
   std::optional<Detection> single;
   if (o.prob_option->count() > 0 || o.se_option->count() > 0) {
-    if (o.prob_option->count() == 0)
-      throw InputError("--detection-se needs --detection-prob");
+    if (o.prob_option->count() == 0) throw InputError("--detection-se needs --detection-prob");
     single = make_detection(o.detection_prob, o.detection_se, "--detection-prob");
   }
   DensityOptions options;
@@ -66,27 +65,32 @@ int run_density(const DensityCommandOptions& o) {
 
 Action add_density_command(CLI::App& app) {
   auto options = std::make_shared<DensityCommandOptions>();
-  CLI::App* command = app.add_subcommand(
-      "density",
-      "Intensity of each species per plot and pooled across plots, with exact Poisson "
-      "intervals, homogeneity and composition tests, corrected for detection");
+  CLI::App* command =
+      app.add_subcommand("density",
+                         "Intensity of each species per plot and pooled across plots, with exact Poisson "
+                         "intervals, homogeneity and composition tests, corrected for detection");
   add_common_options(*command, options->common);
-  command->footer("P(detect) = detection probability used for the correction; homogeneity p = p-value of the test that "
-                  "the plots share one intensity; (MC) = Monte Carlo p-value; dispersion = X2 / df.");
+  command->footer(
+      "P(detect) = detection probability used for the correction; homogeneity p = p-value of the test that "
+      "the plots share one intensity; (MC) = Monte Carlo p-value; dispersion = X2 / df.");
   command->add_option("--detection", options->detection_file,
                       "CSV of detection probabilities: columns species, p, optional se (default: none)");
-  options->prob_option = command->add_option(
-      "--detection-prob", options->detection_prob,
-      "One detection probability for every species (or for species not in --detection); "
-      "default: 1, no correction")->check(probability());
-  options->se_option = command->add_option("--detection-se", options->detection_se,
-                                           "Standard error of --detection-prob (default: 0, p known exactly)")
-                          ->check(non_negative_number());
+  options->prob_option =
+      command
+          ->add_option("--detection-prob", options->detection_prob,
+                       "One detection probability for every species (or for species not in --detection); "
+                       "default: 1, no correction")
+          ->check(probability());
+  options->se_option = command
+                           ->add_option("--detection-se", options->detection_se,
+                                        "Standard error of --detection-prob (default: 0, p known exactly)")
+                           ->check(non_negative_number());
   command->add_option("--seed", options->seed, "Seed of the Monte Carlo p-values")
       ->check(whole_number(0, 18446744073709551615ULL))
       ->capture_default_str();
-  command->add_option("--simulations", options->simulations,
-                      "Monte Carlo draws for p-values when expected counts are below 5")
+  command
+      ->add_option("--simulations", options->simulations,
+                   "Monte Carlo draws for p-values when expected counts are below 5")
       ->check(whole_number(0, 1000000))
       ->capture_default_str();
   return [command, options] {

@@ -56,7 +56,9 @@ std::string flag_of(const std::string& parameter) {
 
 namespace {
 
-bool word_char(char c) { return std::isalnum(static_cast<unsigned char>(c)) != 0 || c == '_' || c == '.' || c == '-'; }
+bool word_char(char c) {
+  return std::isalnum(static_cast<unsigned char>(c)) != 0 || c == '_' || c == '.' || c == '-';
+}
 
 // Position of the first mention of `word` in `text` that is a whole word and not inside
 // single quotes (quoted text is the user's: a field or file name). A quote opens after a
@@ -68,8 +70,10 @@ std::size_t first_mention(const std::string& text, const std::string& word) {
     if (text[i] == '\'') {
       const bool after_word = i > 0 && word_char(text[i - 1]);
       const bool before_word = i + 1 < text.size() && word_char(text[i + 1]);
-      if (!quoted && !after_word) quoted = true;
-      else if (quoted && !before_word) quoted = false;
+      if (!quoted && !after_word)
+        quoted = true;
+      else if (quoted && !before_word)
+        quoted = false;
       continue;
     }
     if (quoted || text.compare(i, word.size(), word) != 0) continue;

@@ -25,15 +25,13 @@ struct InspectCommandOptions {
 
 Action add_inspect_command(CLI::App& app) {
   auto o = std::make_shared<InspectCommandOptions>();
-  CLI::App* command = app.add_subcommand(
-      "inspect",
-      "Layers, geometry types, fields, CRS, feature and species counts, plots and their "
-      "areas: run it first on a new file");
+  CLI::App* command =
+      app.add_subcommand("inspect",
+                         "Layers, geometry types, fields, CRS, feature and species counts, plots and their "
+                         "areas: run it first on a new file");
   command->add_option("SOURCE", o->source, "Any OGR vector source")->required();
-  command->add_option("--species-field", o->inspect.species_field, "Species attribute")
-      ->capture_default_str();
-  command->add_option("--plot-field", o->inspect.plot_field, "Plot-id attribute")
-      ->capture_default_str();
+  command->add_option("--species-field", o->inspect.species_field, "Species attribute")->capture_default_str();
+  command->add_option("--plot-field", o->inspect.plot_field, "Plot-id attribute")->capture_default_str();
   command->add_option("--x-field", o->x_field, "CSV column of x or longitude");
   command->add_option("--y-field", o->y_field, "CSV column of y or latitude");
   command->add_option("--assume-crs", o->assume_crs, "CRS of layers that carry none");

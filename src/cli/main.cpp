@@ -56,19 +56,17 @@ std::string unknown_option(const CLI::App& app, int argc, char** argv) {
 
 int main(int argc, char** argv) {
   using stipple::ExitCode;
-  CLI::App app{"stipple: densities and spatial-randomness tests for mapped sightings of plants "
-               "and animals"};
+  CLI::App app{
+      "stipple: densities and spatial-randomness tests for mapped sightings of plants "
+      "and animals"};
   app.set_version_flag("--version", std::string("stipple ") + std::string(stipple::version()));
   app.require_subcommand(1);
-  std::vector<stipple::cli::Action> actions{stipple::cli::add_density_command(app),
-                                            stipple::cli::add_randomness_command(app),
-                                            stipple::cli::add_transect_command(app),
-                                            stipple::cli::add_effort_command(app),
-                                            stipple::cli::add_batch_command(app),
-                                            stipple::cli::add_merge_command(app),
-                                            stipple::cli::add_report_command(app),
-                                            stipple::cli::add_surface_command(app),
-                                            stipple::cli::add_inspect_command(app)};
+  std::vector<stipple::cli::Action> actions{
+      stipple::cli::add_density_command(app),  stipple::cli::add_randomness_command(app),
+      stipple::cli::add_transect_command(app), stipple::cli::add_effort_command(app),
+      stipple::cli::add_batch_command(app),    stipple::cli::add_merge_command(app),
+      stipple::cli::add_report_command(app),   stipple::cli::add_surface_command(app),
+      stipple::cli::add_inspect_command(app)};
   if (argc > 1 && argv[1][0] != '-') {
     if (const std::string problem = unknown_command(app, argv[1]); !problem.empty()) {
       std::cerr << "error: " << problem << " (see stipple --help)\n";

@@ -28,8 +28,11 @@ double delay_from_environment() {
 }  // namespace
 
 TerminalProgress::TerminalProgress(std::string label)
-    : label_(std::move(label)), terminal_(::isatty(STDERR_FILENO) != 0), delay_s_(delay_from_environment()),
-      start_(std::chrono::steady_clock::now()), last_(start_) {}
+    : label_(std::move(label)),
+      terminal_(::isatty(STDERR_FILENO) != 0),
+      delay_s_(delay_from_environment()),
+      start_(std::chrono::steady_clock::now()),
+      last_(start_) {}
 
 TerminalProgress::~TerminalProgress() {
   if (shown_) std::cerr << "\r" << std::string(label_.size() + 60, ' ') << "\r" << std::flush;

@@ -38,10 +38,9 @@ int run_randomness(const RandomnessCommandOptions& o) {
   std::tie(options.quadrat.nx, options.quadrat.ny) = parse_quadrat_grid(o.quadrats);
   options.quadrat.force_monte_carlo = o.quadrat_monte_carlo;
   if (!o.edge_correction.empty()) options.edge_correction = parse_edge_correction(o.edge_correction);
-  options.pair_correction =
-      o.pair_correction == "border" ? PairCorrection::border : PairCorrection::isotropic;
-  options.distance_correction = o.distance_correction == "border" ? DistanceCorrection::border
-                                                                  : DistanceCorrection::kaplan_meier;
+  options.pair_correction = o.pair_correction == "border" ? PairCorrection::border : PairCorrection::isotropic;
+  options.distance_correction =
+      o.distance_correction == "border" ? DistanceCorrection::border : DistanceCorrection::kaplan_meier;
   options.simulations = o.simulations;
   options.seed = o.seed;
   options.threads = o.threads;
@@ -51,11 +50,16 @@ int run_randomness(const RandomnessCommandOptions& o) {
   if (!o.only.empty()) {
     options.run_quadrat = options.run_clark_evans = options.run_envelope = options.run_interactions = false;
     for (const auto& name : o.only) {
-      if (name == "quadrat") options.run_quadrat = true;
-      else if (name == "clark-evans") options.run_clark_evans = true;
-      else if (name == "envelope") options.run_envelope = true;
-      else if (name == "interactions") options.run_interactions = true;
-      else throw InputError("--only takes quadrat, clark-evans, envelope, interactions (got '" + name + "')");
+      if (name == "quadrat")
+        options.run_quadrat = true;
+      else if (name == "clark-evans")
+        options.run_clark_evans = true;
+      else if (name == "envelope")
+        options.run_envelope = true;
+      else if (name == "interactions")
+        options.run_interactions = true;
+      else
+        throw InputError("--only takes quadrat, clark-evans, envelope, interactions (got '" + name + "')");
     }
   }
   if (options.simulations == 0 && (options.run_envelope || options.run_interactions))
@@ -88,46 +92,54 @@ int run_randomness(const RandomnessCommandOptions& o) {
 
 Action add_randomness_command(CLI::App& app) {
   auto o = std::make_shared<RandomnessCommandOptions>();
-  CLI::App* command = app.add_subcommand(
-      "randomness",
-      "Tests of complete spatial randomness per plot and species (quadrats, Clark-Evans, "
-      "summary functions with Monte Carlo envelopes) and random-labelling tests between species");
+  CLI::App* command =
+      app.add_subcommand("randomness",
+                         "Tests of complete spatial randomness per plot and species (quadrats, Clark-Evans, "
+                         "summary functions with Monte Carlo envelopes) and random-labelling tests between species");
   add_common_options(*command, o->common);
   command->footer(
       "Abbreviations: CE = Clark-Evans nearest-neighbour test; MAD = maximum absolute deviation test; DCLF = "
       "Diggle-Cressie-Loosmore-Ford test; ERL = extreme rank length global envelope; CSR = complete spatial "
       "randomness. --csv writes one row per plot x species with every p-value and the verdict; --curves the "
       "summary-function curves.");
-  command->add_option("--quadrats", o->quadrats,
-                      "Quadrat grid NxM over the window's bounding box: 1-10000 cells a side, 2-10000 in all")
+  command
+      ->add_option("--quadrats", o->quadrats,
+                   "Quadrat grid NxM over the window's bounding box: 1-10000 cells a side, 2-10000 in all")
       ->capture_default_str();
   command->add_flag("--quadrat-monte-carlo", o->quadrat_monte_carlo,
                     "Monte Carlo quadrat p-value even when every expected count is 5 or more");
-  command->add_option("--edge-correction", o->edge_correction,
-                      "Clark-Evans edge correction: none, donnelly (rectangles) or border "
-                      "(default: donnelly for rectangles, border otherwise)")
+  command
+      ->add_option("--edge-correction", o->edge_correction,
+                   "Clark-Evans edge correction: none, donnelly (rectangles) or border "
+                   "(default: donnelly for rectangles, border otherwise)")
       ->check(CLI::IsMember({"none", "donnelly", "border"}));
-  command->add_option("--pair-correction", o->pair_correction,
-                      "Edge correction of K, L and g: isotropic (Ripley) or border")
+  command
+      ->add_option("--pair-correction", o->pair_correction,
+                   "Edge correction of K, L and g: isotropic (Ripley) or border")
       ->check(CLI::IsMember({"isotropic", "border"}))
       ->capture_default_str();
-  command->add_option("--distance-correction", o->distance_correction,
-                      "Edge correction of G and F: kaplan-meier or border")
+  command
+      ->add_option("--distance-correction", o->distance_correction,
+                   "Edge correction of G and F: kaplan-meier or border")
       ->check(CLI::IsMember({"kaplan-meier", "border"}))
       ->capture_default_str();
   command->add_option("--simulations", o->simulations, "CSR simulations and random labellings")
-      ->check(whole_number(0, 1000000))->capture_default_str();
-  command->add_option("--seed", o->seed, "Seed of every simulation")->check(whole_number(0, 18446744073709551615ULL))->capture_default_str();
+      ->check(whole_number(0, 1000000))
+      ->capture_default_str();
+  command->add_option("--seed", o->seed, "Seed of every simulation")
+      ->check(whole_number(0, 18446744073709551615ULL))
+      ->capture_default_str();
   command->add_option("--threads", o->threads, "Threads (0 = all cores; results do not depend on it)")
-      ->check(whole_number(0, 1024))->capture_default_str();
-  command->add_option("--rmax", o->rmax,
-                      "Largest distance of the summary functions, metres (default: the smaller of "
-                      "a quarter of the window's shorter side and 4/sqrt(intensity))")
+      ->check(whole_number(0, 1024))
+      ->capture_default_str();
+  command
+      ->add_option("--rmax", o->rmax,
+                   "Largest distance of the summary functions, metres (default: the smaller of "
+                   "a quarter of the window's shorter side and 4/sqrt(intensity))")
       ->check(positive_number());
   command->add_option("--only", o->only, "Run only these: quadrat, clark-evans, envelope, interactions (default: all)")
       ->delimiter(',');
-  command->add_option("--curves", o->curves,
-                      "CSV of r, observed, theoretical and envelopes per group and function");
+  command->add_option("--curves", o->curves, "CSV of r, observed, theoretical and envelopes per group and function");
   command->add_option("--figures", o->figures, "Folder for one L-envelope figure per group (SVG and PNG)");
   return [command, o] {
     if (!command->parsed()) return -1;

@@ -26,15 +26,16 @@ Action add_surface_command(CLI::App& app) {
     double bandwidth = 0.0;
   };
   auto o = std::make_shared<Options>();
-  CLI::App* c = app.add_subcommand(
-      "surface", "Kernel-smoothed intensity surface per species (and all together) as GeoTIFF");
+  CLI::App* c =
+      app.add_subcommand("surface", "Kernel-smoothed intensity surface per species (and all together) as GeoTIFF");
   add_sighting_options(*c, o->common);
   add_window_options(*c, o->common);
   c->add_option("--unit", o->common.unit, "Area unit of the intensity: m2, ha or km2")
       ->check(CLI::IsMember({"m2", "ha", "km2"}))
       ->capture_default_str();
   c->add_option("--out", o->out, "Output folder for <species>.tif")->required();
-  c->add_option("--pixel", o->pixel, "Pixel size, metres (default: 1/200 of the plots' extent)")->check(positive_number());
+  c->add_option("--pixel", o->pixel, "Pixel size, metres (default: 1/200 of the plots' extent)")
+      ->check(positive_number());
   c->add_option("--bandwidth", o->bandwidth, "Gaussian kernel bandwidth, metres (default: Scott's rule per plot)")
       ->check(positive_number());
   return [c, o] {

@@ -49,7 +49,9 @@ struct TransectCommandOptions {
   std::string figures;
 };
 
-std::optional<std::string> opt(const std::string& s) { return s.empty() ? std::nullopt : std::optional<std::string>(s); }
+std::optional<std::string> opt(const std::string& s) {
+  return s.empty() ? std::nullopt : std::optional<std::string>(s);
+}
 
 std::optional<double> parse_number(const std::string& text) {
   double value = 0.0;
@@ -145,13 +147,13 @@ int run_transect(const TransectCommandOptions& o) {
 Action add_transect_command(CLI::App& app) {
   auto o = std::make_shared<TransectCommandOptions>();
   o->common.unit = "km2";
-  CLI::App* c = app.add_subcommand(
-      "transect",
-      "Density and abundance from line or point transects: detection functions fitted to "
-      "sighting distances, encounter rates, intervals");
-  c->footer("Abbreviations: ESW = effective strip half-width (lines); P_a = probability of detecting an animal "
-            "within the truncation distance; E(s) = mean cluster size; CV = coefficient of variation; AIC = Akaike "
-            "information criterion; GOF = goodness of fit.");
+  CLI::App* c = app.add_subcommand("transect",
+                                   "Density and abundance from line or point transects: detection functions fitted to "
+                                   "sighting distances, encounter rates, intervals");
+  c->footer(
+      "Abbreviations: ESW = effective strip half-width (lines); P_a = probability of detecting an animal "
+      "within the truncation distance; E(s) = mean cluster size; CV = coefficient of variation; AIC = Akaike "
+      "information criterion; GOF = goodness of fit.");
   add_sighting_options(*c, o->common);
   add_output_options(*c, o->common);
   c->add_option("--lines", o->lines, "Transect lines: an OGR line layer with a transect id");
@@ -165,32 +167,47 @@ Action add_transect_command(CLI::App& app) {
                 "Transect attribute of the sightings (default: the --transect-field name)");
   add_assign_option(*c, o->assign, "transect");
   c->add_option("--effort-field", o->effort_field, "Line length in km from this field instead of the geometry");
-  c->add_option("--visits-field", o->visits_field, "Repeat visits of each transect (default: field 'visits' if present, else 1)");
+  c->add_option("--visits-field", o->visits_field,
+                "Repeat visits of each transect (default: field 'visits' if present, else 1)");
   c->add_option("--distance-field", o->distance_field,
                 "Recorded distance (m), perpendicular or radial; without it, distances come from sighting locations");
   c->add_option("--angle-field", o->angle_field, "Sighting angle (degrees) for radial distances: x = r sin(angle)");
   c->add_option("--size-field", o->size_field, "Cluster size (default 1)");
   c->add_option("--stratum-field", o->stratum_field, "Stratum field of the transects (and of --study-area polygons)");
-  c->add_option("--truncate", o->truncate, "Right truncation: a distance in m (> 0), a percentage in [0, 100) of the largest distances (5%), or none (default: the largest distance)");
-  c->add_option("--bins", o->bins, "Distance bin edges in m (binned analysis), 2-1000 increasing numbers >= 0, e.g. 0,10,25,50,100 (default: exact distances)");
-  c->add_option("--models", o->models, "Key functions: half-normal, hazard-rate, uniform")->delimiter(',')
+  c->add_option("--truncate", o->truncate,
+                "Right truncation: a distance in m (> 0), a percentage in [0, 100) of the largest distances (5%), or "
+                "none (default: the largest distance)");
+  c->add_option("--bins", o->bins,
+                "Distance bin edges in m (binned analysis), 2-1000 increasing numbers >= 0, e.g. 0,10,25,50,100 "
+                "(default: exact distances)");
+  c->add_option("--models", o->models, "Key functions: half-normal, hazard-rate, uniform")
+      ->delimiter(',')
       ->capture_default_str();
-  c->add_option("--adjustments", o->adjustments, "Adjustment series: none, cosine, polynomial, hermite")->delimiter(',')
+  c->add_option("--adjustments", o->adjustments, "Adjustment series: none, cosine, polynomial, hermite")
+      ->delimiter(',')
       ->capture_default_str();
-  c->add_option("--max-terms", o->max_terms, "Most adjustment terms per model")->check(whole_number(0, 5))->capture_default_str();
+  c->add_option("--max-terms", o->max_terms, "Most adjustment terms per model")
+      ->check(whole_number(0, 5))
+      ->capture_default_str();
   c->add_flag("--pool-detection", o->pool_detection,
               "One detection function shared by all species and strata; encounter rates stay specific");
-  c->add_option("--study-area", o->study_area, "Study area for abundance: a number (in --unit) or a polygon layer (default: none, density only)");
+  c->add_option("--study-area", o->study_area,
+                "Study area for abundance: a number (in --unit) or a polygon layer (default: none, density only)");
   c->add_option("--study-area-layer", o->study_area_layer, "Layer of --study-area");
   c->add_option("--bootstrap", o->bootstrap, "Non-parametric bootstrap replicates over transects (0 = none)")
       ->check(whole_number(0, 100000))
       ->capture_default_str();
-  c->add_option("--seed", o->seed, "Seed of the bootstrap")->check(whole_number(0, 18446744073709551615ULL))->capture_default_str();
-  c->add_option("--threads", o->threads, "Threads (0 = all cores; results do not depend on it)")->check(whole_number(0, 1024))->capture_default_str();
+  c->add_option("--seed", o->seed, "Seed of the bootstrap")
+      ->check(whole_number(0, 18446744073709551615ULL))
+      ->capture_default_str();
+  c->add_option("--threads", o->threads, "Threads (0 = all cores; results do not depend on it)")
+      ->check(whole_number(0, 1024))
+      ->capture_default_str();
   c->add_option("--max-offset", o->max_offset, "Sightings farther than this (m) from every transect are refused")
       ->check(positive_number())
       ->capture_default_str();
-  c->add_option("--target-cv", o->target_cv, "Also report the effort needed for this CV of density, a fraction in (0, 1), e.g. 0.15 (default: none)")
+  c->add_option("--target-cv", o->target_cv,
+                "Also report the effort needed for this CV of density, a fraction in (0, 1), e.g. 0.15 (default: none)")
       ->check(number_between(0.0, 1.0, "a CV is a fraction: 0.15 for 15%"));
   c->add_option("--figures", o->figures, "Folder for detection-function and Q-Q figures (SVG and PNG)");
   return [c, o] {
@@ -208,14 +225,19 @@ Action add_effort_command(CLI::App& app) {
     std::string json;
   };
   auto o = std::make_shared<Options>();
-  CLI::App* c = app.add_subcommand(
-      "effort", "Transect effort needed for a target CV of density, from a pilot survey");
-  c->add_option("--pilot-detections", o->detections, "Detections in the pilot survey (n0)")->required()->check(positive_number());
-  c->add_option("--pilot-effort", o->effort, "Pilot effort: km of line (L0) or point visits")->required()->check(positive_number());
+  CLI::App* c = app.add_subcommand("effort", "Transect effort needed for a target CV of density, from a pilot survey");
+  c->add_option("--pilot-detections", o->detections, "Detections in the pilot survey (n0)")
+      ->required()
+      ->check(positive_number());
+  c->add_option("--pilot-effort", o->effort, "Pilot effort: km of line (L0) or point visits")
+      ->required()
+      ->check(positive_number());
   c->add_option("--target-cv", o->target_cv, "Target coefficient of variation of density (a fraction, e.g. 0.15)")
       ->required()
       ->check(number_between(0.0, 1.0, "a CV is a fraction: 0.15 for 15%"));
-  c->add_option("--dispersion", o->dispersion, "Dispersion factor b (3 is the rule of thumb)")->check(positive_number())->capture_default_str();
+  c->add_option("--dispersion", o->dispersion, "Dispersion factor b (3 is the rule of thumb)")
+      ->check(positive_number())
+      ->capture_default_str();
   c->add_option("--json", o->json, "Write the result as JSON to FILE ('-' = standard output)");
   return [c, o] {
     if (!c->parsed()) return -1;

@@ -35,8 +35,7 @@ void check_plots(const std::vector<Plot>& plots) {
       // Shared edges have zero area; allow for rounding in reprojected vertices.
       if (overlap > 1e-6 * std::min(a.area_m2(), b.area_m2())) {
         throw InputError("plots '" + plots[i].id + "' and '" + plots[j].id + "' overlap by " +
-                         format_fixed(overlap, 1) +
-                         " m2; their area would be counted twice");
+                         format_fixed(overlap, 1) + " m2; their area would be counted twice");
       }
     }
   }
@@ -72,8 +71,7 @@ Survey assign_to_plots(const std::vector<Sighting>& sightings, std::vector<Plot>
         continue;
       }
       target = found->second;
-      if (!plots[target].window.contains(s.location))
-        survey.off_window_feature_ids.push_back(s.feature_id);
+      if (!plots[target].window.contains(s.location)) survey.off_window_feature_ids.push_back(s.feature_id);
     } else {
       for (std::size_t i = 0; i < plots.size(); ++i) {
         if (plots[i].window.contains(s.location)) {

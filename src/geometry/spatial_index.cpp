@@ -5,8 +5,7 @@
 
 namespace stipple {
 
-PointGrid::PointGrid(std::vector<Point> points, double points_per_cell)
-    : points_(std::move(points)) {
+PointGrid::PointGrid(std::vector<Point> points, double points_per_cell) : points_(std::move(points)) {
   if (points_.empty()) {
     start_.assign(2, 0);
     return;
@@ -38,8 +37,7 @@ PointGrid::PointGrid(std::vector<Point> points, double points_per_cell)
   for (std::size_t c = 1; c < start_.size(); ++c) start_[c] += start_[c - 1];
   order_.resize(points_.size());
   std::vector<std::uint32_t> fill(start_.begin(), start_.end() - 1);
-  for (std::size_t i = 0; i < points_.size(); ++i)
-    order_[fill[cell_of[i]]++] = static_cast<std::uint32_t>(i);
+  for (std::size_t i = 0; i < points_.size(); ++i) order_[fill[cell_of[i]]++] = static_cast<std::uint32_t>(i);
   sorted_.resize(points_.size());
   for (std::size_t k = 0; k < order_.size(); ++k) sorted_[k] = points_[order_[k]];
 }

@@ -5,8 +5,8 @@
 #include <limits>
 #include <sstream>
 
-#include <boost/math/constants/constants.hpp>
 #include <boost/geometry.hpp>
+#include <boost/math/constants/constants.hpp>
 
 #include "stipple/error.hpp"
 
@@ -34,10 +34,8 @@ Window::Window(BgMultiPolygon shape) : shape_(std::move(shape)) {
   perimeter_m_ = static_cast<double>(bg::perimeter(shape_));
   BgBox box(BgPoint(0.0, 0.0), BgPoint(0.0, 0.0));
   bg::envelope(shape_, box);
-  bounds_ = {box.min_corner().x(), box.min_corner().y(), box.max_corner().x(),
-             box.max_corner().y()};
-  is_rectangle_ = shape_.size() == 1 && shape_[0].inners().empty() &&
-                  ring_is_axis_aligned_rectangle(shape_[0].outer());
+  bounds_ = {box.min_corner().x(), box.min_corner().y(), box.max_corner().x(), box.max_corner().y()};
+  is_rectangle_ = shape_.size() == 1 && shape_[0].inners().empty() && ring_is_axis_aligned_rectangle(shape_[0].outer());
   const auto add_ring = [this](const BgPolygon::ring_type& ring) {
     for (std::size_t i = 0; i + 1 < ring.size(); ++i)
       edges_.push_back({{ring[i].x(), ring[i].y()}, {ring[i + 1].x(), ring[i + 1].y()}});
@@ -98,8 +96,7 @@ double Window::circle_fraction_inside(const Point& c, double r) const {
     }
   }
   if (crossings.empty()) return contains_almost_surely({c.x + r, c.y}) ? 1.0 : 0.0;
-  std::sort(crossings.begin(), crossings.end(),
-            [](const Crossing& a, const Crossing& b) { return a.angle < b.angle; });
+  std::sort(crossings.begin(), crossings.end(), [](const Crossing& a, const Crossing& b) { return a.angle < b.angle; });
   double inside = 0.0;
   const std::size_t m = crossings.size();
   for (std::size_t k = 0; k < m; ++k) {
@@ -137,8 +134,7 @@ Window Window::from_polygons(BgMultiPolygon shape, std::string_view context) {
   bg::correct(shape);
   std::string reason;
   if (!bg::is_valid(shape, reason)) {
-    throw InputError(where + "plot polygon is not valid (" + reason +
-                         "); fix it in a GIS or set repair_geometry",
+    throw InputError(where + "plot polygon is not valid (" + reason + "); fix it in a GIS or set repair_geometry",
                      {"repair_geometry"});
   }
   const double area = bg::area(shape);
@@ -157,18 +153,15 @@ Window Window::rectangle(double xmin, double ymin, double xmax, double ymax) {
 }
 
 bool Window::contains(const Point& p) const {
-  if (p.x < bounds_.xmin || p.x > bounds_.xmax || p.y < bounds_.ymin || p.y > bounds_.ymax)
-    return false;
+  if (p.x < bounds_.xmin || p.x > bounds_.xmax || p.y < bounds_.ymin || p.y > bounds_.ymax) return false;
   return bg::covered_by(BgPoint(p.x, p.y), shape_);
 }
 
 bool Window::contains_almost_surely(const Point& p) const {
-  if (p.x < bounds_.xmin || p.x > bounds_.xmax || p.y < bounds_.ymin || p.y > bounds_.ymax)
-    return false;
+  if (p.x < bounds_.xmin || p.x > bounds_.xmax || p.y < bounds_.ymin || p.y > bounds_.ymax) return false;
   bool inside = false;
   for (const auto& e : edges_) {
-    if ((e.a.y > p.y) != (e.b.y > p.y) &&
-        p.x < e.a.x + (p.y - e.a.y) * (e.b.x - e.a.x) / (e.b.y - e.a.y))
+    if ((e.a.y > p.y) != (e.b.y > p.y) && p.x < e.a.x + (p.y - e.a.y) * (e.b.x - e.a.x) / (e.b.y - e.a.y))
       inside = !inside;
   }
   return inside;
@@ -191,22 +184,24 @@ Window ripley_rasson_hull(const std::vector<Point>& points, std::string_view con
   const std::size_t vertices = hull.outer().empty() ? 0 : hull.outer().size() - 1;
   const std::size_t n = points.size();
   if (n < 3 || !(hull_area > 0.0)) {
-    throw AnalysisError(where + "the convex-hull window needs at least 3 sightings that are not "
-                        "on one line (" + std::to_string(n) + " given)");
+    throw AnalysisError(where +
+                        "the convex-hull window needs at least 3 sightings that are not "
+                        "on one line (" +
+                        std::to_string(n) + " given)");
   }
   if (vertices >= n) {
-    throw AnalysisError(where + "every sighting is a vertex of its convex hull; the Ripley-Rasson "
+    throw AnalysisError(where +
+                            "every sighting is a vertex of its convex hull; the Ripley-Rasson "
                             "window is undefined (give the plot polygons as plots)",
                         {"plots"});
   }
   BgPoint centroid(0.0, 0.0);
   bg::centroid(hull, centroid);
-  const double factor = 1.0 / std::sqrt(1.0 - static_cast<double>(vertices) /
-                                                  static_cast<double>(n));
+  const double factor = 1.0 / std::sqrt(1.0 - static_cast<double>(vertices) / static_cast<double>(n));
   BgPolygon dilated;
   for (const auto& v : hull.outer()) {
-    bg::append(dilated.outer(), BgPoint(centroid.x() + factor * (v.x() - centroid.x()),
-                                        centroid.y() + factor * (v.y() - centroid.y())));
+    bg::append(dilated.outer(),
+               BgPoint(centroid.x() + factor * (v.x() - centroid.x()), centroid.y() + factor * (v.y() - centroid.y())));
   }
   return Window::from_polygons(BgMultiPolygon{dilated}, context);
 }

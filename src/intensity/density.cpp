@@ -1,8 +1,8 @@
 #include "stipple/intensity/density.hpp"
 
 #include <algorithm>
-#include <iterator>
 #include <cmath>
+#include <iterator>
 #include <limits>
 #include <numeric>
 
@@ -20,14 +20,12 @@ bool needs_monte_carlo(const ChiSquareTest& test) {
   return test.min_expected < min_expected_for_chi_square * (1.0 - 1e-9);
 }
 
-HomogeneityTest test_homogeneity(const std::vector<std::uint64_t>& counts,
-                                 const std::vector<double>& areas, const DensityOptions& options,
-                                 double alpha, const std::string& key) {
+HomogeneityTest test_homogeneity(const std::vector<std::uint64_t>& counts, const std::vector<double>& areas,
+                                 const DensityOptions& options, double alpha, const std::string& key) {
   const double total_area = std::accumulate(areas.begin(), areas.end(), 0.0);
   const auto total = std::accumulate(counts.begin(), counts.end(), std::uint64_t{0});
   std::vector<double> expected(areas.size());
-  for (std::size_t i = 0; i < areas.size(); ++i)
-    expected[i] = static_cast<double>(total) * areas[i] / total_area;
+  for (std::size_t i = 0; i < areas.size(); ++i) expected[i] = static_cast<double>(total) * areas[i] / total_area;
 
   HomogeneityTest test;
   test.chi_square = pearson_goodness_of_fit(counts, expected);
@@ -35,8 +33,7 @@ HomogeneityTest test_homogeneity(const std::vector<std::uint64_t>& counts,
   test.dispersion_ratio = test.chi_square.statistic / test.chi_square.df;
   if (needs_monte_carlo(test.chi_square) && options.simulations > 0) {
     Engine engine(derive_seed(options.seed, key));
-    test.chi_square.monte_carlo_p_value =
-        multinomial_monte_carlo(counts, expected, options.simulations, engine).upper;
+    test.chi_square.monte_carlo_p_value = multinomial_monte_carlo(counts, expected, options.simulations, engine).upper;
     test.chi_square.simulations = options.simulations;
     test.p_value = *test.chi_square.monte_carlo_p_value;
     test.monte_carlo = true;
@@ -53,8 +50,7 @@ HomogeneityTest test_homogeneity(const std::vector<std::uint64_t>& counts,
   test.between_plot_se = std::sqrt(k / (k - 1.0) * sum_sq) / total_area;
   const boost::math::students_t t_law(k - 1.0);
   const double t = boost::math::quantile(t_law, 1.0 - alpha / 2.0);
-  test.between_plot_ci = {std::max(0.0, ratio - t * test.between_plot_se),
-                          ratio + t * test.between_plot_se};
+  test.between_plot_ci = {std::max(0.0, ratio - t * test.between_plot_se), ratio + t * test.between_plot_se};
   return test;
 }
 
@@ -91,10 +87,10 @@ void correct_between_plot(HomogeneityTest& test, const std::vector<std::vector<s
   test.corrected_between_plot_df = between_variance > 0.0
                                        ? variance * variance / (between_variance * between_variance / (k - 1.0))
                                        : std::numeric_limits<double>::infinity();
-  const double t = std::isfinite(test.corrected_between_plot_df)
-                       ? boost::math::quantile(boost::math::students_t(test.corrected_between_plot_df),
-                                               1.0 - alpha / 2.0)
-                       : boost::math::quantile(boost::math::normal(), 1.0 - alpha / 2.0);
+  const double t =
+      std::isfinite(test.corrected_between_plot_df)
+          ? boost::math::quantile(boost::math::students_t(test.corrected_between_plot_df), 1.0 - alpha / 2.0)
+          : boost::math::quantile(boost::math::normal(), 1.0 - alpha / 2.0);
   test.corrected_between_plot_ci = {std::max(0.0, ratio - t * test.corrected_between_plot_se),
                                     ratio + t * test.corrected_between_plot_se};
 }
@@ -172,8 +168,8 @@ DensityResult estimate_density(const PlotCounts& table, const DensityOptions& op
   std::vector<double> areas(n_plots);
   for (std::size_t i = 0; i < n_plots; ++i) areas[i] = table.areas_m2[i] / per_unit;
 
-  const auto make_estimate = [&](const std::vector<std::uint64_t>& by_species,
-                                 const std::vector<Detection>& dets, double area) {
+  const auto make_estimate = [&](const std::vector<std::uint64_t>& by_species, const std::vector<Detection>& dets,
+                                 double area) {
     DensityEstimate e;
     e.count = std::accumulate(by_species.begin(), by_species.end(), std::uint64_t{0});
     e.area = area;
@@ -265,8 +261,7 @@ DensityResult estimate_density(const PlotCounts& table, const DensityOptions& op
     c.p_value = c.chi_square.p_upper;
     if (needs_monte_carlo(c.chi_square) && options.simulations > 0) {
       Engine engine(derive_seed(options.seed, seed_key({"composition"})));
-      c.chi_square.monte_carlo_p_value =
-          contingency_monte_carlo_p(counts, options.simulations, engine);
+      c.chi_square.monte_carlo_p_value = contingency_monte_carlo_p(counts, options.simulations, engine);
       c.chi_square.simulations = options.simulations;
       c.p_value = *c.chi_square.monte_carlo_p_value;
       c.monte_carlo = true;

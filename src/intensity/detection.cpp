@@ -13,7 +13,9 @@ namespace stipple {
 
 namespace {
 
-std::string number(double v) { return format_general(v); }
+std::string number(double v) {
+  return format_general(v);
+}
 
 double normal_quantile_two_sided(double confidence) {
   const boost::math::normal standard;
@@ -25,11 +27,9 @@ double normal_quantile_two_sided(double confidence) {
 Detection make_detection(double probability, double standard_error, std::string_view context) {
   const std::string where = context.empty() ? std::string() : std::string(context) + ": ";
   if (!std::isfinite(probability) || !(probability > 0.0 && probability <= 1.0))
-    throw InputError(where + "detection probability " + number(probability) +
-                     " is outside (0, 1]");
+    throw InputError(where + "detection probability " + number(probability) + " is outside (0, 1]");
   if (!std::isfinite(standard_error) || standard_error < 0.0)
-    throw InputError(where + "detection standard error " + number(standard_error) +
-                     " must be a finite number >= 0");
+    throw InputError(where + "detection standard error " + number(standard_error) + " must be a finite number >= 0");
   return Detection{probability, standard_error};
 }
 
@@ -39,8 +39,7 @@ DetectionTable DetectionTable::uniform(Detection detection) {
   return table;
 }
 
-DetectionTable DetectionTable::by_species(std::map<std::string, Detection> rows,
-                                          std::optional<Detection> fallback,
+DetectionTable DetectionTable::by_species(std::map<std::string, Detection> rows, std::optional<Detection> fallback,
                                           std::string source) {
   DetectionTable table;
   table.by_species_ = std::move(rows);
@@ -59,12 +58,9 @@ Detection DetectionTable::for_species(const std::string& species) const {
 }
 
 bool DetectionTable::is_certain() const {
-  const auto certain = [](const Detection& d) {
-    return d.probability == 1.0 && d.standard_error == 0.0;
-  };
+  const auto certain = [](const Detection& d) { return d.probability == 1.0 && d.standard_error == 0.0; };
   if (fallback_ && !certain(*fallback_)) return false;
-  return std::all_of(by_species_.begin(), by_species_.end(),
-                     [&](const auto& row) { return certain(row.second); });
+  return std::all_of(by_species_.begin(), by_species_.end(), [&](const auto& row) { return certain(row.second); });
 }
 
 std::vector<std::string> DetectionTable::listed_species() const {
@@ -83,8 +79,7 @@ std::string_view correction_method_name(CorrectionMethod method) {
 }
 
 CorrectedIntensity correct_for_detection(const std::vector<std::uint64_t>& counts,
-                                         const std::vector<Detection>& detections,
-                                         double area, double confidence) {
+                                         const std::vector<Detection>& detections, double area, double confidence) {
   if (counts.size() != detections.size() || counts.empty())
     throw AnalysisError("counts and detection probabilities differ in length");
   if (!(area > 0.0)) throw AnalysisError("detection correction needs a positive area");
@@ -92,8 +87,7 @@ CorrectedIntensity correct_for_detection(const std::vector<std::uint64_t>& count
   const Interval exact = garwood_interval(n, confidence);
 
   const bool shared = std::all_of(detections.begin(), detections.end(), [&](const Detection& d) {
-    return d.probability == detections.front().probability &&
-           d.standard_error == detections.front().standard_error;
+    return d.probability == detections.front().probability && d.standard_error == detections.front().standard_error;
   });
   CorrectedIntensity out;
   if (shared && detections.front().standard_error == 0.0) {

@@ -100,7 +100,8 @@ double add_kernel_intensity(IntensityRaster& raster, const std::vector<Point>& p
   const double reach = 4.0 * bandwidth_m;
   const double px = raster.pixel_m;
   const auto centre = [&](std::size_t col, std::size_t row) {
-    return Point{raster.x_min + (static_cast<double>(col) + 0.5) * px, raster.y_max - (static_cast<double>(row) + 0.5) * px};
+    return Point{raster.x_min + (static_cast<double>(col) + 0.5) * px,
+                 raster.y_max - (static_cast<double>(row) + 0.5) * px};
   };
   // Pixels of this window.
   std::vector<std::size_t> inside;
@@ -153,7 +154,8 @@ IntensityRaster intensity_surface(const Survey& survey, std::optional<std::size_
   Bounds all = survey.plots.front().window.bounds();
   for (const auto& plot : survey.plots) {
     const Bounds& b = plot.window.bounds();
-    all = {std::min(all.xmin, b.xmin), std::min(all.ymin, b.ymin), std::max(all.xmax, b.xmax), std::max(all.ymax, b.ymax)};
+    all = {std::min(all.xmin, b.xmin), std::min(all.ymin, b.ymin), std::max(all.xmax, b.xmax),
+           std::max(all.ymax, b.ymax)};
   }
   // Each plot's points and bandwidth first: the pixel must be finer than every kernel.
   std::vector<std::vector<Point>> points(survey.plots.size());

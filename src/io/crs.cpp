@@ -18,22 +18,18 @@ namespace stipple::io_detail {
 namespace {
 
 std::string lower(std::string s) {
-  std::transform(s.begin(), s.end(), s.begin(),
-                 [](unsigned char c) { return static_cast<char>(std::tolower(c)); });
+  std::transform(s.begin(), s.end(), s.begin(), [](unsigned char c) { return static_cast<char>(std::tolower(c)); });
   return s;
 }
 
 bool matches_kind(OGRwkbGeometryType type, LayerKind kind) {
   const auto flat = wkbFlatten(type);
   switch (kind) {
-    case LayerKind::points:
-      return flat == wkbPoint || flat == wkbMultiPoint;
+    case LayerKind::points: return flat == wkbPoint || flat == wkbMultiPoint;
     case LayerKind::polygons:
-      return flat == wkbPolygon || flat == wkbMultiPolygon || flat == wkbCurvePolygon ||
-             flat == wkbMultiSurface;
+      return flat == wkbPolygon || flat == wkbMultiPolygon || flat == wkbCurvePolygon || flat == wkbMultiSurface;
     case LayerKind::lines:
-      return flat == wkbLineString || flat == wkbMultiLineString ||
-             flat == wkbCompoundCurve || flat == wkbMultiCurve;
+      return flat == wkbLineString || flat == wkbMultiLineString || flat == wkbCompoundCurve || flat == wkbMultiCurve;
   }
   return false;
 }
@@ -67,8 +63,7 @@ bool is_csv_path(const std::string& path) {
   return lower(std::filesystem::path(path).extension().string()) == ".csv";
 }
 
-DatasetPtr open_vector(const std::string& path, const CsvColumns& columns,
-                       const std::optional<std::string>& encoding) {
+DatasetPtr open_vector(const std::string& path, const CsvColumns& columns, const std::optional<std::string>& encoding) {
   std::error_code ec;
   if (!std::filesystem::exists(path, ec)) throw InputError(path + ": no such file or folder");
   CPLErrorReset();
@@ -88,9 +83,8 @@ DatasetPtr open_vector(const std::string& path, const CsvColumns& columns,
                          std::filesystem::is_directory(path, ec);
   // With an encoding named, a Shapefile's text stays raw bytes for TextDecoder to convert.
   if (encoding && shapefile) open_options.SetNameValue("ENCODING", "");
-  auto* handle = GDALOpenEx(path.c_str(), GDAL_OF_VECTOR | GDAL_OF_READONLY,
-                            csv ? csv_only : nullptr, open_options.List(),
-                            nullptr);
+  auto* handle = GDALOpenEx(path.c_str(), GDAL_OF_VECTOR | GDAL_OF_READONLY, csv ? csv_only : nullptr,
+                            open_options.List(), nullptr);
   if (handle == nullptr) {
     const std::string detail = last_gdal_message();
     throw InputError(path + ": cannot be read as a vector data source" +
@@ -99,14 +93,12 @@ DatasetPtr open_vector(const std::string& path, const CsvColumns& columns,
   return DatasetPtr(GDALDataset::FromHandle(handle));
 }
 
-OGRLayer& pick_layer(GDALDataset& dataset, const std::string& path,
-                     const std::optional<std::string>& name, LayerKind kind,
-                     const std::string& option_name) {
+OGRLayer& pick_layer(GDALDataset& dataset, const std::string& path, const std::optional<std::string>& name,
+                     LayerKind kind, const std::string& option_name) {
   if (name) {
     OGRLayer* layer = dataset.GetLayerByName(name->c_str());
     if (layer == nullptr)
-      throw InputError(path + ": layer '" + *name + "' not found (layers: " +
-                       layer_names(dataset) + ")");
+      throw InputError(path + ": layer '" + *name + "' not found (layers: " + layer_names(dataset) + ")");
     return *layer;
   }
   const int count = dataset.GetLayerCount();
@@ -115,8 +107,7 @@ OGRLayer& pick_layer(GDALDataset& dataset, const std::string& path,
   std::vector<OGRLayer*> of_kind;
   for (int i = 0; i < count; ++i) {
     OGRLayer* layer = dataset.GetLayer(i);
-    if (matches_kind(layer->GetGeomType(), kind) && layer->GetFeatureCount() != 0)
-      of_kind.push_back(layer);
+    if (matches_kind(layer->GetGeomType(), kind) && layer->GetFeatureCount() != 0) of_kind.push_back(layer);
   }
   if (of_kind.size() == 1) return *of_kind.front();
   if (option_name.empty())
@@ -150,13 +141,13 @@ OGRSpatialReference parse_crs(const std::string& text, const std::string& option
   return srs;
 }
 
-OGRSpatialReference layer_crs(OGRLayer& layer, const std::string& label,
-                              const std::optional<std::string>& assume_crs) {
+OGRSpatialReference layer_crs(OGRLayer& layer, const std::string& label, const std::optional<std::string>& assume_crs) {
   const OGRSpatialReference* srs = layer.GetSpatialRef();
   if (srs == nullptr) {
     if (!assume_crs)
-      throw InputError(label + ": has no CRS; give it with assume_crs EPSG:N "
-                               "(EPSG:4326 for GPS longitude/latitude)",
+      throw InputError(label +
+                           ": has no CRS; give it with assume_crs EPSG:N "
+                           "(EPSG:4326 for GPS longitude/latitude)",
                        {"assume_crs"});
     return parse_crs(*assume_crs, "assume_crs");
   }
@@ -237,10 +228,9 @@ ChosenCrs choose_analysis_crs(const std::optional<std::string>& target,
       std::string centre;
       chosen.srs = local_equal_area(samples, *datum, label, centre);
       local = true;
-      chosen.reason = "chosen automatically: Lambert azimuthal equal-area centred on the data (" +
-                      centre + "), areas exact anywhere on Earth (" +
-                      (rejected.empty() ? "input is " + crs_code(*datum) + ", not projected in metres"
-                                        : rejected) +
+      chosen.reason = "chosen automatically: Lambert azimuthal equal-area centred on the data (" + centre +
+                      "), areas exact anywhere on Earth (" +
+                      (rejected.empty() ? "input is " + crs_code(*datum) + ", not projected in metres" : rejected) +
                       "); another analysis CRS can be named instead";
     }
   }
@@ -265,8 +255,7 @@ ChosenCrs choose_analysis_crs(const std::optional<std::string>& target,
 void check_coordinate(double x, double y, const OGRSpatialReference& srs, const std::string& where) {
   const bool geographic = srs.IsGeographic() != 0;
   const bool ok = std::isfinite(x) && std::isfinite(y) &&
-                  (geographic ? std::abs(y) <= 90.0 && std::abs(x) <= 540.0
-                              : std::abs(x) <= 1e9 && std::abs(y) <= 1e9);
+                  (geographic ? std::abs(y) <= 90.0 && std::abs(x) <= 540.0 : std::abs(x) <= 1e9 && std::abs(y) <= 1e9);
   if (ok) return;
   throw InputError(where + ": coordinate (" + format_general(x) + ", " + format_general(y) +
                    ") is outside any survey in " + crs_code(srs) +
@@ -281,14 +270,13 @@ void check_envelope(const OGRGeometry& geometry, const OGRSpatialReference& srs,
   check_coordinate(e.MaxX, e.MaxY, srs, where);
 }
 
-TransformPtr make_transform(const OGRSpatialReference& from, const OGRSpatialReference& to,
-                            const std::string& label) {
+TransformPtr make_transform(const OGRSpatialReference& from, const OGRSpatialReference& to, const std::string& label) {
   if (from.IsSame(&to)) return nullptr;
   CPLErrorReset();
   OGRCoordinateTransformation* ct = OGRCreateCoordinateTransformation(&from, &to);
   if (ct == nullptr)
-    throw InputError(label + ": cannot reproject from " + crs_code(from) + " to " + crs_code(to) +
-                     " (" + last_gdal_message() + ")");
+    throw InputError(label + ": cannot reproject from " + crs_code(from) + " to " + crs_code(to) + " (" +
+                     last_gdal_message() + ")");
   return TransformPtr(ct);
 }
 

@@ -21,7 +21,9 @@ GdalScope::GdalScope() {
   CPLPushErrorHandler(CPLQuietErrorHandler);
 }
 
-GdalScope::~GdalScope() { CPLPopErrorHandler(); }
+GdalScope::~GdalScope() {
+  CPLPopErrorHandler();
+}
 
 }  // namespace io_detail
 

@@ -27,8 +27,7 @@ OGRSpatialReference geographic_of(const OGRSpatialReference& srs) {
 
 }  // namespace
 
-OGRSpatialReference local_equal_area(const std::vector<CentreSample>& samples,
-                                     const OGRSpatialReference& datum_from,
+OGRSpatialReference local_equal_area(const std::vector<CentreSample>& samples, const OGRSpatialReference& datum_from,
                                      const std::string& label, std::string& centre_text) {
   const OGRSpatialReference geographic = geographic_of(datum_from);
   // Mean of unit vectors: right across the antimeridian and around a pole.
@@ -49,8 +48,9 @@ OGRSpatialReference local_equal_area(const std::vector<CentreSample>& samples,
     }
   }
   if (used == 0)
-    throw InputError(label + ": no location could be converted to longitude/latitude to centre "
-                             "the analysis CRS; give one as target_crs",
+    throw InputError(label +
+                         ": no location could be converted to longitude/latitude to centre "
+                         "the analysis CRS; give one as target_crs",
                      {"target_crs"});
   const double lon = std::atan2(sy, sx) / degree;
   const double lat = std::atan2(sz, std::hypot(sx, sy)) / degree;
@@ -62,8 +62,8 @@ OGRSpatialReference local_equal_area(const std::vector<CentreSample>& samples,
   if (srs.SetLAEA(lat0, lon0, 0.0, 0.0) != OGRERR_NONE)
     throw InputError(label + ": cannot build a Lambert azimuthal equal-area CRS");
   char centre[64];
-  std::snprintf(centre, sizeof centre, "%.4f%c %.4f%c", std::abs(lat0), lat0 < 0 ? 'S' : 'N',
-                std::abs(lon0), lon0 < 0 ? 'W' : 'E');
+  std::snprintf(centre, sizeof centre, "%.4f%c %.4f%c", std::abs(lat0), lat0 < 0 ? 'S' : 'N', std::abs(lon0),
+                lon0 < 0 ? 'W' : 'E');
   centre_text = centre;
   srs.SetProjCS(("Lambert azimuthal equal-area centred on " + centre_text).c_str());
   srs.SetLinearUnits(SRS_UL_METER, 1.0);
@@ -71,8 +71,7 @@ OGRSpatialReference local_equal_area(const std::vector<CentreSample>& samples,
   return srs;
 }
 
-double geodesic_area(const BgMultiPolygon& shape, const OGRSpatialReference& srs,
-                     const std::string& label) {
+double geodesic_area(const BgMultiPolygon& shape, const OGRSpatialReference& srs, const std::string& label) {
   const OGRSpatialReference geographic = geographic_of(srs);
   const TransformPtr to_geographic = make_transform(srs, geographic, label);
   OGRErr major_error = OGRERR_NONE;

@@ -44,15 +44,26 @@ struct Field {
   const char* name;
   OGRFieldType type;
 };
-const Field fields[] = {{"file", OFTString},          {"plot", OFTString},         {"species", OFTString},
-                        {"count", OFTInteger64},      {"area", OFTReal},           {"unit", OFTString},
-                        {"intensity", OFTReal},       {"ci_low", OFTReal},         {"ci_high", OFTReal},
-                        {"detection_probability", OFTReal},                        {"corrected_intensity", OFTReal},
-                        {"corrected_ci_low", OFTReal}, {"corrected_ci_high", OFTReal},
-                        {"quadrat_p", OFTReal},       {"clark_evans_ratio", OFTReal}, {"clark_evans_p", OFTReal},
-                        {"dclf_p", OFTReal},          {"verdict", OFTString}};
-const Field wide_fields[] = {{"file", OFTString}, {"plot", OFTString}, {"area", OFTReal}, {"unit", OFTString},
-                             {"all_species", OFTReal}};
+const Field fields[] = {{"file", OFTString},
+                        {"plot", OFTString},
+                        {"species", OFTString},
+                        {"count", OFTInteger64},
+                        {"area", OFTReal},
+                        {"unit", OFTString},
+                        {"intensity", OFTReal},
+                        {"ci_low", OFTReal},
+                        {"ci_high", OFTReal},
+                        {"detection_probability", OFTReal},
+                        {"corrected_intensity", OFTReal},
+                        {"corrected_ci_low", OFTReal},
+                        {"corrected_ci_high", OFTReal},
+                        {"quadrat_p", OFTReal},
+                        {"clark_evans_ratio", OFTReal},
+                        {"clark_evans_p", OFTReal},
+                        {"dclf_p", OFTReal},
+                        {"verdict", OFTString}};
+const Field wide_fields[] = {
+    {"file", OFTString}, {"plot", OFTString}, {"area", OFTReal}, {"unit", OFTString}, {"all_species", OFTReal}};
 
 class FixedDate {
  public:
@@ -114,7 +125,8 @@ PlotResultsWriter::PlotResultsWriter(const std::string& path, const std::string&
   if (!state_->ds) throw InputError(path + ": cannot create GeoPackage (" + last_gdal_message() + ")");
   if (state_->srs.importFromWkt(crs_wkt.c_str()) != OGRERR_NONE) throw Error("invalid CRS for the GeoPackage");
   state_->srs.SetAxisMappingStrategy(OAMS_TRADITIONAL_GIS_ORDER);
-  state_->long_layer = create_layer(*state_->ds, "plot_results", state_->srs, std::begin(fields), std::end(fields), path);
+  state_->long_layer =
+      create_layer(*state_->ds, "plot_results", state_->srs, std::begin(fields), std::end(fields), path);
   state_->wide_layer =
       create_layer(*state_->ds, "plot_species", state_->srs, std::begin(wide_fields), std::end(wide_fields), path);
 }
@@ -184,7 +196,8 @@ void PlotResultsWriter::add(const std::vector<PlotResultFeature>& features, cons
     w->SetField(f.species ? species_column_name(*f.species).c_str() : "all_species", f.corrected_intensity);
   }
   for (const auto& key : wide_order)
-    if (st.wide_layer->CreateFeature(wide[key].get()) != OGRERR_NONE) throw InputError(st.path + ": cannot write a feature");
+    if (st.wide_layer->CreateFeature(wide[key].get()) != OGRERR_NONE)
+      throw InputError(st.path + ": cannot write a feature");
   if (st.long_layer->CommitTransaction() != OGRERR_NONE)
     throw InputError(st.path + ": cannot finish writing (" + last_gdal_message() + ")");
 }
@@ -220,10 +233,12 @@ void merge_plot_results(const std::vector<std::string>& inputs, const std::strin
     const std::string wkt = wkt_of(*layer->GetSpatialRef(), input + ": layer 'plot_results'");
     if (target.empty()) target = wkt;
     const auto text = [](OGRFeature& f, const char* name) {
-      return f.IsFieldSetAndNotNull(f.GetFieldIndex(name)) ? std::optional<std::string>(f.GetFieldAsString(name)) : std::nullopt;
+      return f.IsFieldSetAndNotNull(f.GetFieldIndex(name)) ? std::optional<std::string>(f.GetFieldAsString(name))
+                                                           : std::nullopt;
     };
     const auto real = [](OGRFeature& f, const char* name) {
-      return f.IsFieldSetAndNotNull(f.GetFieldIndex(name)) ? std::optional<double>(f.GetFieldAsDouble(name)) : std::nullopt;
+      return f.IsFieldSetAndNotNull(f.GetFieldIndex(name)) ? std::optional<double>(f.GetFieldAsDouble(name))
+                                                           : std::nullopt;
     };
     scan_layer(*layer, input + ": layer 'plot_results'", false, [&](OGRFeature& f) {
       PlotResultFeature r;

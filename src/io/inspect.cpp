@@ -1,8 +1,8 @@
 #include "stipple/io/inspect.hpp"
 
-#include "detail/gdal_util.hpp"
 #include <algorithm>
 #include <cmath>
+#include "detail/gdal_util.hpp"
 
 #include <cpl_error.h>
 
@@ -16,21 +16,19 @@ namespace {
 
 bool is_polygonal(OGRwkbGeometryType type) {
   const auto flat = wkbFlatten(type);
-  return flat == wkbPolygon || flat == wkbMultiPolygon || flat == wkbCurvePolygon ||
-         flat == wkbMultiSurface;
+  return flat == wkbPolygon || flat == wkbMultiPolygon || flat == wkbCurvePolygon || flat == wkbMultiSurface;
 }
 
-void summarise_plots(OGRLayer& layer, const std::optional<OGRSpatialReference>& crs,
-                     const InspectOptions& options, LayerSummary& summary) {
+void summarise_plots(OGRLayer& layer, const std::optional<OGRSpatialReference>& crs, const InspectOptions& options,
+                     LayerSummary& summary) {
   const int id_index = layer.GetLayerDefn()->GetFieldIndex(options.plot_field.c_str());
   TextDecoder decode(options.encoding);
   std::vector<std::unique_ptr<OGRGeometry>> shapes;
   layer.ResetReading();
   for (auto& feature : layer) {
     PlotAreaSummary plot;
-    plot.id = id_index >= 0 && feature->IsFieldSetAndNotNull(id_index)
-                  ? decode(feature->GetFieldAsString(id_index))
-                  : "feature " + std::to_string(feature->GetFID());
+    plot.id = id_index >= 0 && feature->IsFieldSetAndNotNull(id_index) ? decode(feature->GetFieldAsString(id_index))
+                                                                       : "feature " + std::to_string(feature->GetFID());
     const OGRGeometry* geometry = feature->GetGeometryRef();
     std::unique_ptr<OGRGeometry> copy;
     if (geometry != nullptr && is_polygonal(geometry->getGeometryType())) {
@@ -73,9 +71,8 @@ void summarise_plots(OGRLayer& layer, const std::optional<OGRSpatialReference>& 
     summary.area_crs = crs_code(*crs);
     return;
   }
-  const ChosenCrs chosen = choose_analysis_crs(std::nullopt, {{&*crs, "layer"}},
-                                               {CentreSample{&*crs, vertices}}, error_in,
-                                               summary.name);
+  const ChosenCrs chosen =
+      choose_analysis_crs(std::nullopt, {{&*crs, "layer"}}, {CentreSample{&*crs, vertices}}, error_in, summary.name);
   summary.area_crs = chosen.code;
   summary.max_area_error = error_in(chosen.srs);
   const TransformPtr transform = make_transform(*crs, chosen.srs, summary.name);
@@ -83,8 +80,8 @@ void summarise_plots(OGRLayer& layer, const std::optional<OGRSpatialReference>& 
     if (!shapes[i]) continue;
     CPLErrorReset();
     if (transform && shapes[i]->transform(transform.get()) != OGRERR_NONE)
-      throw InputError(summary.name + ": " + summary.plots[i].id +
-                       " cannot be reprojected to measure its area (" + last_gdal_message() + ")");
+      throw InputError(summary.name + ": " + summary.plots[i].id + " cannot be reprojected to measure its area (" +
+                       last_gdal_message() + ")");
     summary.plots[i].area_m2 = polygonal_area(*shapes[i]);
   }
 }
@@ -127,9 +124,8 @@ SourceSummary inspect_source(const std::string& path, const InspectOptions& opti
     for (auto& feature : layer) {
       ++summary.feature_count;
       if (species_index < 0) continue;
-      const std::string value = feature->IsFieldSetAndNotNull(species_index)
-                                    ? decode(feature->GetFieldAsString(species_index))
-                                    : "(empty)";
+      const std::string value =
+          feature->IsFieldSetAndNotNull(species_index) ? decode(feature->GetFieldAsString(species_index)) : "(empty)";
       ++counts[value];
     }
     if (CPLGetLastErrorType() >= CE_Failure) summary.read_error = last_gdal_message();

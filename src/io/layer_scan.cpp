@@ -53,8 +53,7 @@ void collect_polygons(const OGRGeometry& geometry, BgMultiPolygon& out) {
 // Area of the polygonal parts of a geometry (MakeValid may add points or lines).
 double polygonal_area(const OGRGeometry& geometry) {
   const auto type = wkbFlatten(geometry.getGeometryType());
-  if (type == wkbPolygon || type == wkbCurvePolygon)
-    return dynamic_cast<const OGRSurface&>(geometry).get_Area();
+  if (type == wkbPolygon || type == wkbCurvePolygon) return dynamic_cast<const OGRSurface&>(geometry).get_Area();
   if (type == wkbMultiPolygon || type == wkbGeometryCollection || type == wkbMultiSurface) {
     double area = 0.0;
     for (const auto* part : *geometry.toGeometryCollection()) area += polygonal_area(*part);
@@ -87,13 +86,12 @@ LayerScan scan_layer(OGRLayer& layer, const std::string& label, bool csv,
     visit(*feature);
   }
   if (CPLGetLastErrorType() >= CE_Failure)
-    throw InputError(label + (declared >= 0 ? ": declares " + std::to_string(declared) + " features but only "
-                                            : ": only ") +
-                     std::to_string(read) + " could be read (truncated or damaged file?): " +
-                     last_gdal_message());
+    throw InputError(label +
+                     (declared >= 0 ? ": declares " + std::to_string(declared) + " features but only " : ": only ") +
+                     std::to_string(read) + " could be read (truncated or damaged file?): " + last_gdal_message());
   if (declared >= 0 && declared != read)
-    throw InputError(label + ": declares " + std::to_string(declared) + " features but " +
-                     std::to_string(read) + " could be read (truncated or damaged file?)");
+    throw InputError(label + ": declares " + std::to_string(declared) + " features but " + std::to_string(read) +
+                     " could be read (truncated or damaged file?)");
   return scan;
 }
 
@@ -111,7 +109,8 @@ TextDecoder::TextDecoder(std::optional<std::string> encoding) : encoding_(std::m
   char* probe = CPLRecode("a", encoding_->c_str(), CPL_ENC_UTF8);
   CPLFree(probe);
   if (CPLGetLastErrorType() != CE_None || encoding_->empty())
-    throw InputError("text encoding '" + *encoding_ + "' is not one this system knows (try LATIN1, "
+    throw InputError("text encoding '" + *encoding_ +
+                     "' is not one this system knows (try LATIN1, "
                      "CP1252 or UTF-8)");
 }
 

@@ -88,8 +88,7 @@ std::string checked_output_path(const std::string& path, const std::vector<std::
   if (is_input(target, inputs) || is_input(final_path, inputs))
     throw InputError(path + ": refusing to write over an input file");
   const fs::path folder = final_path.has_parent_path() ? final_path.parent_path() : fs::path(".");
-  if (!fs::is_directory(folder, ec))
-    throw InputError(path + ": folder " + folder.string() + " does not exist");
+  if (!fs::is_directory(folder, ec)) throw InputError(path + ": folder " + folder.string() + " does not exist");
   return final_path.string();
 }
 
@@ -126,8 +125,7 @@ void TemporaryOutput::commit() {
   committed_ = true;
 }
 
-void write_file_safely(const std::string& path, const std::string& content,
-                       const std::vector<std::string>& inputs) {
+void write_file_safely(const std::string& path, const std::string& content, const std::vector<std::string>& inputs) {
   TemporaryOutput temporary(checked_output_path(path, inputs));
   {
     std::ofstream out(temporary.path(), std::ios::binary | std::ios::trunc);

@@ -72,9 +72,8 @@ std::string csv_coordinate_text(OGRFeature& feature, const SurveyReadOptions& op
     const std::string name = feature.GetFieldDefnRef(i)->GetNameRef();
     if (!listed(name, xs) && !listed(name, ys)) continue;
     text += (text.empty() ? "" : ", ") + name +
-            (feature.IsFieldSetAndNotNull(i)
-                 ? " = " + repair_utf8(feature.GetFieldAsString(i))
-                 : std::string(": empty or not a number"));
+            (feature.IsFieldSetAndNotNull(i) ? " = " + repair_utf8(feature.GetFieldAsString(i))
+                                             : std::string(": empty or not a number"));
   }
   if (text.empty()) return " (empty coordinates?)";
   return ": coordinates must be finite numbers (" + text + ")";
@@ -114,16 +113,15 @@ std::string species_variant_warning(const std::map<std::string, std::set<std::st
     if (count++ < 10) groups += (groups.empty() ? "" : "; ") + quoted_list(raw, 6);
   }
   if (count == 0) return {};
-  return std::to_string(count) + " species name(s) differ only in case or surrounding spaces: " +
-         groups + (count > 10 ? "; ..." : "") +
+  return std::to_string(count) + " species name(s) differ only in case or surrounding spaces: " + groups +
+         (count > 10 ? "; ..." : "") +
          ". Surrounding spaces are removed (names equal after that are one species); names that "
          "differ in case are kept apart - correct the data if they are one species";
 }
 
 SightingLayer read_sightings(const SurveyReadOptions& options, LoadedSurvey& loaded) {
   const auto& spec = options.sightings;
-  DatasetPtr dataset =
-      open_vector(spec.path, CsvColumns{options.x_field, options.y_field}, options.encoding);
+  DatasetPtr dataset = open_vector(spec.path, CsvColumns{options.x_field, options.y_field}, options.encoding);
   OGRLayer& layer = pick_layer(*dataset, spec.path, spec.layer, LayerKind::points, "sightings.layer");
   SightingLayer out;
   out.label = layer_label(spec.path, layer);
@@ -136,29 +134,25 @@ SightingLayer read_sightings(const SurveyReadOptions& options, LoadedSurvey& loa
   }
   const int species_index = defn->GetFieldIndex(options.species_field.c_str());
   if (species_index < 0)
-    throw InputError(out.label + ": no species field '" + options.species_field +
-                         "' (fields: " + field_list(layer) + "); name it with species_field",
+    throw InputError(out.label + ": no species field '" + options.species_field + "' (fields: " + field_list(layer) +
+                         "); name it with species_field",
                      {"species_field"});
   const std::string plot_attribute = options.sighting_plot_field.value_or(options.plot_field);
-  const int plot_index = options.assignment == Assignment::location
-                             ? -1
-                             : defn->GetFieldIndex(plot_attribute.c_str());
+  const int plot_index = options.assignment == Assignment::location ? -1 : defn->GetFieldIndex(plot_attribute.c_str());
   if (plot_index < 0 && options.assignment == Assignment::attribute)
-    throw InputError(out.label + ": no plot field '" + plot_attribute + "' (fields: " +
-                         field_list(layer) + "); name it with sighting_plot_field, or assign "
-                                             "by location with assignment location",
+    throw InputError(out.label + ": no plot field '" + plot_attribute + "' (fields: " + field_list(layer) +
+                         "); name it with sighting_plot_field, or assign "
+                         "by location with assignment location",
                      {"sighting_plot_field", "assignment"});
   if (plot_index >= 0) out.plot_attribute = plot_attribute;
   if (plot_index < 0 && options.assignment == Assignment::automatic &&
-      (options.plot_field_given || options.sighting_plot_field) &&
-      options.window == WindowMode::plots) {
+      (options.plot_field_given || options.sighting_plot_field) && options.window == WindowMode::plots) {
     loaded.notes.push_back(out.label + " has no field '" + plot_attribute +
                            "': sightings are assigned to plots by point-in-polygon");
   }
   out.crs = layer_crs(layer, out.label, options.assume_crs);
   if (layer.GetSpatialRef() == nullptr)
-    loaded.notes.push_back(out.label + ": CRS assumed to be " + *options.assume_crs +
-                           " (as given)");
+    loaded.notes.push_back(out.label + ": CRS assumed to be " + *options.assume_crs + " (as given)");
 
   TextDecoder decode(options.encoding);
   std::map<std::string, std::set<std::string>> species_forms;  // lower-case trimmed -> as written
@@ -177,8 +171,7 @@ SightingLayer read_sightings(const SurveyReadOptions& options, LoadedSurvey& loa
       point = geometry->toMultiPoint()->getGeometryRef(0);
     } else {
       throw InputError(feature_label(out.label, fid) + ": geometry is " +
-                       OGRGeometryTypeToName(geometry->getGeometryType()) +
-                       "; sightings must be single points");
+                       OGRGeometryTypeToName(geometry->getGeometryType()) + "; sightings must be single points");
     }
     RawSighting row;
     row.x = point->getX();
@@ -193,8 +186,7 @@ SightingLayer read_sightings(const SurveyReadOptions& options, LoadedSurvey& loa
       row.species = trim(std::move(written));
     }
     if (row.species.empty())
-      throw InputError(feature_label(out.label, fid) + ": species field '" +
-                       options.species_field + "' is empty");
+      throw InputError(feature_label(out.label, fid) + ": species field '" + options.species_field + "' is empty");
     row.plot = field_text(feature, plot_index, decode);
     out.rows.push_back(std::move(row));
   });
@@ -228,11 +220,10 @@ PlotLayer read_plots(OGRLayer& layer, const std::string& label, const OGRSpatial
   out.crs = crs;
   OGRFeatureDefn* defn = layer.GetLayerDefn();
   const int id_index = defn->GetFieldIndex(options.plot_field.c_str());
-  const bool id_from_layer_name =
-      id_index < 0 && !options.plot_field_given && layer.GetFeatureCount() == 1;
+  const bool id_from_layer_name = id_index < 0 && !options.plot_field_given && layer.GetFeatureCount() == 1;
   if (id_index < 0 && !id_from_layer_name)
-    throw InputError(out.label + ": no plot field '" + options.plot_field + "' (fields: " +
-                         field_list(layer) + "); name it with plot_field",
+    throw InputError(out.label + ": no plot field '" + options.plot_field + "' (fields: " + field_list(layer) +
+                         "); name it with plot_field",
                      {"plot_field"});
   if (id_from_layer_name)
     notes.push_back(out.label + ": one polygon and no field '" + options.plot_field +
@@ -243,18 +234,14 @@ PlotLayer read_plots(OGRLayer& layer, const std::string& label, const OGRSpatial
   scan_layer(layer, out.label, csv, [&](OGRFeature& feature) {
     const std::string where = feature_label(out.label, feature.GetFID());
     const OGRGeometry* geometry = feature.GetGeometryRef();
-    if (geometry == nullptr || geometry->IsEmpty())
-      throw InputError(where + ": plot polygon is empty");
+    if (geometry == nullptr || geometry->IsEmpty()) throw InputError(where + ": plot polygon is empty");
     const auto type = wkbFlatten(geometry->getGeometryType());
-    if (type != wkbPolygon && type != wkbMultiPolygon && type != wkbCurvePolygon &&
-        type != wkbMultiSurface)
-      throw InputError(where + ": geometry is " +
-                       OGRGeometryTypeToName(geometry->getGeometryType()) +
+    if (type != wkbPolygon && type != wkbMultiPolygon && type != wkbCurvePolygon && type != wkbMultiSurface)
+      throw InputError(where + ": geometry is " + OGRGeometryTypeToName(geometry->getGeometryType()) +
                        "; plots must be polygons");
     check_envelope(*geometry, crs, where);
-    std::unique_ptr<OGRGeometry> shape(geometry->hasCurveGeometry()
-                                           ? geometry->getLinearGeometry()
-                                           : geometry->clone());
+    std::unique_ptr<OGRGeometry> shape(geometry->hasCurveGeometry() ? geometry->getLinearGeometry()
+                                                                    : geometry->clone());
     if (!shape->IsValid()) {
       // A collinear ring is invalid too; tell it apart from a self-intersecting outline by
       // what GDAL's MakeValid (GEOS) leaves of it.
@@ -262,8 +249,9 @@ PlotLayer read_plots(OGRLayer& layer, const std::string& label, const OGRSpatial
       if (!valid || valid->IsEmpty() || !(polygonal_area(*valid) > 0.0))
         throw InputError(where + ": plot polygon has zero area");
       if (!options.repair_geometry)
-        throw InputError(where + ": plot polygon is not valid (self-intersecting or with "
-                                 "crossing rings); fix it in a GIS or set repair_geometry",
+        throw InputError(where +
+                             ": plot polygon is not valid (self-intersecting or with "
+                             "crossing rings); fix it in a GIS or set repair_geometry",
                          {"repair_geometry"});
       shape = std::move(valid);
       ++repaired;
@@ -272,8 +260,7 @@ PlotLayer read_plots(OGRLayer& layer, const std::string& label, const OGRSpatial
     std::string id = id_from_layer_name ? decode(layer.GetName()) : std::string();
     if (!id_from_layer_name) {
       auto value = field_text(feature, id_index, decode);
-      if (!value)
-        throw InputError(where + ": plot field '" + options.plot_field + "' is empty");
+      if (!value) throw InputError(where + ": plot field '" + options.plot_field + "' is empty");
       id = *value;
     }
     out.features.push_back(RawPlot{std::move(id), where, std::move(shape)});
@@ -306,8 +293,7 @@ std::vector<Plot> project_plots(const PlotLayer& layer, const OGRSpatialReferenc
   }
   std::vector<Plot> plots;
   for (const auto& id : order)
-    plots.push_back(
-        Plot{id, Window::from_polygons(shapes[id], first_feature[id] + " (plot '" + id + "')")});
+    plots.push_back(Plot{id, Window::from_polygons(shapes[id], first_feature[id] + " (plot '" + id + "')")});
   return plots;
 }
 
@@ -333,8 +319,8 @@ std::vector<std::pair<double, double>> thinned(std::vector<std::pair<double, dou
   return kept;
 }
 
-AnalysisCrs choose_crs(const SurveyReadOptions& options, const SightingLayer& sightings,
-                       const PlotLayer* plots, OGRSpatialReference& target) {
+AnalysisCrs choose_crs(const SurveyReadOptions& options, const SightingLayer& sightings, const PlotLayer* plots,
+                       OGRSpatialReference& target) {
   std::vector<CentreSample> samples;
   std::vector<std::pair<double, double>> points;
   for (const auto& row : sightings.rows) points.emplace_back(row.x, row.y);
@@ -353,20 +339,16 @@ AnalysisCrs choose_crs(const SurveyReadOptions& options, const SightingLayer& si
   }
   std::function<double(const OGRSpatialReference&)> area_error;
   if (plots)
-    area_error = [&](const OGRSpatialReference& candidate) {
-      return plot_area_error(*plots, geodesic, candidate);
-    };
+    area_error = [&](const OGRSpatialReference& candidate) { return plot_area_error(*plots, geodesic, candidate); };
   ChosenCrs chosen = choose_analysis_crs(
       options.target_crs,
-      {{&sightings.crs, "sightings"},
-       {plots ? &plots->crs : nullptr, "plots (sightings reprojected to it)"}},
-      samples, area_error, sightings.label);
+      {{&sightings.crs, "sightings"}, {plots ? &plots->crs : nullptr, "plots (sightings reprojected to it)"}}, samples,
+      area_error, sightings.label);
   target = chosen.srs;
   return AnalysisCrs{chosen.code, chosen.name, chosen.reason, chosen.wkt, 0.0};
 }
 
-std::vector<Sighting> to_analysis_crs(const SightingLayer& layer,
-                                      const OGRSpatialReference& target) {
+std::vector<Sighting> to_analysis_crs(const SightingLayer& layer, const OGRSpatialReference& target) {
   const TransformPtr transform = make_transform(layer.crs, target, layer.label);
   std::vector<Sighting> out;
   out.reserve(layer.rows.size());
@@ -391,13 +373,11 @@ std::vector<Plot> hull_plots(const std::vector<Sighting>& sightings) {
     groups[key].push_back(s.location);
   }
   std::vector<Plot> plots;
-  for (const auto& key : order)
-    plots.push_back(Plot{key, ripley_rasson_hull(groups[key], "plot '" + key + "'")});
+  for (const auto& key : order) plots.push_back(Plot{key, ripley_rasson_hull(groups[key], "plot '" + key + "'")});
   return plots;
 }
 
-std::vector<DuplicateLocation> duplicate_locations(const SightingLayer& raw,
-                                                   const std::vector<Sighting>& located) {
+std::vector<DuplicateLocation> duplicate_locations(const SightingLayer& raw, const std::vector<Sighting>& located) {
   std::vector<std::size_t> order(raw.rows.size());
   for (std::size_t i = 0; i < order.size(); ++i) order[i] = i;
   std::sort(order.begin(), order.end(), [&](std::size_t a, std::size_t b) {
@@ -439,26 +419,24 @@ std::string duplicate_warning(const std::vector<DuplicateLocation>& duplicates) 
 }
 
 // Refuses a run in which no sighting, or fewer than half of them, fall in a plot.
-void check_assignment(const Survey& survey, const SightingLayer& sightings,
-                      const std::string& plots_label, const SurveyReadOptions& options) {
+void check_assignment(const Survey& survey, const SightingLayer& sightings, const std::string& plots_label,
+                      const SurveyReadOptions& options) {
   const std::size_t total = sightings.rows.size();
   const std::size_t assigned = survey.sighting_count();
   if (total == 0 || 2 * assigned >= total) return;
   const std::size_t unknown = survey.unknown_plot_feature_ids.size();
   const std::size_t outside = survey.outside_feature_ids.size();
-  std::string message = sightings.label + ": only " + std::to_string(assigned) + " of " +
-                        std::to_string(total) + " sightings fall in a plot of " + plots_label +
-                        " (" + std::to_string(outside) + " outside every plot, " +
-                        std::to_string(unknown) + " naming a plot id that is not there)";
+  std::string message = sightings.label + ": only " + std::to_string(assigned) + " of " + std::to_string(total) +
+                        " sightings fall in a plot of " + plots_label + " (" + std::to_string(outside) +
+                        " outside every plot, " + std::to_string(unknown) + " naming a plot id that is not there)";
   if (unknown > 0) {
     std::set<std::string> ids;
     for (const auto& plot : survey.plots) ids.insert(plot.id);
     std::set<std::string> values;
     for (const auto& row : sightings.rows)
       if (row.plot && !ids.count(*row.plot)) values.insert(*row.plot);
-    message += "; the sightings' field '" + sightings.plot_attribute + "' holds " +
-               quoted_list(values, 3) + ", the plots' field '" + options.plot_field +
-               "' holds " + quoted_list(ids, 3) +
+    message += "; the sightings' field '" + sightings.plot_attribute + "' holds " + quoted_list(values, 3) +
+               ", the plots' field '" + options.plot_field + "' holds " + quoted_list(ids, 3) +
                ": assign by location with assignment location, or name the sightings' plot "
                "field with sighting_plot_field";
     throw InputError(message, {"assignment", "sighting_plot_field"});
@@ -481,10 +459,11 @@ double window_area_error(const std::vector<Plot>& plots, const OGRSpatialReferen
 LoadedSurvey load_survey(const SurveyReadOptions& options) {
   const GdalScope gdal;
   if (options.window == WindowMode::plots && !options.plots) {
-    throw InputError("the analysis needs the surveyed area: give the plot polygons with plots PATH "
-                     "(or window convex-hull for a model-based window estimated from the "
-                     "points)",
-                     {"plots", "window"});
+    throw InputError(
+        "the analysis needs the surveyed area: give the plot polygons with plots PATH "
+        "(or window convex-hull for a model-based window estimated from the "
+        "points)",
+        {"plots", "window"});
   }
   LoadedSurvey loaded;
   loaded.window = options.window;
@@ -496,8 +475,8 @@ LoadedSurvey load_survey(const SurveyReadOptions& options) {
   std::optional<PlotLayer> plot_layer;
   if (options.window == WindowMode::plots) {
     plots_dataset = open_vector(options.plots->path, {}, options.encoding);
-    OGRLayer& layer = pick_layer(*plots_dataset, options.plots->path, options.plots->layer,
-                                 LayerKind::polygons, "plots.layer");
+    OGRLayer& layer =
+        pick_layer(*plots_dataset, options.plots->path, options.plots->layer, LayerKind::polygons, "plots.layer");
     loaded.plots_label = layer_label(options.plots->path, layer);
     const OGRSpatialReference crs = layer_crs(layer, loaded.plots_label, options.assume_crs);
     plot_layer = read_plots(layer, loaded.plots_label, crs, options, loaded.notes, loaded.warnings);
@@ -518,30 +497,32 @@ LoadedSurvey load_survey(const SurveyReadOptions& options) {
   }
   loaded.crs.max_area_error = window_area_error(plots, target);
   if (loaded.crs.max_area_error > max_crs_area_error)
-    loaded.warnings.push_back("plot areas in " + loaded.crs.code + " differ from their geodesic "
+    loaded.warnings.push_back("plot areas in " + loaded.crs.code +
+                              " differ from their geodesic "
                               "(ellipsoidal) areas by up to " +
                               format_significant(100.0 * loaded.crs.max_area_error, 2) +
                               "%; densities carry that error (choose an equal-area analysis CRS)");
   loaded.survey = assign_to_plots(located, std::move(plots));
-  if (options.window == WindowMode::plots)
-    check_assignment(loaded.survey, sightings, loaded.plots_label, options);
+  if (options.window == WindowMode::plots) check_assignment(loaded.survey, sightings, loaded.plots_label, options);
   loaded.duplicate_locations = duplicate_locations(sightings, located);
-  if (!loaded.duplicate_locations.empty())
-    loaded.warnings.push_back(duplicate_warning(loaded.duplicate_locations));
+  if (!loaded.duplicate_locations.empty()) loaded.warnings.push_back(duplicate_warning(loaded.duplicate_locations));
   const Survey& s = loaded.survey;
   if (!s.outside_feature_ids.empty())
     loaded.warnings.push_back(std::to_string(s.outside_feature_ids.size()) +
                               " sighting(s) lie outside every plot and were excluded "
-                              "(feature ids: " + id_list(s.outside_feature_ids) + ")");
+                              "(feature ids: " +
+                              id_list(s.outside_feature_ids) + ")");
   if (!s.unknown_plot_feature_ids.empty())
     loaded.warnings.push_back(std::to_string(s.unknown_plot_feature_ids.size()) +
                               " sighting(s) name a plot that is not among the plots and were "
-                              "excluded (feature ids: " + id_list(s.unknown_plot_feature_ids) + ")");
+                              "excluded (feature ids: " +
+                              id_list(s.unknown_plot_feature_ids) + ")");
   if (!s.off_window_feature_ids.empty())
     loaded.warnings.push_back(std::to_string(s.off_window_feature_ids.size()) +
-                              " sighting(s) lie outside the polygon of the plot their '" +
-                              sightings.plot_attribute + "' attribute names; kept by attribute "
-                              "(feature ids: " + id_list(s.off_window_feature_ids) + ")");
+                              " sighting(s) lie outside the polygon of the plot their '" + sightings.plot_attribute +
+                              "' attribute names; kept by attribute "
+                              "(feature ids: " +
+                              id_list(s.off_window_feature_ids) + ")");
   return loaded;
 }
 
@@ -562,11 +543,9 @@ DetectionTable read_detection_table(const std::string& path, std::optional<Detec
   const int p_index = find({"p", "detection_probability", "probability"});
   const int se_index = find({"se", "standard_error", "p_se"});
   if (species_index < 0 || p_index < 0)
-    throw InputError(label + ": needs columns 'species' and 'p' (optional 'se'); found: " +
-                     field_list(layer));
+    throw InputError(label + ": needs columns 'species' and 'p' (optional 'se'); found: " + field_list(layer));
   TextDecoder decode;
-  const auto parse = [&](OGRFeature& feature, int index, const std::string& where,
-                         const char* what) -> double {
+  const auto parse = [&](OGRFeature& feature, int index, const std::string& where, const char* what) -> double {
     const auto text = field_text(feature, index, decode);
     if (!text) throw InputError(where + ": " + what + " is empty");
     double value = 0.0;
@@ -581,15 +560,13 @@ DetectionTable read_detection_table(const std::string& path, std::optional<Detec
   const bool csv = is_csv_path(path);
   scan_layer(layer, label, csv, [&](OGRFeature& feature) {
     // CSV feature ids count data rows from 1; the header is line 1.
-    const std::string where =
-        label + (csv ? ": line " + std::to_string(feature.GetFID() + 1)
-                     : ": feature " + std::to_string(feature.GetFID()));
+    const std::string where = label + (csv ? ": line " + std::to_string(feature.GetFID() + 1)
+                                           : ": feature " + std::to_string(feature.GetFID()));
     const auto species = field_text(feature, species_index, decode);
     if (!species) throw InputError(where + ": species is empty");
     const double p = parse(feature, p_index, where, "p");
-    const double se = se_index >= 0 && field_text(feature, se_index, decode)
-                          ? parse(feature, se_index, where, "se")
-                          : 0.0;
+    const double se =
+        se_index >= 0 && field_text(feature, se_index, decode) ? parse(feature, se_index, where, "se") : 0.0;
     const Detection detection = make_detection(p, se, where + " (species '" + *species + "')");
     if (!rows.emplace(*species, detection).second)
       throw InputError(where + ": species '" + *species + "' is listed twice");

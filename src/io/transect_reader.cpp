@@ -25,7 +25,9 @@ namespace {
 using BgLine = bg::model::linestring<BgPoint>;
 using BgMultiLine = bg::model::multi_linestring<BgLine>;
 
-std::string where(const std::string& label, GIntBig fid) { return label + ": feature " + std::to_string(fid); }
+std::string where(const std::string& label, GIntBig fid) {
+  return label + ": feature " + std::to_string(fid);
+}
 
 int field_index(OGRLayer& layer, const std::string& name) {
   return layer.GetLayerDefn()->GetFieldIndex(name.c_str());
@@ -76,7 +78,7 @@ void collect_lines(const OGRGeometry& geometry, BgMultiLine& out) {
 struct TransectGeometry {
   std::string id;
   std::optional<std::string> stratum;
-  BgMultiLine line;     // lines
+  BgMultiLine line;       // lines
   BgPoint station{0, 0};  // stations
   double length_m = 0.0;
   std::optional<double> effort_km;
@@ -99,8 +101,10 @@ double polygon_area(OGRLayer& layer, const OGRSpatialReference& source, const OG
     if (transform && copy->transform(transform.get()) != OGRERR_NONE)
       throw InputError(context + ": cannot be reprojected to the analysis CRS (" + last_gdal_message() + ")");
     double area = 0.0;
-    if (const auto* s = dynamic_cast<const OGRSurface*>(copy.get())) area = s->get_Area();
-    else if (const auto* m = dynamic_cast<const OGRMultiSurface*>(copy.get())) area = m->get_Area();
+    if (const auto* s = dynamic_cast<const OGRSurface*>(copy.get()))
+      area = s->get_Area();
+    else if (const auto* m = dynamic_cast<const OGRMultiSurface*>(copy.get()))
+      area = m->get_Area();
     if (!(area > 0.0) || !std::isfinite(area)) throw InputError(context + ": study-area polygon has zero area");
     BgMultiPolygon shape;
     std::unique_ptr<OGRGeometry> linear(copy->getLinearGeometry());
@@ -112,7 +116,6 @@ double polygon_area(OGRLayer& layer, const OGRSpatialReference& source, const OG
   });
   return total;
 }
-
 
 std::vector<std::pair<double, double>> transect_vertices(OGRLayer& layer, const OGRSpatialReference& crs,
                                                          const std::string& label) {
@@ -154,7 +157,7 @@ void check_some_ids_match(OGRLayer& layer, const std::string& label, int index,
     known += (known.empty() ? "'" : ", '") + id + "'";
   }
   throw InputError(label + ": none of the sightings' '" + sighting_field + "' values (" + shown +
-                   ", ...) is a transect id in field '" + transect_field + "' (" + known +
+                       ", ...) is a transect id in field '" + transect_field + "' (" + known +
                        ", ...): assign by location (nearest transect) with assignment location, or name the "
                        "sightings' field with sighting_transect_field",
                    {"assignment", "sighting_transect_field"});
@@ -176,15 +179,14 @@ OpenedSources open_sources(const TransectReadOptions& options, bool is_line, Loa
   const SourceSpec& spec = is_line ? *options.lines : *options.stations;
   OpenedSources s;
   s.transects_ds = open_vector(spec.path, {}, options.encoding);
-  s.transect_layer = &pick_layer(*s.transects_ds, spec.path, spec.layer,
-                                 is_line ? LayerKind::lines : LayerKind::points,
+  s.transect_layer = &pick_layer(*s.transects_ds, spec.path, spec.layer, is_line ? LayerKind::lines : LayerKind::points,
                                  is_line ? "lines.layer" : "stations.layer");
   loaded.transects_label = layer_label(spec.path, *s.transect_layer);
   s.transect_crs = layer_crs(*s.transect_layer, loaded.transects_label, options.assume_crs);
 
   s.sightings_ds = open_vector(options.sightings.path, CsvColumns{options.x_field, options.y_field}, options.encoding);
-  s.sightings_layer = &pick_layer(*s.sightings_ds, options.sightings.path, options.sightings.layer,
-                                  LayerKind::points, "sightings.layer");
+  s.sightings_layer = &pick_layer(*s.sightings_ds, options.sightings.path, options.sightings.layer, LayerKind::points,
+                                  "sightings.layer");
   loaded.sightings_label = layer_label(options.sightings.path, *s.sightings_layer);
   s.sightings_have_geometry = wkbFlatten(s.sightings_layer->GetGeomType()) != wkbNone;
   if (s.sightings_have_geometry)
@@ -239,8 +241,7 @@ TransectTable read_transects(const TransectReadOptions& options, bool is_line, c
   OGRLayer& layer = *sources.transect_layer;
   const SourceSpec& spec = is_line ? *options.lines : *options.stations;
   const int id_index = required_field(layer, tl, options.transect_field, "transect_field");
-  const int effort_index =
-      options.effort_field ? required_field(layer, tl, *options.effort_field, "effort_field") : -1;
+  const int effort_index = options.effort_field ? required_field(layer, tl, *options.effort_field, "effort_field") : -1;
   const int visits_index = options.visits_field ? required_field(layer, tl, *options.visits_field, "visits_field")
                                                 : field_index(layer, "visits");
   const int stratum_index =
@@ -256,7 +257,8 @@ TransectTable read_transects(const TransectReadOptions& options, bool is_line, c
     if (!has_geometry && (effort_index < 0 || !is_line))
       throw InputError(context + " (transect '" + *id + "'): has no geometry");
     auto [it, inserted] = table.by_id.emplace(*id, table.geometries.size());
-    if (inserted) table.geometries.push_back(TransectGeometry{*id, std::nullopt, {}, BgPoint(0, 0), 0.0, std::nullopt, 1.0});
+    if (inserted)
+      table.geometries.push_back(TransectGeometry{*id, std::nullopt, {}, BgPoint(0, 0), 0.0, std::nullopt, 1.0});
     TransectGeometry& t = table.geometries[it->second];
     if (stratum_index >= 0) t.stratum = text(feature, stratum_index, decode);
     if (const auto v = visits_index >= 0 ? number(feature, visits_index, context, "visits") : std::nullopt) {
@@ -313,7 +315,8 @@ SightingFields sighting_fields(const TransectReadOptions& options, const OpenedS
     throw InputError(sl + ": no transect field '" + f.transect_name + "' (fields: " + field_list(layer) +
                          "); name it with sighting_transect_field, or assign by location with assignment location",
                      {"sighting_transect_field", "assignment"});
-  if (f.transect >= 0) check_some_ids_match(layer, sl, f.transect, table.by_id, f.transect_name, options.transect_field);
+  if (f.transect >= 0)
+    check_some_ids_match(layer, sl, f.transect, table.by_id, f.transect_name, options.transect_field);
   f.distance = options.distance_field ? required_field(layer, sl, *options.distance_field, "distance_field") : -1;
   f.angle = options.angle_field ? required_field(layer, sl, *options.angle_field, "angle_field") : -1;
   f.size = options.size_field ? required_field(layer, sl, *options.size_field, "size_field") : -1;
@@ -333,8 +336,13 @@ class SightingReader {
   SightingReader(const TransectReadOptions& options, bool is_line, const OpenedSources& sources,
                  const TransectTable& table, SightingFields fields, std::string tl, const std::string& sl,
                  TextDecoder& decode)
-      : options_(options), is_line_(is_line), sources_(sources), table_(table), fields_(std::move(fields)),
-        tl_(std::move(tl)), decode_(decode) {
+      : options_(options),
+        is_line_(is_line),
+        sources_(sources),
+        table_(table),
+        fields_(std::move(fields)),
+        tl_(std::move(tl)),
+        decode_(decode) {
     if (sources.sightings_crs) to_target_ = make_transform(*sources.sightings_crs, sources.target, sl);
   }
 
@@ -438,12 +446,12 @@ class SightingReader {
                                                    const std::string& context) const {
     const auto [which, best] = named ? std::pair{*named, distance_to(location, *named)} : nearest(location);
     if (best > options_.max_offset_m)
-      throw InputError(context + ": lies " + format_fixed(best, 0) + " m from " +
-                       (named ? "its transect '" + table_.geometries[*named].id + "'"
-                              : std::string("the nearest transect")) +
-                           ", more than max_offset_m " + format_general(options_.max_offset_m) +
-                           " m (wrong CRS or wrong transect file?)",
-                       {"max_offset_m"});
+      throw InputError(
+          context + ": lies " + format_fixed(best, 0) + " m from " +
+              (named ? "its transect '" + table_.geometries[*named].id + "'" : std::string("the nearest transect")) +
+              ", more than max_offset_m " + format_general(options_.max_offset_m) +
+              " m (wrong CRS or wrong transect file?)",
+          {"max_offset_m"});
     return {which, best};
   }
 
@@ -473,15 +481,15 @@ class SightingReader {
 
 void read_study_area(const TransectReadOptions& options, const OGRSpatialReference& target, LoadedTransects& loaded) {
   DatasetPtr area_ds = open_vector(options.study_area->path, {}, options.encoding);
-  OGRLayer& area_layer = pick_layer(*area_ds, options.study_area->path, options.study_area->layer,
-                                    LayerKind::polygons, "study_area.layer");
+  OGRLayer& area_layer = pick_layer(*area_ds, options.study_area->path, options.study_area->layer, LayerKind::polygons,
+                                    "study_area.layer");
   const std::string al = layer_label(options.study_area->path, area_layer);
   loaded.study_area_m2 = polygon_area(area_layer, layer_crs(area_layer, al, options.assume_crs), target, al,
                                       options.stratum_field, loaded.stratum_area_m2, loaded.crs.max_area_error);
   if (loaded.crs.max_area_error > max_crs_area_error)
-    loaded.warnings.push_back("study-area polygons in " + loaded.crs.code + " differ from their geodesic areas by up to " +
-                              format_significant(100.0 * loaded.crs.max_area_error, 2) +
-                              "% (choose an equal-area analysis CRS)");
+    loaded.warnings.push_back(
+        "study-area polygons in " + loaded.crs.code + " differ from their geodesic areas by up to " +
+        format_significant(100.0 * loaded.crs.max_area_error, 2) + "% (choose an equal-area analysis CRS)");
 }
 
 }  // namespace
@@ -502,11 +510,10 @@ LoadedTransects load_transects(const TransectReadOptions& options) {
   const std::string& sl = loaded.sightings_label;
   const SightingReader reader(options, is_line, sources, table, sighting_fields(options, sources, table, sl),
                               loaded.transects_label, sl, decode);
-  const LayerScan scan = scan_layer(*sources.sightings_layer, sl, is_csv_path(options.sightings.path),
-                                    [&](OGRFeature& feature) {
-                                      loaded.survey.observations.push_back(
-                                          reader.read(feature, where(sl, feature.GetFID())));
-                                    });
+  const LayerScan scan =
+      scan_layer(*sources.sightings_layer, sl, is_csv_path(options.sightings.path), [&](OGRFeature& feature) {
+        loaded.survey.observations.push_back(reader.read(feature, where(sl, feature.GetFID())));
+      });
   if (scan.blank_rows > 0)
     loaded.notes.push_back(sl + ": " + std::to_string(scan.blank_rows) + " blank row(s) (every field empty) skipped");
   if (const std::string w = decode.warning(sl); !w.empty()) loaded.warnings.push_back(w);

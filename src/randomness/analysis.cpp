@@ -6,14 +6,13 @@
 
 #include <boost/math/constants/constants.hpp>
 
-
+#include "detail/parallel.hpp"
+#include "stats/shuffle.hpp"
 #include "stipple/error.hpp"
 #include "stipple/format.hpp"
 #include "stipple/geometry/spatial_index.hpp"
-#include "detail/parallel.hpp"
-#include "stats/shuffle.hpp"
-#include "stipple/stats/monte_carlo.hpp"
 #include "stipple/simulate/point_process.hpp"
+#include "stipple/stats/monte_carlo.hpp"
 
 namespace stipple {
 
@@ -44,8 +43,8 @@ std::string too_few_simulations(const std::string& test, std::size_t simulations
   if (simulations >= needed) return {};
   return "verdict undetermined: with " + std::to_string(simulations) + " simulations the " + test +
          " cannot give a p-value below alpha = " + format_general(alpha) + " (smallest attainable " +
-         format_significant((two_sided ? 2.0 : 1.0) / static_cast<double>(simulations + 1), 3) +
-         "); run at least " + std::to_string(needed);
+         format_significant((two_sided ? 2.0 : 1.0) / static_cast<double>(simulations + 1), 3) + "); run at least " +
+         std::to_string(needed);
 }
 
 // The DCLF test on L when the envelope ran, else Clark-Evans, else the quadrat test.
@@ -60,8 +59,10 @@ void decide_verdict(GroupResult& g, double alpha, std::size_t simulations) {
     g.verdict_basis = "Clark-Evans test";
     if (g.clark_evans->monte_carlo_p_value)
       cannot_tell = too_few_simulations("Monte Carlo Clark-Evans test", simulations, alpha, true);
-    if (std::isnan(p)) g.verdict = "undetermined";
-    else if (p < alpha) g.verdict = g.clark_evans->ratio < 1.0 ? "clustered" : "regular";
+    if (std::isnan(p))
+      g.verdict = "undetermined";
+    else if (p < alpha)
+      g.verdict = g.clark_evans->ratio < 1.0 ? "clustered" : "regular";
   } else if (g.quadrat) {
     g.verdict_basis = "quadrat test";
     if (g.quadrat->monte_carlo_p_value)
@@ -77,8 +78,8 @@ void decide_verdict(GroupResult& g, double alpha, std::size_t simulations) {
 
 }  // namespace
 
-GroupResult analyse_pattern(const std::vector<Point>& points, const Window& window,
-                            const RandomnessOptions& options, const std::string& key) {
+GroupResult analyse_pattern(const std::vector<Point>& points, const Window& window, const RandomnessOptions& options,
+                            const std::string& key) {
   GroupResult g;
   g.n = points.size();
   const std::size_t n = points.size();
@@ -125,8 +126,9 @@ GroupResult analyse_pattern(const std::vector<Point>& points, const Window& wind
     }
   }
   if (g.clark_evans && g.clark_evans->edge_correction == NeighbourEdgeCorrection::border && !need_simulations)
-    g.notes.push_back("Clark-Evans with the border method has no p-value without simulations: its normal "
-                      "approximation rejects too often (6-11% at nominal 5%); run simulations");
+    g.notes.push_back(
+        "Clark-Evans with the border method has no p-value without simulations: its normal "
+        "approximation rejects too often (6-11% at nominal 5%); run simulations");
   if (need_simulations) {
     std::vector<SummaryCurves> simulated(options.simulations);
     std::vector<double> simulated_ce(options.simulations, std::nan(""));
@@ -156,8 +158,8 @@ GroupResult analyse_pattern(const std::vector<Point>& points, const Window& wind
         curves.reserve(simulated.size());
         for (const auto& sim : simulated) curves.push_back(curve_of(sim, f));
         g.functions.push_back(FunctionEnvelope{
-            function_names[f], envelope_test(context.r(), curve_of(observed, f), curve_of(theory, f),
-                                             curves, options.alpha)});
+            function_names[f],
+            envelope_test(context.r(), curve_of(observed, f), curve_of(theory, f), curves, options.alpha)});
       }
     }
   }
@@ -166,9 +168,8 @@ GroupResult analyse_pattern(const std::vector<Point>& points, const Window& wind
   return g;
 }
 
-InteractionResult random_labelling_test(const std::vector<Point>& a, const std::vector<Point>& b,
-                                        const Window& window, const RandomnessOptions& options,
-                                        const std::string& key) {
+InteractionResult random_labelling_test(const std::vector<Point>& a, const std::vector<Point>& b, const Window& window,
+                                        const RandomnessOptions& options, const std::string& key) {
   if (a.size() < 2 || b.size() < 2) throw AnalysisError("random labelling needs 2 points of each species");
   if (options.simulations == 0) throw AnalysisError("random labelling needs simulations > 0", {"simulations"});
   InteractionResult result;
@@ -295,8 +296,7 @@ RandomnessResult analyse_randomness(const Survey& survey, const RandomnessOption
     const Plot& plot = survey.plots[p];
     const MarkedPattern& pattern = survey.patterns[p];
     std::vector<std::vector<Point>> by_species(survey.species.size());
-    for (std::size_t i = 0; i < pattern.points.size(); ++i)
-      by_species[pattern.marks[i]].push_back(pattern.points[i]);
+    for (std::size_t i = 0; i < pattern.points.size(); ++i) by_species[pattern.marks[i]].push_back(pattern.points[i]);
     const auto run = [&](const std::vector<Point>& points, const std::optional<std::string>& species) {
       if (points.size() < options.min_points) {
         const std::string why = "fewer than " + std::to_string(options.min_points) + " sightings";
@@ -333,9 +333,8 @@ RandomnessResult analyse_randomness(const Survey& survey, const RandomnessOption
     for (std::size_t s = 0; s < survey.species.size(); ++s) {
       for (std::size_t t = s + 1; t < survey.species.size(); ++t) {
         if (by_species[s].size() < 2 || by_species[t].size() < 2) continue;
-        InteractionResult ir = random_labelling_test(
-            by_species[s], by_species[t], plot.window, options,
-            seed_key({"pair", plot.id, survey.species[s], survey.species[t]}));
+        InteractionResult ir = random_labelling_test(by_species[s], by_species[t], plot.window, options,
+                                                     seed_key({"pair", plot.id, survey.species[s], survey.species[t]}));
         ir.plot = plot.id;
         ir.species_a = survey.species[s];
         ir.species_b = survey.species[t];

@@ -21,8 +21,7 @@ constexpr double clark_evans_se_constant = 0.26136;
 // of the points remain reference points in small or sparse plots.
 double border_width(const Window& window, const std::vector<double>& boundary) {
   std::vector<double> sorted(boundary);
-  std::nth_element(sorted.begin(), sorted.begin() + static_cast<std::ptrdiff_t>(sorted.size() / 2),
-                   sorted.end());
+  std::nth_element(sorted.begin(), sorted.begin() + static_cast<std::ptrdiff_t>(sorted.size() / 2), sorted.end());
   const double median = sorted[sorted.size() / 2];
   return std::min(1.0 / std::sqrt(static_cast<double>(boundary.size()) / window.area_m2()), median);
 }
@@ -50,11 +49,10 @@ NeighbourEdgeCorrection default_edge_correction(const Window& window) {
   return window.is_rectangle() ? NeighbourEdgeCorrection::donnelly : NeighbourEdgeCorrection::border;
 }
 
-double clark_evans_mean(const std::vector<double>& nearest, const std::vector<double>& boundary,
-                        const Window& window, NeighbourEdgeCorrection correction) {
-  const double w = correction == NeighbourEdgeCorrection::border && !boundary.empty()
-                       ? border_width(window, boundary)
-                       : -1.0;
+double clark_evans_mean(const std::vector<double>& nearest, const std::vector<double>& boundary, const Window& window,
+                        NeighbourEdgeCorrection correction) {
+  const double w =
+      correction == NeighbourEdgeCorrection::border && !boundary.empty() ? border_width(window, boundary) : -1.0;
   double sum = 0.0;
   std::size_t used = 0;
   for (std::size_t i = 0; i < nearest.size(); ++i) {
@@ -66,8 +64,7 @@ double clark_evans_mean(const std::vector<double>& nearest, const std::vector<do
 }
 
 ClarkEvansResult clark_evans(const std::vector<double>& nearest, const std::vector<double>& boundary,
-                             const Window& window,
-                             std::optional<NeighbourEdgeCorrection> requested) {
+                             const Window& window, std::optional<NeighbourEdgeCorrection> requested) {
   const std::size_t n = nearest.size();
   if (n < 2) throw AnalysisError("the Clark-Evans test needs at least 2 points");
   ClarkEvansResult r;
@@ -90,10 +87,8 @@ ClarkEvansResult clark_evans(const std::vector<double>& nearest, const std::vect
     case NeighbourEdgeCorrection::donnelly: {
       const double perimeter = window.perimeter_m();
       r.reference_points = n;
-      r.expected_distance =
-          0.5 * std::sqrt(area / nd) + (0.0514 + 0.041 / std::sqrt(nd)) * perimeter / nd;
-      r.standard_error =
-          std::sqrt(0.0703 * area / (nd * nd) + 0.037 * perimeter * std::sqrt(area / std::pow(nd, 5)));
+      r.expected_distance = 0.5 * std::sqrt(area / nd) + (0.0514 + 0.041 / std::sqrt(nd)) * perimeter / nd;
+      r.standard_error = std::sqrt(0.0703 * area / (nd * nd) + 0.037 * perimeter * std::sqrt(area / std::pow(nd, 5)));
       break;
     }
     case NeighbourEdgeCorrection::border: {
@@ -102,8 +97,7 @@ ClarkEvansResult clark_evans(const std::vector<double>& nearest, const std::vect
       if (r.reference_points == 0)
         throw AnalysisError("no point lies far enough from the boundary for the border method");
       r.expected_distance = 0.5 / std::sqrt(lambda);
-      r.standard_error =
-          clark_evans_se_constant / std::sqrt(static_cast<double>(r.reference_points) * lambda);
+      r.standard_error = clark_evans_se_constant / std::sqrt(static_cast<double>(r.reference_points) * lambda);
       break;
     }
   }

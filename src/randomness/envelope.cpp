@@ -21,8 +21,8 @@ double quantile(std::vector<double> values, double q) {
 }  // namespace
 
 EnvelopeResult envelope_test(const std::vector<double>& r, const std::vector<double>& observed,
-                             const std::vector<double>& theoretical,
-                             const std::vector<std::vector<double>>& simulated, double alpha) {
+                             const std::vector<double>& theoretical, const std::vector<std::vector<double>>& simulated,
+                             double alpha) {
   if (simulated.empty()) throw AnalysisError("an envelope needs at least one simulation");
   const std::size_t m = r.size();
   const std::size_t s = simulated.size();
@@ -64,8 +64,7 @@ EnvelopeResult envelope_test(const std::vector<double>& r, const std::vector<dou
     if (!usable[k]) continue;
     all_mean[k] = (e.simulation_mean[k] * static_cast<double>(s) + observed[k]) / static_cast<double>(s + 1);
   }
-  const auto statistics = [&](const std::vector<double>& curve, double& mad, double& dclf,
-                              double& mean_dev) {
+  const auto statistics = [&](const std::vector<double>& curve, double& mad, double& dclf, double& mean_dev) {
     mad = 0.0;
     dclf = 0.0;
     mean_dev = 0.0;
@@ -100,9 +99,7 @@ EnvelopeResult envelope_test(const std::vector<double>& r, const std::vector<dou
   // ranks R = min(rank from below, rank from above), each curve's ranks sorted ascending,
   // curves ordered lexicographically (smaller = more extreme).
   const std::size_t curves = s + 1;
-  const auto curve = [&](std::size_t c) -> const std::vector<double>& {
-    return c == 0 ? observed : simulated[c - 1];
-  };
+  const auto curve = [&](std::size_t c) -> const std::vector<double>& { return c == 0 ? observed : simulated[c - 1]; };
   std::vector<std::vector<double>> ranks(curves);
   std::vector<std::pair<double, std::size_t>> order(curves);
   for (std::size_t k = 0; k < m; ++k) {
@@ -115,8 +112,7 @@ EnvelopeResult envelope_test(const std::vector<double>& r, const std::vector<dou
       while (b + 1 < curves && order[b + 1].first == order[a].first) ++b;
       const double low_rank = (static_cast<double>(a) + static_cast<double>(b)) / 2.0 + 1.0;
       const double high_rank = static_cast<double>(curves) + 1.0 - low_rank;
-      for (std::size_t t = a; t <= b; ++t)
-        ranks[order[t].second].push_back(std::min(low_rank, high_rank));
+      for (std::size_t t = a; t <= b; ++t) ranks[order[t].second].push_back(std::min(low_rank, high_rank));
       a = b + 1;
     }
   }
@@ -141,9 +137,8 @@ EnvelopeResult envelope_test(const std::vector<double>& r, const std::vector<dou
   for (std::size_t t = 0; t < curves; ++t) sorted_ranks[t] = ranks[by_extremeness[t]];
   std::vector<bool> keep(curves, false);
   for (std::size_t c = 0; c < curves; ++c) {
-    const auto at_most =
-        static_cast<std::size_t>(std::upper_bound(sorted_ranks.begin(), sorted_ranks.end(), ranks[c]) -
-                                 sorted_ranks.begin());
+    const auto at_most = static_cast<std::size_t>(std::upper_bound(sorted_ranks.begin(), sorted_ranks.end(), ranks[c]) -
+                                                  sorted_ranks.begin());
     keep[c] = !(static_cast<double>(at_most) / static_cast<double>(curves) < alpha);
   }
   e.erl_rejects = !keep[0];
@@ -168,8 +163,8 @@ EnvelopeResult envelope_test(const std::vector<double>& r, const std::vector<dou
     if (observed[k] > e.global_high[k]) direction = "above";
     if (observed[k] < e.global_low[k]) direction = "below";
     if (direction.empty()) continue;
-    if (!e.departures.empty() && e.departures.back().direction == direction &&
-        k > 0 && e.departures.back().to_m == r[k - 1]) {
+    if (!e.departures.empty() && e.departures.back().direction == direction && k > 0 &&
+        e.departures.back().to_m == r[k - 1]) {
       e.departures.back().to_m = r[k];
     } else {
       e.departures.push_back({r[k], r[k], direction});

@@ -36,8 +36,8 @@ std::pair<std::size_t, std::size_t> parse_quadrat_grid(const std::string& text) 
   return {nx, ny};
 }
 
-QuadratResult quadrat_test(const std::vector<Point>& points, const Window& window,
-                           const QuadratOptions& options, Engine& engine) {
+QuadratResult quadrat_test(const std::vector<Point>& points, const Window& window, const QuadratOptions& options,
+                           Engine& engine) {
   if (options.nx < 1 || options.ny < 1 || options.nx * options.ny < 2)
     throw AnalysisError("the quadrat test needs at least 2 cells");
   if (points.empty()) throw AnalysisError("the quadrat test needs at least one point");
@@ -49,8 +49,7 @@ QuadratResult quadrat_test(const std::vector<Point>& points, const Window& windo
   for (std::size_t iy = 0; iy < options.ny; ++iy) {
     for (std::size_t ix = 0; ix < options.nx; ++ix) {
       const BgBox box(BgPoint(b.xmin + cw * static_cast<double>(ix), b.ymin + ch * static_cast<double>(iy)),
-                      BgPoint(b.xmin + cw * static_cast<double>(ix + 1),
-                              b.ymin + ch * static_cast<double>(iy + 1)));
+                      BgPoint(b.xmin + cw * static_cast<double>(ix + 1), b.ymin + ch * static_cast<double>(iy + 1)));
       BgPolygon cell;
       bg::convert(box, cell);
       BgMultiPolygon part;
@@ -73,8 +72,10 @@ QuadratResult quadrat_test(const std::vector<Point>& points, const Window& windo
   const double sliver = 1e-6 * cw * ch;
   for (std::size_t c = 0; c < cells; ++c) {
     if (clipped[c] <= sliver) {
-      if (all_counts[c] > 0) clipped[c] = sliver;  // a point on a sliver: keep the cell
-      else continue;
+      if (all_counts[c] > 0)
+        clipped[c] = sliver;  // a point on a sliver: keep the cell
+      else
+        continue;
     }
     q.counts.push_back(all_counts[c]);
     q.expected.push_back(n * clipped[c] / total_area);
@@ -93,8 +94,7 @@ QuadratResult quadrat_test(const std::vector<Point>& points, const Window& windo
   }
 
   if ((q.cells_too_small || options.force_monte_carlo) && options.simulations > 0) {
-    q.monte_carlo_p_value =
-        multinomial_monte_carlo(q.counts, q.expected, options.simulations, engine).two_sided;
+    q.monte_carlo_p_value = multinomial_monte_carlo(q.counts, q.expected, options.simulations, engine).two_sided;
     q.p_value = *q.monte_carlo_p_value;
   }
   return q;

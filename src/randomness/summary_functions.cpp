@@ -66,8 +66,7 @@ std::vector<double> distance_distribution(const std::vector<double>& d, const st
         ++total;
         ++idx;
       }
-      if (at_risk > 0)
-        survival *= 1.0 - static_cast<double>(deaths) / static_cast<double>(at_risk);
+      if (at_risk > 0) survival *= 1.0 - static_cast<double>(deaths) / static_cast<double>(at_risk);
       at_risk -= total;
     }
     out[k] = 1.0 - survival;
@@ -93,8 +92,7 @@ double default_rmax(const Window& window, std::size_t n) {
   return std::min(quarter, 4.0 / std::sqrt(lambda));
 }
 
-SummaryContext::SummaryContext(const Window& window, SummaryOptions options)
-    : window_(&window), options_(options) {
+SummaryContext::SummaryContext(const Window& window, SummaryOptions options) : window_(&window), options_(options) {
   if (!(options_.rmax_m > 0.0) || options_.steps < 2)
     throw AnalysisError("summary functions need rmax > 0 and at least 2 distance steps");
   const double dr = options_.rmax_m / static_cast<double>(options_.steps);
@@ -176,8 +174,7 @@ SummaryCurves summary_functions(const std::vector<Point>& points, const SummaryC
   grid.for_each_pair_within(pcf_reach, [&](std::size_t i, std::size_t j, double d) {
     double w = 2.0;
     if (isotropic) {
-      w = isotropic_weight(window, points[i], boundary[i], d) +
-          isotropic_weight(window, points[j], boundary[j], d);
+      w = isotropic_weight(window, points[i], boundary[i], d) + isotropic_weight(window, points[j], boundary[j], d);
     }
     if (d <= o.rmax_m) {
       k_hist[k_bin(d, dr)] += w;
@@ -214,8 +211,7 @@ SummaryCurves summary_functions(const std::vector<Point>& points, const SummaryC
     for (std::size_t k = 1; k <= steps; ++k) {
       running += border_diff[k];
       const std::size_t centres = centres_beyond(k - 1);
-      c.k[k - 1] = centres > 0 ? area / (nd - 1.0) * running / static_cast<double>(centres)
-                               : nan_value;
+      c.k[k - 1] = centres > 0 ? area / (nd - 1.0) * running / static_cast<double>(centres) : nan_value;
     }
   }
   for (const double kv : c.k) c.l.push_back(std::isnan(kv) ? nan_value : std::sqrt(std::max(0.0, kv) / pi));
@@ -229,20 +225,18 @@ SummaryCurves summary_functions(const std::vector<Point>& points, const SummaryC
       continue;
     }
     const std::size_t centres = centres_beyond(k);
-    c.g[k] = centres > 0 ? area / (nd - 1.0) * kernel_g[k] / (2.0 * pi * r[k] * static_cast<double>(centres))
-                         : nan_value;
+    c.g[k] =
+        centres > 0 ? area / (nd - 1.0) * kernel_g[k] / (2.0 * pi * r[k] * static_cast<double>(centres)) : nan_value;
   }
 
   // G from nearest-neighbour distances; F from the test locations.
   const std::vector<double> nn = grid.nearest_neighbour_distances();
   c.nn = distance_distribution(nn, boundary, r, o.distance_correction);
   std::vector<double> empty(context.test_locations().size());
-  for (std::size_t t = 0; t < empty.size(); ++t)
-    empty[t] = grid.nearest_distance(context.test_locations()[t]);
+  for (std::size_t t = 0; t < empty.size(); ++t) empty[t] = grid.nearest_distance(context.test_locations()[t]);
   c.f = distance_distribution(empty, context.test_boundary(), r, o.distance_correction);
   c.j.resize(steps);
-  for (std::size_t k = 0; k < steps; ++k)
-    c.j[k] = c.f[k] < 1.0 ? (1.0 - c.nn[k]) / (1.0 - c.f[k]) : nan_value;
+  for (std::size_t k = 0; k < steps; ++k) c.j[k] = c.f[k] < 1.0 ? (1.0 - c.nn[k]) / (1.0 - c.f[k]) : nan_value;
   c.nearest = nn;
   c.boundary = std::move(boundary);
   return c;

@@ -20,7 +20,9 @@ using Json = nlohmann::ordered_json;
 using report_detail::crs_area_note;
 using report_detail::duplicate_locations_json;
 
-Json interval_json(const Interval& ci) { return Json::array({ci.lower, ci.upper}); }
+Json interval_json(const Interval& ci) {
+  return Json::array({ci.lower, ci.upper});
+}
 
 Json species_json(const std::optional<std::string>& species) {
   return species ? Json(*species) : Json(nullptr);
@@ -30,7 +32,9 @@ std::string species_text(const std::optional<std::string>& species) {
   return species ? *species : "(all)";
 }
 
-std::string number(double value) { return format_significant(value, 4); }
+std::string number(double value) {
+  return format_significant(value, 4);
+}
 
 std::string interval_text(const Interval& ci) {
   return "[" + number(ci.lower) + ", " + number(ci.upper) + "]";
@@ -49,8 +53,7 @@ Json chi_square_json(const ChiSquareTest& t, double p_value, bool monte_carlo) {
   j["p_value"] = p_value;
   j["p_value_method"] = monte_carlo ? "monte-carlo" : "chi-square";
   j["chi_square_p_value"] = t.p_upper;
-  j["monte_carlo_p_value"] =
-      t.monte_carlo_p_value ? Json(*t.monte_carlo_p_value) : Json(nullptr);
+  j["monte_carlo_p_value"] = t.monte_carlo_p_value ? Json(*t.monte_carlo_p_value) : Json(nullptr);
   j["simulations"] = t.simulations;
   j["min_expected"] = t.min_expected;
   return j;
@@ -110,9 +113,8 @@ Json pooled_record(const PooledEstimate& p) {
     t["between_plot_ci"] = interval_json(h.between_plot_ci);
     t["corrected_between_plot_se"] = h.corrected_between_plot_se;
     t["corrected_between_plot_ci"] = interval_json(h.corrected_between_plot_ci);
-    t["corrected_between_plot_df"] = std::isfinite(h.corrected_between_plot_df)
-                                         ? Json(h.corrected_between_plot_df)
-                                         : Json(nullptr);
+    t["corrected_between_plot_df"] =
+        std::isfinite(h.corrected_between_plot_df) ? Json(h.corrected_between_plot_df) : Json(nullptr);
     t["between_plot_method"] =
         "ratio estimator (Cochran 1977), t interval with k - 1 df; corrected: plot counts "
         "divided by p, delta-method variance of p added, Satterthwaite df";
@@ -138,24 +140,21 @@ std::vector<std::string> density_warnings(const DensityResult& result) {
   for (const auto& p : result.pooled) {
     if (!p.homogeneity || !p.homogeneity->significant) continue;
     const auto& h = *p.homogeneity;
-    warnings.push_back(
-        (p.species ? "species '" + *p.species + "'" : std::string("all species together")) +
-        ": plots differ in intensity (homogeneity p = " + format_p_value(h.p_value) +
-        ", dispersion ratio " + format_fixed(h.dispersion_ratio, 2) +
-        "); the pooled Poisson interval assumes one shared intensity and is too narrow: use "
-        "the between-plot interval " +
-        (p.corrected.method == CorrectionMethod::none
-             ? interval_text(h.between_plot_ci) + " per " + unit
-             : interval_text(h.corrected_between_plot_ci) + " per " + unit +
-                   " (detection-corrected: ratio estimator of the plot counts divided by p, with "
-                   "the uncertainty of p added by the delta method)"));
+    warnings.push_back((p.species ? "species '" + *p.species + "'" : std::string("all species together")) +
+                       ": plots differ in intensity (homogeneity p = " + format_p_value(h.p_value) +
+                       ", dispersion ratio " + format_fixed(h.dispersion_ratio, 2) +
+                       "); the pooled Poisson interval assumes one shared intensity and is too narrow: use "
+                       "the between-plot interval " +
+                       (p.corrected.method == CorrectionMethod::none
+                            ? interval_text(h.between_plot_ci) + " per " + unit
+                            : interval_text(h.corrected_between_plot_ci) + " per " + unit +
+                                  " (detection-corrected: ratio estimator of the plot counts divided by p, with "
+                                  "the uncertainty of p added by the delta method)"));
   }
   if (result.composition && result.composition->significant) {
-    warnings.push_back(
-        "species composition differs between plots (p = " +
-        format_p_value(result.composition->p_value) +
-        "): species marks are not independent of plot, so each pooled species intensity "
-        "averages over plots with different species mixes; report plots separately too");
+    warnings.push_back("species composition differs between plots (p = " + format_p_value(result.composition->p_value) +
+                       "): species marks are not independent of plot, so each pooled species intensity "
+                       "averages over plots with different species mixes; report plots separately too");
   }
   return warnings;
 }
@@ -235,32 +234,30 @@ std::string level_text(double confidence) {
 void write_plot_section(std::ostream& out, const DensityResult& result, const std::string& unit,
                         const std::string& level) {
   out << "Per plot\n";
-  TextTable plots({"plot", "species", "count", "area_" + unit, "intensity", level + " CI", "P(detect)",
-                   "corrected", "corrected " + level + " CI"},
+  TextTable plots({"plot", "species", "count", "area_" + unit, "intensity", level + " CI", "P(detect)", "corrected",
+                   "corrected " + level + " CI"},
                   2);
   for (const auto& e : result.estimates) {
-    plots.add_row({e.plot, species_text(e.species), std::to_string(e.count), number(e.area),
-                   number(e.intensity), interval_text(e.ci),
-                   format_significant(e.corrected.detection_probability, 3),
+    plots.add_row({e.plot, species_text(e.species), std::to_string(e.count), number(e.area), number(e.intensity),
+                   interval_text(e.ci), format_significant(e.corrected.detection_probability, 3),
                    number(e.corrected.intensity), interval_text(e.corrected.ci)});
   }
   out << plots.render();
-  out << "  intensity and corrected per " << unit << "; P(detect): detection probability used for the "
+  out << "  intensity and corrected per " << unit
+      << "; P(detect): detection probability used for the "
          "correction (corrected = intensity / P(detect))\n\n";
 }
 
 void write_pooled_section(std::ostream& out, const DensityResult& result, const std::string& unit,
                           const std::string& level) {
   out << "Pooled across plots (superposition: sum n / sum area)\n";
-  TextTable pooled({"species", "plots", "count", "area_" + unit, "intensity", level + " CI",
-                    "corrected", "corrected " + level + " CI", "homogeneity X2", "df", "homogeneity p",
-                    "dispersion"},
+  TextTable pooled({"species", "plots", "count", "area_" + unit, "intensity", level + " CI", "corrected",
+                    "corrected " + level + " CI", "homogeneity X2", "df", "homogeneity p", "dispersion"},
                    1);
   for (const auto& p : result.pooled) {
-    std::vector<std::string> row{species_text(p.species), std::to_string(p.plots),
-                                 std::to_string(p.count), number(p.area), number(p.intensity),
-                                 interval_text(p.ci), number(p.corrected.intensity),
-                                 interval_text(p.corrected.ci)};
+    std::vector<std::string> row{
+        species_text(p.species), std::to_string(p.plots), std::to_string(p.count),       number(p.area),
+        number(p.intensity),     interval_text(p.ci),     number(p.corrected.intensity), interval_text(p.corrected.ci)};
     if (p.homogeneity) {
       const auto& h = *p.homogeneity;
       row.push_back(format_fixed(h.chi_square.statistic, 2));
@@ -282,8 +279,7 @@ void write_composition_line(std::ostream& out, const CompositionTest& c) {
   out << "Species composition across plots: X2 = " << format_fixed(c.chi_square.statistic, 2)
       << ", df = " << format_fixed(c.chi_square.df, 0) << ", p = " << format_p_value(c.p_value)
       << (c.monte_carlo ? " (Monte Carlo)" : "")
-      << (c.significant ? " -> the species mix differs between plots" : " -> no evidence the mix differs")
-      << "\n\n";
+      << (c.significant ? " -> the species mix differs between plots" : " -> no evidence the mix differs") << "\n\n";
 }
 
 void write_notes_warnings_cautions(std::ostream& out, const InputFacts& input, const DensityResult& result) {
@@ -310,22 +306,23 @@ std::string density_table(const InputFacts& input, const Survey& plots, const De
   out << "stipple density\n";
   out << "  sightings: " << input.sightings_label << "\n";
   if (!input.plots_label.empty()) out << "  plots:     " << input.plots_label << "\n";
-  out << "  CRS:       " << input.crs.code << " (" << input.crs.name << "), "
-      << input.crs.reason << "; " << crs_area_note(input.crs) << "\n";
-  out << "  intensity per " << unit << "; " << level
-      << " exact Poisson (Garwood) intervals; " << method_line(result) << "\n\n";
+  out << "  CRS:       " << input.crs.code << " (" << input.crs.name << "), " << input.crs.reason << "; "
+      << crs_area_note(input.crs) << "\n";
+  out << "  intensity per " << unit << "; " << level << " exact Poisson (Garwood) intervals; " << method_line(result)
+      << "\n\n";
   write_plot_section(out, result, unit, level);
   if (!result.pooled.empty()) write_pooled_section(out, result, unit, level);
   if (result.composition) write_composition_line(out, *result.composition);
   const Survey& s = plots;
   out << "Sightings: " << s.sighting_count() << " analysed, "
       << s.outside_feature_ids.size() + s.unknown_plot_feature_ids.size() << " excluded; "
-      << "assigned by " << (s.assigned_by_attribute ? "plot attribute" : "point-in-polygon")
-      << "\n";
+      << "assigned by " << (s.assigned_by_attribute ? "plot attribute" : "point-in-polygon") << "\n";
   write_notes_warnings_cautions(out, input, result);
   return out.str();
 }
 
-std::string density_csv(const DensityResult& result) { return csv_text(density_rows(result)); }
+std::string density_csv(const DensityResult& result) {
+  return csv_text(density_rows(result));
+}
 
 }  // namespace stipple

@@ -8,9 +8,9 @@
 
 #include <optional>
 
-#include <boost/math/constants/constants.hpp>
 #include <cairo-svg.h>
 #include <cairo.h>
+#include <boost/math/constants/constants.hpp>
 
 #include "stipple/error.hpp"
 #include "stipple/format.hpp"
@@ -27,11 +27,11 @@ struct Rgb {
   double r, g, b;
 };
 constexpr Rgb palette[] = {
-    {0.0, 0.447, 0.698},    // blue
-    {0.835, 0.369, 0.0},    // vermillion
-    {0.62, 0.62, 0.62},     // grey
-    {0.80, 0.80, 0.80},     // light grey
-    {0.0, 0.620, 0.451},    // bluish green
+    {0.0, 0.447, 0.698},  // blue
+    {0.835, 0.369, 0.0},  // vermillion
+    {0.62, 0.62, 0.62},   // grey
+    {0.80, 0.80, 0.80},   // light grey
+    {0.0, 0.620, 0.451},  // bluish green
 };
 
 Rgb colour_of(int index) {
@@ -74,7 +74,9 @@ double nice_step(double span) {
 constexpr double two_pi = boost::math::double_constants::two_pi;
 constexpr double dash[] = {8.0, 5.0};
 
-void set_colour(cairo_t* cr, const Rgb& c) { cairo_set_source_rgb(cr, c.r, c.g, c.b); }
+void set_colour(cairo_t* cr, const Rgb& c) {
+  cairo_set_source_rgb(cr, c.r, c.g, c.b);
+}
 
 // The plotting area in pixels and the data range it shows.
 struct Frame {
@@ -163,8 +165,10 @@ void draw_line(cairo_t* cr, const Frame& f, const ChartSeries& s) {
       open = false;
       continue;
     }
-    if (!open) cairo_move_to(cr, f.X(s.x[k]), f.Y(s.y[k]));
-    else cairo_line_to(cr, f.X(s.x[k]), f.Y(s.y[k]));
+    if (!open)
+      cairo_move_to(cr, f.X(s.x[k]), f.Y(s.y[k]));
+    else
+      cairo_line_to(cr, f.X(s.x[k]), f.Y(s.y[k]));
     open = true;
   }
   cairo_set_dash(cr, dash, s.kind == ChartSeries::Kind::dashed_line ? 2 : 0, 0.0);
@@ -315,8 +319,10 @@ void draw_window(cairo_t* cr, const MapFrame& m, const Window& window) {
   cairo_new_path(cr);
   const auto ring_path = [&](const BgPolygon::ring_type& ring) {
     for (std::size_t i = 0; i < ring.size(); ++i) {
-      if (i == 0) cairo_move_to(cr, m.X(ring[i].x()), m.Y(ring[i].y()));
-      else cairo_line_to(cr, m.X(ring[i].x()), m.Y(ring[i].y()));
+      if (i == 0)
+        cairo_move_to(cr, m.X(ring[i].x()), m.Y(ring[i].y()));
+      else
+        cairo_line_to(cr, m.X(ring[i].x()), m.Y(ring[i].y()));
     }
     cairo_close_path(cr);
   };
@@ -395,9 +401,8 @@ std::string chart_png(const Chart& chart) {
   draw(cr, chart);
   const cairo_status_t drawing = cairo_status(cr);
   cairo_destroy(cr);
-  const cairo_status_t writing = drawing == CAIRO_STATUS_SUCCESS
-                                     ? cairo_surface_write_to_png_stream(surface, append_to_string, &out)
-                                     : drawing;
+  const cairo_status_t writing =
+      drawing == CAIRO_STATUS_SUCCESS ? cairo_surface_write_to_png_stream(surface, append_to_string, &out) : drawing;
   cairo_surface_destroy(surface);
   if (writing != CAIRO_STATUS_SUCCESS)
     throw Error("figure '" + chart.title + "' could not be drawn: " + cairo_status_to_string(writing));
@@ -421,7 +426,8 @@ std::string plot_map_svg(const Plot& plot, const MarkedPattern& pattern, const s
   cairo_set_source_rgb(cr, 0, 0, 0);
   cairo_move_to(cr, m.left, 32);
   cairo_show_text(cr, ("Plot " + plot.id + " (" + format_significant(plot.window.area_m2() / 1e4, 3) + " ha, " +
-                       std::to_string(pattern.points.size()) + " sightings)").c_str());
+                       std::to_string(pattern.points.size()) + " sightings)")
+                          .c_str());
   draw_map_legend(cr, m, pattern, species);
   draw_scale_bar(cr, m);
   finish_drawing(cr, surface, "map of plot " + plot.id);

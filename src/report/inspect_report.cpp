@@ -13,12 +13,12 @@ std::string inspect_table(const SourceSummary& source) {
   std::ostringstream out;
   out << source.path << " (" << source.driver << "), " << source.layers.size() << " layer(s)\n";
   for (const auto& layer : source.layers) {
-    out << "\nlayer '" << layer.name << "': " << layer.geometry_type << ", "
-        << layer.feature_count << " feature(s), CRS " << layer.crs;
+    out << "\nlayer '" << layer.name << "': " << layer.geometry_type << ", " << layer.feature_count
+        << " feature(s), CRS " << layer.crs;
     if (!layer.crs_name.empty() && layer.crs_name != layer.crs) out << " (" << layer.crs_name << ")";
     if (layer.declared_count >= 0 && layer.declared_count != layer.feature_count)
-      out << "\n  WARNING: the header declares " << layer.declared_count << " features but "
-          << layer.feature_count << " could be read (truncated or damaged file?); analyses refuse it";
+      out << "\n  WARNING: the header declares " << layer.declared_count << " features but " << layer.feature_count
+          << " could be read (truncated or damaged file?); analyses refuse it";
     if (!layer.read_error.empty()) out << "\n  WARNING: reading stopped on an error: " << layer.read_error;
     if (layer.undecodable_values > 0)
       out << "\n  WARNING: " << layer.undecodable_values
@@ -31,8 +31,7 @@ std::string inspect_table(const SourceSummary& source) {
     if (layer.species_counts) {
       out << "  species:\n";
       TextTable table({"species", "count"});
-      for (const auto& [name, count] : *layer.species_counts)
-        table.add_row({name, std::to_string(count)});
+      for (const auto& [name, count] : *layer.species_counts) table.add_row({name, std::to_string(count)});
       out << table.render("    ");
     }
     if (!layer.plots.empty()) {
@@ -44,8 +43,7 @@ std::string inspect_table(const SourceSummary& source) {
                        plot.valid ? "yes" : "NO (self-intersecting?)"});
       out << table.render("    ");
     }
-    if (layer.crs == "none")
-      out << "  note: no CRS; the analysis needs an assumed CRS (EPSG:N) for this layer\n";
+    if (layer.crs == "none") out << "  note: no CRS; the analysis needs an assumed CRS (EPSG:N) for this layer\n";
   }
   return out.str();
 }
@@ -71,8 +69,7 @@ std::string inspect_json(const SourceSummary& source) {
     j["fields"] = std::move(fields);
     j["species_counts"] = layer.species_counts ? Json(*layer.species_counts) : Json(nullptr);
     Json plots = Json::array();
-    for (const auto& p : layer.plots)
-      plots.push_back({{"plot", p.id}, {"area_m2", p.area_m2}, {"valid", p.valid}});
+    for (const auto& p : layer.plots) plots.push_back({{"plot", p.id}, {"area_m2", p.area_m2}, {"valid", p.valid}});
     j["plots"] = std::move(plots);
     j["area_crs"] = layer.area_crs;
     j["crs_max_area_error"] = layer.plots.empty() ? Json(nullptr) : Json(layer.max_area_error);

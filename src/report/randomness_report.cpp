@@ -10,11 +10,11 @@
 #include <nlohmann/json.hpp>
 
 #include "json_text.hpp"
-#include "report/records.hpp"
 #include "report/input_summary.hpp"
+#include "report/records.hpp"
 #include "stipple/format.hpp"
-#include "stipple/report/tables.hpp"
 #include "stipple/report/figure.hpp"
+#include "stipple/report/tables.hpp"
 #include "stipple/version.hpp"
 
 namespace stipple {
@@ -25,8 +25,12 @@ using Json = nlohmann::ordered_json;
 using report_detail::crs_area_note;
 using report_detail::duplicate_locations_json;
 
-Json number_or_null(double v) { return std::isfinite(v) ? Json(v) : Json(nullptr); }
-Json optional_json(const std::optional<double>& v) { return v ? number_or_null(*v) : Json(nullptr); }
+Json number_or_null(double v) {
+  return std::isfinite(v) ? Json(v) : Json(nullptr);
+}
+Json optional_json(const std::optional<double>& v) {
+  return v ? number_or_null(*v) : Json(nullptr);
+}
 
 std::string species_text(const std::optional<std::string>& species) {
   return species ? *species : "(all)";
@@ -68,8 +72,7 @@ Json clark_evans_json(const ClarkEvansResult& c) {
 Json departures_json(const EnvelopeResult& e, const char* above, const char* below) {
   Json list = Json::array();
   for (const auto& d : e.departures)
-    list.push_back({{"from", d.from_m}, {"to", d.to_m},
-                    {"direction", d.direction == "above" ? above : below}});
+    list.push_back({{"from", d.from_m}, {"to", d.to_m}, {"direction", d.direction == "above" ? above : below}});
   return list;
 }
 
@@ -165,8 +168,10 @@ std::string randomness_json(const InputFacts& input, const RandomnessResult& res
   doc["interactions"] = std::move(interactions);
   Json skipped = Json::array();
   for (const auto& s : result.skipped)
-    skipped.push_back({{"plot", s.plot}, {"species", s.species ? Json(*s.species) : Json(nullptr)},
-                       {"n", s.n}, {"reason", s.reason}});
+    skipped.push_back({{"plot", s.plot},
+                       {"species", s.species ? Json(*s.species) : Json(nullptr)},
+                       {"n", s.n},
+                       {"reason", s.reason}});
   doc["skipped"] = std::move(skipped);
   doc["duplicate_locations"] = duplicate_locations_json(input);
   doc["notes"] = input.notes;
@@ -200,9 +205,8 @@ std::vector<std::string> group_row(const GroupResult& g) {
 }
 
 void write_groups_table(std::ostream& out, const RandomnessResult& result) {
-  TextTable table({"plot", "species", "n", "quadrat p", "CE ratio", "CE p", "edge", "L rmax_m",
-                   "MAD p", "DCLF p", "verdict"},
-                  2);
+  TextTable table(
+      {"plot", "species", "n", "quadrat p", "CE ratio", "CE p", "edge", "L rmax_m", "MAD p", "DCLF p", "verdict"}, 2);
   for (const auto& g : result.results) table.add_row(group_row(g));
   out << table.render();
   out << "  CE = Clark-Evans nearest-neighbour test (ratio R < 1 clustered, > 1 regular); CE p is the Monte Carlo\n"
@@ -220,8 +224,7 @@ void write_departures(std::ostream& out, const RandomnessResult& result) {
       out << "Distances where L leaves the global envelope (extreme rank length: L leaves it exactly when the\n"
              "ERL test rejects at alpha; the verdict follows the DCLF test, so the two can differ near alpha)\n";
     any_departure = true;
-    out << "  " << g.plot << " " << species_text(g.species) << ": "
-        << ranges_text(*l, "clustered", "regular") << "\n";
+    out << "  " << g.plot << " " << species_text(g.species) << ": " << ranges_text(*l, "clustered", "regular") << "\n";
   }
   if (any_departure) out << "\n";
 }
@@ -247,8 +250,10 @@ std::vector<std::string> table_notes(const InputFacts& input, const RandomnessRe
       if (g.quadrat && g.quadrat->cells_too_small && n.rfind("quadrat cells are small", 0) == 0) continue;
       const std::string group = g.plot + " " + species_text(g.species);
       auto it = std::find_if(shared.begin(), shared.end(), [&](const auto& e) { return e.first == n; });
-      if (it == shared.end()) shared.push_back({n, {group}});
-      else it->second.push_back(group);
+      if (it == shared.end())
+        shared.push_back({n, {group}});
+      else
+        it->second.push_back(group);
     }
   }
   std::vector<std::string> notes;
@@ -273,10 +278,9 @@ std::string randomness_table(const InputFacts& input, const RandomnessResult& re
   out << "stipple randomness\n";
   out << "  sightings: " << input.sightings_label << "\n";
   if (!input.plots_label.empty()) out << "  plots:     " << input.plots_label << "\n";
-  out << "  CRS:       " << input.crs.code << " (" << input.crs.name << "); "
-      << crs_area_note(input.crs) << "\n";
-  out << "  " << result.simulations << " CSR simulations (binomial process, same n and window), seed "
-      << result.seed << ", alpha " << format_general(result.alpha) << "\n\n";
+  out << "  CRS:       " << input.crs.code << " (" << input.crs.name << "); " << crs_area_note(input.crs) << "\n";
+  out << "  " << result.simulations << " CSR simulations (binomial process, same n and window), seed " << result.seed
+      << ", alpha " << format_general(result.alpha) << "\n\n";
   write_groups_table(out, result);
   write_departures(out, result);
   if (!result.interactions.empty()) write_interactions(out, result);
@@ -299,7 +303,9 @@ std::string randomness_table(const InputFacts& input, const RandomnessResult& re
   return out.str();
 }
 
-std::string randomness_csv(const RandomnessResult& result) { return csv_text(randomness_rows(result)); }
+std::string randomness_csv(const RandomnessResult& result) {
+  return csv_text(randomness_rows(result));
+}
 
 std::string randomness_curves_csv(const RandomnessResult& result) {
   std::ostringstream out;
@@ -309,10 +315,9 @@ std::string randomness_curves_csv(const RandomnessResult& result) {
   const auto emit = [&](const std::string& plot, const std::string& species, const std::string& species_b,
                         const std::string& function, const EnvelopeResult& e) {
     for (std::size_t k = 0; k < e.r.size(); ++k) {
-      out << csv_field(plot) << "," << csv_field(species) << "," << csv_field(species_b) << ","
-          << function << "," << value(e.r[k]) << "," << value(e.observed[k]) << ","
-          << value(e.theoretical[k]) << "," << value(e.pointwise_low[k]) << ","
-          << value(e.pointwise_high[k]) << "," << value(e.global_low[k]) << ","
+      out << csv_field(plot) << "," << csv_field(species) << "," << csv_field(species_b) << "," << function << ","
+          << value(e.r[k]) << "," << value(e.observed[k]) << "," << value(e.theoretical[k]) << ","
+          << value(e.pointwise_low[k]) << "," << value(e.pointwise_high[k]) << "," << value(e.global_low[k]) << ","
           << value(e.global_high[k]) << "\n";
     }
   };
@@ -322,8 +327,8 @@ std::string randomness_curves_csv(const RandomnessResult& result) {
     emit(i.plot, i.species_a, i.species_b, "cross-L", i.cross_l);
     // K = pi L^2 is monotone in L, so every envelope quantile maps exactly.
     EnvelopeResult k = i.cross_l;
-    for (auto* series : {&k.observed, &k.theoretical, &k.simulation_mean, &k.pointwise_low,
-                         &k.pointwise_high, &k.global_low, &k.global_high})
+    for (auto* series : {&k.observed, &k.theoretical, &k.simulation_mean, &k.pointwise_low, &k.pointwise_high,
+                         &k.global_low, &k.global_high})
       for (double& v : *series) v = boost::math::double_constants::pi * v * v;
     emit(i.plot, i.species_a, i.species_b, "cross-K", k);
   }
@@ -336,8 +341,8 @@ std::vector<FigureFile> randomness_figures(const RandomnessResult& result) {
   std::string manifest = "file,plot,species,figure\n";
   const auto add = [&](const std::string& stem, const std::string& title, const std::string& y_label,
                        const EnvelopeResult& e, const std::string& caption, const std::string& shows) {
-    EnvelopeFigure f{title, y_label, e.r, e.observed, e.theoretical, e.pointwise_low,
-                     e.pointwise_high, e.global_low, e.global_high, caption};
+    EnvelopeFigure f{title,           y_label,          e.r,          e.observed,    e.theoretical,
+                     e.pointwise_low, e.pointwise_high, e.global_low, e.global_high, caption};
     const Chart chart = envelope_chart(f);
     files.push_back({stem + ".svg", chart_svg(chart), shows});
     files.push_back({stem + ".png", chart_png(chart), shows});
@@ -353,8 +358,7 @@ std::vector<FigureFile> randomness_figures(const RandomnessResult& result) {
     const std::string species = g.species.value_or("all-species");
     const std::string stem = namer.stem("L", {g.plot, species});
     list(stem, g.plot, g.species.value_or(""), "L envelope");
-    add(stem, g.plot + " - " + species_text(g.species),
-        "L(r) (m)", *l,
+    add(stem, g.plot + " - " + species_text(g.species), "L(r) (m)", *l,
         std::to_string(l->simulations) + " CSR simulations; MAD p = " + format_p_value(l->mad_p_value) +
             ", DCLF p = " + format_p_value(l->dclf_p_value) + "; verdict: " + g.verdict,
         "L-function of " + species_text(g.species) + " in plot " + g.plot);
@@ -363,8 +367,8 @@ std::vector<FigureFile> randomness_figures(const RandomnessResult& result) {
     const std::string stem = namer.stem("cross-L", {i.plot, i.species_a, i.species_b});
     list(stem, i.plot, i.species_a + " x " + i.species_b, "cross-L random labelling");
     add(stem, i.plot + " - " + i.species_b + " around " + i.species_a, "cross-L(r) (m)", i.cross_l,
-        std::to_string(i.cross_l.simulations) + " random labellings; p = " + format_p_value(i.p_value) +
-            "; " + i.direction,
+        std::to_string(i.cross_l.simulations) + " random labellings; p = " + format_p_value(i.p_value) + "; " +
+            i.direction,
         "cross-L of " + i.species_b + " around " + i.species_a + " in plot " + i.plot);
   }
   // Which file shows which plot and species: names are shortened or hashed when needed.

@@ -33,13 +33,27 @@ std::string escape(const std::string& text) {
 
 const char* dash = "&ndash;";
 
-std::string num(double v, int digits = 4) { return std::isfinite(v) ? format_significant(v, digits) : dash; }
-std::string num(const std::optional<double>& v, int digits = 4) { return v ? num(*v, digits) : dash; }
-std::string p_text(const std::optional<double>& p) { return p && std::isfinite(*p) ? format_p_value(*p) : dash; }
-std::string interval(const Interval& ci) { return "[" + num(ci.lower) + ", " + num(ci.upper) + "]"; }
-std::string species_cell(const std::optional<std::string>& s) { return s ? escape(*s) : "(all)"; }
-std::string td(const std::string& html) { return "<td>" + html + "</td>"; }
-std::string tdt(const std::string& html) { return "<td class=t>" + html + "</td>"; }
+std::string num(double v, int digits = 4) {
+  return std::isfinite(v) ? format_significant(v, digits) : dash;
+}
+std::string num(const std::optional<double>& v, int digits = 4) {
+  return v ? num(*v, digits) : dash;
+}
+std::string p_text(const std::optional<double>& p) {
+  return p && std::isfinite(*p) ? format_p_value(*p) : dash;
+}
+std::string interval(const Interval& ci) {
+  return "[" + num(ci.lower) + ", " + num(ci.upper) + "]";
+}
+std::string species_cell(const std::optional<std::string>& s) {
+  return s ? escape(*s) : "(all)";
+}
+std::string td(const std::string& html) {
+  return "<td>" + html + "</td>";
+}
+std::string tdt(const std::string& html) {
+  return "<td class=t>" + html + "</td>";
+}
 
 std::string level_text(double confidence) {
   const double percent = 100.0 * confidence;
@@ -80,20 +94,36 @@ struct Reference {
 };
 const std::vector<Reference>& all_references() {
   static const std::vector<Reference> refs{
-      {"Baddeley & Gill 1997", "Baddeley A. &amp; Gill R.D. (1997) Kaplan-Meier estimators of distance distributions for spatial point processes. Ann. Statist. 25:263-292."},
-      {"Buckland et al. 2001", "Buckland S.T. et al. (2001) Introduction to Distance Sampling. Oxford University Press."},
-      {"Clark & Evans 1954", "Clark P.J. &amp; Evans F.C. (1954) Distance to nearest neighbor as a measure of spatial relationships in populations. Ecology 35:445-453."},
+      {"Baddeley & Gill 1997",
+       "Baddeley A. &amp; Gill R.D. (1997) Kaplan-Meier estimators of distance distributions for spatial point "
+       "processes. Ann. Statist. 25:263-292."},
+      {"Buckland et al. 2001",
+       "Buckland S.T. et al. (2001) Introduction to Distance Sampling. Oxford University Press."},
+      {"Clark & Evans 1954",
+       "Clark P.J. &amp; Evans F.C. (1954) Distance to nearest neighbor as a measure of spatial relationships in "
+       "populations. Ecology 35:445-453."},
       {"Cochran 1977", "Cochran W.G. (1977) Sampling Techniques, 3rd ed. Wiley."},
       {"Diggle 2003", "Diggle P.J. (2003) Statistical Analysis of Spatial Point Patterns, 2nd ed. Arnold."},
-      {"Donnelly 1978", "Donnelly K.P. (1978) Simulations to determine the variance and edge effect of total nearest-neighbour distance. In Simulation Methods in Archaeology, Cambridge University Press."},
-      {"Fewster et al. 2009", "Fewster R.M. et al. (2009) Estimating the encounter rate variance in distance sampling. Biometrics 65:225-236."},
+      {"Donnelly 1978",
+       "Donnelly K.P. (1978) Simulations to determine the variance and edge effect of total nearest-neighbour "
+       "distance. In Simulation Methods in Archaeology, Cambridge University Press."},
+      {"Fewster et al. 2009",
+       "Fewster R.M. et al. (2009) Estimating the encounter rate variance in distance sampling. Biometrics "
+       "65:225-236."},
       {"Garwood 1936", "Garwood F. (1936) Fiducial limits for the Poisson distribution. Biometrika 28:437-442."},
-      {"Hayes & Buckland 1983", "Hayes R.J. &amp; Buckland S.T. (1983) Radial-distance models for the line-transect method. Biometrics 39:29-42."},
+      {"Hayes & Buckland 1983",
+       "Hayes R.J. &amp; Buckland S.T. (1983) Radial-distance models for the line-transect method. Biometrics "
+       "39:29-42."},
       {"Hope 1968", "Hope A.C.A. (1968) A simplified Monte Carlo significance test procedure. JRSS B 30:582-598."},
-      {"Loosmore & Ford 2006", "Loosmore N.B. &amp; Ford E.D. (2006) Statistical inference using the G or K point pattern spatial statistics. Ecology 87:1925-1931."},
-      {"Myllymaki et al. 2017", "Myllym&auml;ki M. et al. (2017) Global envelope tests for spatial processes. JRSS B 79:381-404."},
+      {"Loosmore & Ford 2006",
+       "Loosmore N.B. &amp; Ford E.D. (2006) Statistical inference using the G or K point pattern spatial statistics. "
+       "Ecology 87:1925-1931."},
+      {"Myllymaki et al. 2017",
+       "Myllym&auml;ki M. et al. (2017) Global envelope tests for spatial processes. JRSS B 79:381-404."},
       {"Ripley 1977", "Ripley B.D. (1977) Modelling spatial patterns. JRSS B 39:172-212."},
-      {"Satterthwaite 1946", "Satterthwaite F.E. (1946) An approximate distribution of estimates of variance components. Biometrics Bulletin 2:110-114."},
+      {"Satterthwaite 1946",
+       "Satterthwaite F.E. (1946) An approximate distribution of estimates of variance components. Biometrics Bulletin "
+       "2:110-114."},
   };
   return refs;
 }
@@ -114,12 +144,13 @@ class Page {
 
 void write_inputs(Page& page, const SeasonReport& r) {
   page.section("inputs", "Inputs");
-  page.html << "<table>" << header_row({"file", "plots file", "holds", "CRS of the file", "status", "reason", "SHA-256"});
+  page.html << "<table>"
+            << header_row({"file", "plots file", "holds", "CRS of the file", "status", "reason", "SHA-256"});
   for (const auto& in : r.inputs) {
-    page.html << "<tr>" << tdt(escape(in.name)) << tdt(in.plots.empty() ? dash : escape(in.plots)) << tdt(escape(in.kind))
-              << tdt(in.crs.empty() ? dash : escape(in.crs)) << tdt(escape(in.status))
-              << tdt(in.reason.empty() ? dash : escape(in.reason)) << tdt("<code>" + (in.sha256.empty() ? dash : escape(in.sha256)) + "</code>")
-              << "</tr>\n";
+    page.html << "<tr>" << tdt(escape(in.name)) << tdt(in.plots.empty() ? dash : escape(in.plots))
+              << tdt(escape(in.kind)) << tdt(in.crs.empty() ? dash : escape(in.crs)) << tdt(escape(in.status))
+              << tdt(in.reason.empty() ? dash : escape(in.reason))
+              << tdt("<code>" + (in.sha256.empty() ? dash : escape(in.sha256)) + "</code>") << "</tr>\n";
   }
   page.html << "</table>\n";
   std::vector<std::string> warnings;
@@ -142,10 +173,13 @@ void write_methods(Page& page, const SeasonReport& r) {
     page.cite("Garwood 1936");
     page.cite("Cochran 1977");
     h << "Intensity (density) of each species in each plot was estimated as the count divided by the plot area, with "
-         "exact Poisson " << level_text(run.confidence) << " confidence limits (Garwood 1936); all species together "
+         "exact Poisson "
+      << level_text(run.confidence)
+      << " confidence limits (Garwood 1936); all species together "
          "form the superposed process. Plots of every file were pooled per species as the sum of counts over the sum "
          "of areas; a Pearson X<sup>2</sup> test asked whether the plots share one intensity (Monte Carlo p-value from "
-         << run.simulations << " multinomial draws where an expected count is below 5), and where they differ the "
+      << run.simulations
+      << " multinomial draws where an expected count is below 5), and where they differ the "
          "between-plot ratio-estimator interval (Cochran 1977) replaces the Poisson one. Detection: "
       << escape(run.detection) << ". ";
   }
@@ -171,9 +205,11 @@ void write_methods(Page& page, const SeasonReport& r) {
     h << ", and Ripley's L function with " << (run.pair_correction == "border" ? "border" : "Ripley's (1977) isotropic")
       << " edge correction";
     if (run.distance_correction == "kaplan-meier") page.cite("Baddeley & Gill 1997");
-    h << " (G and F with " << (run.distance_correction == "border" ? "border" : "Kaplan-Meier (Baddeley &amp; Gill 1997)")
+    h << " (G and F with "
+      << (run.distance_correction == "border" ? "border" : "Kaplan-Meier (Baddeley &amp; Gill 1997)")
       << " correction), up to "
-      << (run.rmax_m ? format_general(*run.rmax_m) + " m" : std::string("the smaller of a quarter of the window's shorter side and 4/&radic;&lambda;"))
+      << (run.rmax_m ? format_general(*run.rmax_m) + " m"
+                     : std::string("the smaller of a quarter of the window's shorter side and 4/&radic;&lambda;"))
       << ". " << run.simulations
       << " binomial-process simulations (same n, same window) gave Monte Carlo envelopes and global tests: maximum "
          "absolute deviation (MAD) and Diggle-Cressie-Loosmore-Ford (DCLF; Loosmore &amp; Ford 2006), each curve "
@@ -218,8 +254,10 @@ void write_pooled(Page& page, const SeasonReport& r) {
     if (p.homogeneity) {
       const HomogeneityTest& t = *p.homogeneity;
       page.html << td(format_fixed(t.chi_square.statistic, 2)) << td(format_fixed(t.chi_square.df, 0))
-                << td(format_p_value(t.p_value) + (t.monte_carlo ? " (MC)" : "")) << td(format_fixed(t.dispersion_ratio, 2))
-                << td(t.significant ? "<strong>" + interval(t.corrected_between_plot_ci) + "</strong>" : interval(t.corrected_between_plot_ci));
+                << td(format_p_value(t.p_value) + (t.monte_carlo ? " (MC)" : ""))
+                << td(format_fixed(t.dispersion_ratio, 2))
+                << td(t.significant ? "<strong>" + interval(t.corrected_between_plot_ci) + "</strong>"
+                                    : interval(t.corrected_between_plot_ci));
     } else {
       page.html << td(dash) << td(dash) << td(dash) << td(dash) << td(dash);
     }
@@ -277,8 +315,9 @@ void write_randomness(Page& page, const SeasonReport& r) {
                "metres; (MC) = Monte Carlo p-value. The verdict follows the DCLF test.</p>\n";
   if (r.interactions.empty()) return;
   page.section("between-species", "Between species (random labelling)");
-  page.html << "<table>" << header_row({"file", "plot", "species a", "species b", "n a", "n b", "DCLF p", "direction",
-                                        "cross-L leaves the global envelope at"});
+  page.html << "<table>"
+            << header_row({"file", "plot", "species a", "species b", "n a", "n b", "DCLF p", "direction",
+                           "cross-L leaves the global envelope at"});
   for (const auto& i : r.interactions) {
     const std::string ranges = departure_text(i.departures, "association", "segregation");
     page.html << "<tr>" << tdt(escape(i.file)) << tdt(escape(i.plot)) << tdt(escape(i.species_a))
@@ -299,8 +338,8 @@ void write_transects(Page& page, const SeasonReport& r) {
   page.html << "<table>"
             << header_row({"file", "species", "stratum", "detection model", "n", lines ? "effort (km)" : "visits",
                            lines ? "ESW (m)" : "effective radius (m)", "P<sub>a</sub>", "density (per " + unit + ")",
-                           "CV", level + " interval (per " + unit + ")", level + " bootstrap interval (per " + unit + ")",
-                           "GOF X<sup>2</sup> p"});
+                           "CV", level + " interval (per " + unit + ")",
+                           level + " bootstrap interval (per " + unit + ")", "GOF X<sup>2</sup> p"});
   for (const auto& t : r.transects) {
     page.html << "<tr>" << tdt(escape(t.file)) << tdt(species_cell(t.species)) << tdt(species_cell(t.stratum))
               << tdt(escape(t.model)) << td(std::to_string(t.n)) << td(num(t.effort)) << td(num(t.effective_width_m))
@@ -365,10 +404,13 @@ std::string season_report_html(const SeasonReport& r, const FigureSource& figure
   const SeasonRun& run = r.run;
   h << "<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\"><title>stipple season report</title>\n"
        "<style>body{font-family:'DejaVu Sans',sans-serif;margin:2em auto;max-width:1100px;color:#222;line-height:1.4}"
-       "table{border-collapse:collapse;margin:1em 0;font-size:0.85em}th,td{border:1px solid #bbb;padding:3px 6px;text-align:right}"
+       "table{border-collapse:collapse;margin:1em 0;font-size:0.85em}th,td{border:1px solid #bbb;padding:3px "
+       "6px;text-align:right}"
        "th{background:#e8eef4}td.t{text-align:left}h2{border-bottom:2px solid #0072b2;padding-bottom:3px}"
-       ".figs{display:flex;flex-wrap:wrap}.figs figure{width:48%;margin:1%}.figs svg{width:100%;height:auto;border:1px solid #ddd}"
-       ".legend{font-size:0.85em;color:#444}.caution{background:#fff4e0;border-left:4px solid #e69f00;padding:0.5em 1em}"
+       ".figs{display:flex;flex-wrap:wrap}.figs figure{width:48%;margin:1%}.figs svg{width:100%;height:auto;border:1px "
+       "solid #ddd}"
+       ".legend{font-size:0.85em;color:#444}.caution{background:#fff4e0;border-left:4px solid #e69f00;padding:0.5em "
+       "1em}"
        "ul.warn li{color:#8a4b00}code{background:#f2f2f2;padding:1px 3px}</style></head><body>\n";
   h << "<h1>stipple season report</h1>\n";
   std::size_t ok = 0;
@@ -431,7 +473,8 @@ std::vector<SeasonRandomnessRow> season_randomness_rows(const std::string& file,
 std::vector<SeasonInteractionRow> season_interaction_rows(const std::string& file, const RandomnessResult& result) {
   std::vector<SeasonInteractionRow> rows;
   for (const auto& i : result.interactions)
-    rows.push_back({file, i.plot, i.species_a, i.species_b, i.n_a, i.n_b, i.p_value, i.direction, i.cross_l.departures});
+    rows.push_back(
+        {file, i.plot, i.species_a, i.species_b, i.n_a, i.n_b, i.p_value, i.direction, i.cross_l.departures});
   return rows;
 }
 
@@ -450,8 +493,8 @@ std::vector<SeasonTransectRow> season_transect_rows(const std::string& file, con
     row.n = e.n;
     row.lines = lines;
     row.effort = e.effort;
-    row.effective_width_m = lines ? e.fit.effective_strip_width_m
-                                  : std::sqrt(e.fit.effective_area_m2 / boost::math::double_constants::pi);
+    row.effective_width_m =
+        lines ? e.fit.effective_strip_width_m : std::sqrt(e.fit.effective_area_m2 / boost::math::double_constants::pi);
     row.detection_probability = e.fit.detection_probability;
     row.density = e.density;
     if (std::isfinite(e.density_cv)) row.density_cv = e.density_cv;

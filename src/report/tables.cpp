@@ -9,10 +9,16 @@ namespace stipple {
 
 namespace {
 
-std::string v(double x) { return format_round_trip(x); }
-std::string v(const std::optional<double>& x) { return x ? format_round_trip(*x) : std::string(); }
+std::string v(double x) {
+  return format_round_trip(x);
+}
+std::string v(const std::optional<double>& x) {
+  return x ? format_round_trip(*x) : std::string();
+}
 // NaN marks "no value" in some results (e.g. the border Clark-Evans normal p).
-std::string finite(double x) { return std::isfinite(x) ? format_round_trip(x) : std::string(); }
+std::string finite(double x) {
+  return std::isfinite(x) ? format_round_trip(x) : std::string();
+}
 
 std::string csv_line(const std::vector<std::string>& cells, const std::string* file) {
   std::string line;
@@ -57,20 +63,44 @@ std::string departure_text(const std::vector<Departure>& departures, const char*
 
 Table density_rows(const DensityResult& result) {
   Table t;
-  t.columns = {"scope", "plot", "species", "count", "area", "unit", "intensity", "ci_low", "ci_high",
-               "detection_probability", "corrected_intensity", "corrected_ci_low", "corrected_ci_high",
-               "correction_method", "homogeneity_statistic", "homogeneity_df", "homogeneity_p_value"};
+  t.columns = {"scope",
+               "plot",
+               "species",
+               "count",
+               "area",
+               "unit",
+               "intensity",
+               "ci_low",
+               "ci_high",
+               "detection_probability",
+               "corrected_intensity",
+               "corrected_ci_low",
+               "corrected_ci_high",
+               "correction_method",
+               "homogeneity_statistic",
+               "homogeneity_df",
+               "homogeneity_p_value"};
   const std::string unit(unit_name(result.unit));
   for (const auto& e : result.estimates) {
-    t.rows.push_back({"plot", e.plot, e.species.value_or(""), std::to_string(e.count), v(e.area), unit,
-                      v(e.intensity), v(e.ci.lower), v(e.ci.upper), v(e.corrected.detection_probability),
-                      v(e.corrected.intensity), v(e.corrected.ci.lower), v(e.corrected.ci.upper),
+    t.rows.push_back({"plot", e.plot, e.species.value_or(""), std::to_string(e.count), v(e.area), unit, v(e.intensity),
+                      v(e.ci.lower), v(e.ci.upper), v(e.corrected.detection_probability), v(e.corrected.intensity),
+                      v(e.corrected.ci.lower), v(e.corrected.ci.upper),
                       std::string(correction_method_name(e.corrected.method)), "", "", ""});
   }
   for (const auto& p : result.pooled) {
-    std::vector<std::string> row{"pooled", "", p.species.value_or(""), std::to_string(p.count), v(p.area), unit,
-                                 v(p.intensity), v(p.ci.lower), v(p.ci.upper), v(p.corrected.detection_probability),
-                                 v(p.corrected.intensity), v(p.corrected.ci.lower), v(p.corrected.ci.upper),
+    std::vector<std::string> row{"pooled",
+                                 "",
+                                 p.species.value_or(""),
+                                 std::to_string(p.count),
+                                 v(p.area),
+                                 unit,
+                                 v(p.intensity),
+                                 v(p.ci.lower),
+                                 v(p.ci.upper),
+                                 v(p.corrected.detection_probability),
+                                 v(p.corrected.intensity),
+                                 v(p.corrected.ci.lower),
+                                 v(p.corrected.ci.upper),
                                  std::string(correction_method_name(p.corrected.method))};
     if (p.homogeneity) {
       row.push_back(v(p.homogeneity->chi_square.statistic));
@@ -86,17 +116,41 @@ Table density_rows(const DensityResult& result) {
 
 Table pooled_rows(const DensityResult& result) {
   Table t;
-  t.columns = {"species", "plots", "count", "area", "unit", "intensity", "ci_low", "ci_high",
-               "detection_probability", "corrected_intensity", "corrected_ci_low", "corrected_ci_high",
-               "homogeneity_statistic", "homogeneity_df", "homogeneity_p", "homogeneity_p_method",
-               "dispersion_ratio", "between_plot_ci_low", "between_plot_ci_high", "corrected_between_plot_ci_low",
+  t.columns = {"species",
+               "plots",
+               "count",
+               "area",
+               "unit",
+               "intensity",
+               "ci_low",
+               "ci_high",
+               "detection_probability",
+               "corrected_intensity",
+               "corrected_ci_low",
+               "corrected_ci_high",
+               "homogeneity_statistic",
+               "homogeneity_df",
+               "homogeneity_p",
+               "homogeneity_p_method",
+               "dispersion_ratio",
+               "between_plot_ci_low",
+               "between_plot_ci_high",
+               "corrected_between_plot_ci_low",
                "corrected_between_plot_ci_high"};
   const std::string unit(unit_name(result.unit));
   for (const auto& p : result.pooled) {
-    std::vector<std::string> row{p.species.value_or(""), std::to_string(p.plots), std::to_string(p.count), v(p.area),
-                                 unit, v(p.intensity), v(p.ci.lower), v(p.ci.upper),
-                                 v(p.corrected.detection_probability), v(p.corrected.intensity),
-                                 v(p.corrected.ci.lower), v(p.corrected.ci.upper)};
+    std::vector<std::string> row{p.species.value_or(""),
+                                 std::to_string(p.plots),
+                                 std::to_string(p.count),
+                                 v(p.area),
+                                 unit,
+                                 v(p.intensity),
+                                 v(p.ci.lower),
+                                 v(p.ci.upper),
+                                 v(p.corrected.detection_probability),
+                                 v(p.corrected.intensity),
+                                 v(p.corrected.ci.lower),
+                                 v(p.corrected.ci.upper)};
     if (p.homogeneity) {
       const HomogeneityTest& h = *p.homogeneity;
       row.insert(row.end(), {v(h.chi_square.statistic), v(h.chi_square.df), v(h.p_value),
@@ -113,10 +167,26 @@ Table pooled_rows(const DensityResult& result) {
 
 Table randomness_rows(const RandomnessResult& result) {
   Table t;
-  t.columns = {"plot", "species", "n", "quadrat_statistic", "quadrat_df", "quadrat_p", "quadrat_p_method",
-               "clark_evans_ratio", "clark_evans_z", "clark_evans_p", "clark_evans_p_method",
-               "clark_evans_edge_correction", "l_rmax", "l_mad_p", "l_dclf_p", "l_erl_p", "l_departures",
-               "simulations", "verdict", "verdict_basis"};
+  t.columns = {"plot",
+               "species",
+               "n",
+               "quadrat_statistic",
+               "quadrat_df",
+               "quadrat_p",
+               "quadrat_p_method",
+               "clark_evans_ratio",
+               "clark_evans_z",
+               "clark_evans_p",
+               "clark_evans_p_method",
+               "clark_evans_edge_correction",
+               "l_rmax",
+               "l_mad_p",
+               "l_dclf_p",
+               "l_erl_p",
+               "l_departures",
+               "simulations",
+               "verdict",
+               "verdict_basis"};
   for (const auto& g : result.results) {
     std::vector<std::string> row{g.plot, g.species.value_or(""), std::to_string(g.n)};
     if (g.quadrat) {
@@ -149,8 +219,8 @@ Table randomness_rows(const RandomnessResult& result) {
 
 Table interaction_rows(const RandomnessResult& result) {
   Table t;
-  t.columns = {"plot", "species_a", "species_b", "n_a", "n_b", "rmax", "dclf_p", "mad_p", "direction",
-               "departures", "simulations"};
+  t.columns = {"plot",   "species_a", "species_b", "n_a",        "n_b",        "rmax",
+               "dclf_p", "mad_p",     "direction", "departures", "simulations"};
   for (const auto& i : result.interactions) {
     t.rows.push_back({i.plot, i.species_a, i.species_b, std::to_string(i.n_a), std::to_string(i.n_b), v(i.rmax_m),
                       v(i.p_value), v(i.cross_l.mad_p_value), i.direction,
@@ -162,27 +232,60 @@ Table interaction_rows(const RandomnessResult& result) {
 
 Table transect_rows(const TransectResult& result) {
   Table t;
-  t.columns = {"species", "stratum", "model", "adjustment_terms", "n", "effort", "truncation", "esw",
-               "effective_area", "detection_probability", "encounter_rate", "encounter_rate_cv",
-               "mean_cluster_size", "density", "density_cv", "density_ci_low", "density_ci_high",
-               "bootstrap_ci_low", "bootstrap_ci_high", "bootstrap_cv", "abundance", "abundance_ci_low",
-               "abundance_ci_high", "confidence", "unit"};
+  t.columns = {"species",
+               "stratum",
+               "model",
+               "adjustment_terms",
+               "n",
+               "effort",
+               "truncation",
+               "esw",
+               "effective_area",
+               "detection_probability",
+               "encounter_rate",
+               "encounter_rate_cv",
+               "mean_cluster_size",
+               "density",
+               "density_cv",
+               "density_ci_low",
+               "density_ci_high",
+               "bootstrap_ci_low",
+               "bootstrap_ci_high",
+               "bootstrap_cv",
+               "abundance",
+               "abundance_ci_low",
+               "abundance_ci_high",
+               "confidence",
+               "unit"};
   for (const auto& e : result.results) {
     const DetectionModel& m = e.fit.function.model();
-    t.rows.push_back(
-        {e.species.value_or(""), e.stratum.value_or(""), std::string(key_function_name(m.key)),
-         m.adjustment == Adjustment::none ? std::string()
-                                          : std::to_string(m.terms) + " " + std::string(adjustment_name(m.adjustment)),
-         std::to_string(e.n), v(e.effort), v(result.truncation_m),
-         result.kind == TransectKind::line ? v(e.fit.effective_strip_width_m) : std::string(),
-         result.kind == TransectKind::point ? v(e.fit.effective_area_m2) : std::string(),
-         v(e.fit.detection_probability), v(e.encounter.rate), finite(e.encounter.cv), v(e.mean_size), v(e.density),
-         finite(e.density_cv), v(e.density_ci.lower), v(e.density_ci.upper),
-         e.bootstrap_ci ? v(e.bootstrap_ci->lower) : std::string(),
-         e.bootstrap_ci ? v(e.bootstrap_ci->upper) : std::string(), v(e.bootstrap_cv), v(e.abundance),
-         e.abundance_ci ? v(e.abundance_ci->lower) : std::string(),
-         e.abundance_ci ? v(e.abundance_ci->upper) : std::string(), v(result.confidence),
-         std::string(unit_name(result.unit))});
+    t.rows.push_back({e.species.value_or(""),
+                      e.stratum.value_or(""),
+                      std::string(key_function_name(m.key)),
+                      m.adjustment == Adjustment::none
+                          ? std::string()
+                          : std::to_string(m.terms) + " " + std::string(adjustment_name(m.adjustment)),
+                      std::to_string(e.n),
+                      v(e.effort),
+                      v(result.truncation_m),
+                      result.kind == TransectKind::line ? v(e.fit.effective_strip_width_m) : std::string(),
+                      result.kind == TransectKind::point ? v(e.fit.effective_area_m2) : std::string(),
+                      v(e.fit.detection_probability),
+                      v(e.encounter.rate),
+                      finite(e.encounter.cv),
+                      v(e.mean_size),
+                      v(e.density),
+                      finite(e.density_cv),
+                      v(e.density_ci.lower),
+                      v(e.density_ci.upper),
+                      e.bootstrap_ci ? v(e.bootstrap_ci->lower) : std::string(),
+                      e.bootstrap_ci ? v(e.bootstrap_ci->upper) : std::string(),
+                      v(e.bootstrap_cv),
+                      v(e.abundance),
+                      e.abundance_ci ? v(e.abundance_ci->lower) : std::string(),
+                      e.abundance_ci ? v(e.abundance_ci->upper) : std::string(),
+                      v(result.confidence),
+                      std::string(unit_name(result.unit))});
   }
   return t;
 }

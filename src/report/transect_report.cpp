@@ -14,8 +14,8 @@
 #include "json_text.hpp"
 #include "report/records.hpp"
 #include "stipple/format.hpp"
-#include "stipple/report/tables.hpp"
 #include "stipple/report/figure.hpp"
+#include "stipple/report/tables.hpp"
 #include "stipple/version.hpp"
 
 namespace stipple {
@@ -25,9 +25,15 @@ namespace {
 using Json = nlohmann::ordered_json;
 constexpr double pi = boost::math::double_constants::pi;
 
-Json num(double v) { return std::isfinite(v) ? Json(v) : Json(nullptr); }
-Json opt(const std::optional<std::string>& s) { return s ? Json(*s) : Json(nullptr); }
-Json interval(const Interval& i) { return Json::array({num(i.lower), num(i.upper)}); }
+Json num(double v) {
+  return std::isfinite(v) ? Json(v) : Json(nullptr);
+}
+Json opt(const std::optional<std::string>& s) {
+  return s ? Json(*s) : Json(nullptr);
+}
+Json interval(const Interval& i) {
+  return Json::array({num(i.lower), num(i.upper)});
+}
 
 std::string model_text(const DetectionModel& m) {
   std::string s(key_function_name(m.key));
@@ -44,7 +50,9 @@ Json adjustments_json(const DetectionModel& m) {
   return list;
 }
 
-std::string label(const std::optional<std::string>& s, const char* all) { return s ? *s : all; }
+std::string label(const std::optional<std::string>& s, const char* all) {
+  return s ? *s : all;
+}
 
 }  // namespace
 
@@ -70,7 +78,8 @@ Json transect_estimate_record(const TransectResult& result, const TransectEstima
   j["truncation"] = num(result.truncation_m);
   j["esw"] = result.kind == TransectKind::line ? num(e.fit.effective_strip_width_m) : Json(nullptr);
   j["effective_area"] = result.kind == TransectKind::point ? num(e.fit.effective_area_m2) : Json(nullptr);
-  j["effective_radius"] = result.kind == TransectKind::point ? num(std::sqrt(e.fit.effective_area_m2 / pi)) : Json(nullptr);
+  j["effective_radius"] =
+      result.kind == TransectKind::point ? num(std::sqrt(e.fit.effective_area_m2 / pi)) : Json(nullptr);
   j["detection_probability"] = num(e.fit.detection_probability);
   j["detection_probability_cv"] = num(e.fit.detection_probability_cv);
   j["encounter_rate"] = e.encounter.rate;
@@ -85,7 +94,8 @@ Json transect_estimate_record(const TransectResult& result, const TransectEstima
   j["abundance_ci"] = e.abundance_ci ? interval(*e.abundance_ci) : Json(nullptr);
   j["bootstrap_ci"] = e.bootstrap_ci ? interval(*e.bootstrap_ci) : Json(nullptr);
   j["bootstrap_cv"] = e.bootstrap_cv ? num(*e.bootstrap_cv) : Json(nullptr);
-  j["gof"] = {{"chi_square", e.gof.chi_square}, {"chi_square_df", e.gof.chi_square_df},
+  j["gof"] = {{"chi_square", e.gof.chi_square},
+              {"chi_square_df", e.gof.chi_square_df},
               {"chi_square_p", e.gof.chi_square_p ? num(*e.gof.chi_square_p) : Json(nullptr)},
               {"ks_p", e.gof.ks_p ? num(*e.gof.ks_p) : Json(nullptr)},
               {"cvm_p", e.gof.cvm_p ? num(*e.gof.cvm_p) : Json(nullptr)}};
@@ -132,8 +142,11 @@ std::string transect_json(const InputFacts& input, const TransectResult& result)
   doc["results"] = std::move(results);
   Json compared = Json::array();
   for (const auto& c : result.models_compared)
-    compared.push_back({{"species", opt(c.species)}, {"model", std::string(key_function_name(c.model.key))},
-                        {"adjustments", adjustments_json(c.model)}, {"aic", c.aic}, {"aicc", num(c.aicc)},
+    compared.push_back({{"species", opt(c.species)},
+                        {"model", std::string(key_function_name(c.model.key))},
+                        {"adjustments", adjustments_json(c.model)},
+                        {"aic", c.aic},
+                        {"aicc", num(c.aicc)},
                         {"delta_aic", c.delta_aic}});
   doc["models_compared"] = std::move(compared);
   Json notes = Json::array();
@@ -154,15 +167,24 @@ std::string transect_table(const InputFacts& input, const TransectSurvey& survey
   out << "  transects: " << input.transects_label << " (" << survey.transects.size() << ")\n";
   out << "  CRS:       " << input.crs.code << " (" << input.crs.name << "), " << input.crs.reason << "\n";
   out << "  truncation " << format_significant(result.truncation_m, 4) << " m (" << result.truncated
-      << " detections beyond it); density per " << unit << "; "
-      << format_general(100.0 * result.confidence) << "% log-normal intervals, Satterthwaite df\n\n";
+      << " detections beyond it); density per " << unit << "; " << format_general(100.0 * result.confidence)
+      << "% log-normal intervals, Satterthwaite df\n\n";
   const double percent = 100.0 * result.confidence;
   const std::string level = format_fixed(percent, percent == std::round(percent) ? 0 : 1) + "%";
   bool bootstrapped = false;
   for (const auto& e : result.results) bootstrapped = bootstrapped || e.bootstrap_ci.has_value();
-  std::vector<std::string> columns{"species", "stratum", "model", "n", lines ? "effort_km" : "visits",
-                                   lines ? "n/L" : "n/visit", lines ? "ESW_m" : "rho_m", "P_a", "E(s)",
-                                   "density", "CV", level + " interval"};
+  std::vector<std::string> columns{"species",
+                                   "stratum",
+                                   "model",
+                                   "n",
+                                   lines ? "effort_km" : "visits",
+                                   lines ? "n/L" : "n/visit",
+                                   lines ? "ESW_m" : "rho_m",
+                                   "P_a",
+                                   "E(s)",
+                                   "density",
+                                   "CV",
+                                   level + " interval"};
   if (bootstrapped) columns.push_back(level + " bootstrap");
   columns.push_back("abundance");
   TextTable table(columns, 3);
@@ -171,10 +193,16 @@ std::string transect_table(const InputFacts& input, const TransectSurvey& survey
   };
   for (const auto& e : result.results) {
     const double width = lines ? e.fit.effective_strip_width_m : std::sqrt(e.fit.effective_area_m2 / pi);
-    std::vector<std::string> row{label(e.species, "(all)"), label(e.stratum, "(all)"), model_text(e.fit.function.model()),
-                                 std::to_string(e.n), format_significant(e.effort, 4), format_significant(e.encounter.rate, 4),
-                                 format_significant(width, 4), format_fixed(e.fit.detection_probability, 3),
-                                 format_significant(e.mean_size, 3), format_significant(e.density, 4),
+    std::vector<std::string> row{label(e.species, "(all)"),
+                                 label(e.stratum, "(all)"),
+                                 model_text(e.fit.function.model()),
+                                 std::to_string(e.n),
+                                 format_significant(e.effort, 4),
+                                 format_significant(e.encounter.rate, 4),
+                                 format_significant(width, 4),
+                                 format_fixed(e.fit.detection_probability, 3),
+                                 format_significant(e.mean_size, 3),
+                                 format_significant(e.density, 4),
                                  std::isfinite(e.density_cv) ? format_fixed(e.density_cv, 3) : "-",
                                  interval_text(e.density_ci)};
     if (bootstrapped) row.push_back(e.bootstrap_ci ? interval_text(*e.bootstrap_ci) : "-");
@@ -182,11 +210,13 @@ std::string transect_table(const InputFacts& input, const TransectSurvey& survey
     table.add_row(std::move(row));
   }
   out << table.render();
-  out << "  " << (lines ? "n/L: detections per km; ESW_m: effective strip half-width (m)"
-                        : "n/visit: detections per visit; rho_m: effective detection radius (m)")
+  out << "  "
+      << (lines ? "n/L: detections per km; ESW_m: effective strip half-width (m)"
+                : "n/visit: detections per visit; rho_m: effective detection radius (m)")
       << "; P_a: probability of detecting an animal within the truncation distance; E(s): mean cluster size;\n"
-         "  density per " << unit << "; CV: its coefficient of variation (delta method); interval: " << level
-      << " log-normal" << (bootstrapped ? "; bootstrap: " + level + " percentile interval over resampled transects" : std::string())
+         "  density per "
+      << unit << "; CV: its coefficient of variation (delta method); interval: " << level << " log-normal"
+      << (bootstrapped ? "; bootstrap: " + level + " percentile interval over resampled transects" : std::string())
       << "\n\n";
   out << "Goodness of fit and model selection\n";
   TextTable gof({"species", "model", "AIC", "dAIC", "chi2 p", "KS p", "CvM p"}, 2);
@@ -196,8 +226,8 @@ std::string transect_table(const InputFacts& input, const TransectSurvey& survey
     if (e.stratum || shown.count(key)) continue;
     shown.insert(key);
     const auto p = [](const std::optional<double>& v) { return v ? format_p_value(*v) : std::string("-"); };
-    gof.add_row({key, model_text(e.fit.function.model()), format_fixed(e.fit.aic, 2), "0",
-                 p(e.gof.chi_square_p), p(e.gof.ks_p), p(e.gof.cvm_p)});
+    gof.add_row({key, model_text(e.fit.function.model()), format_fixed(e.fit.aic, 2), "0", p(e.gof.chi_square_p),
+                 p(e.gof.ks_p), p(e.gof.cvm_p)});
     for (const auto& c : result.models_compared) {
       if (label(c.species, "(all)") != key || c.delta_aic == 0.0) continue;
       gof.add_row({"", model_text(c.model), format_fixed(c.aic, 2), format_fixed(c.delta_aic, 2), "", "", ""});
@@ -281,13 +311,13 @@ std::vector<FigureFile> transect_figures(const TransectSurvey& survey, const Tra
     detection.x_label = lines ? "perpendicular distance (m)" : "radial distance (m)";
     detection.y_label = "detection probability g(x)";
     detection.caption = "n = " + std::to_string(fit.n) + "; " + (lines ? "ESW " : "effective area ") +
-                        format_significant(effective, 4) + (lines ? " m" : " m2") + "; P_a = " +
-                        format_fixed(fit.detection_probability, 3) +
+                        format_significant(effective, 4) + (lines ? " m" : " m2") +
+                        "; P_a = " + format_fixed(fit.detection_probability, 3) +
                         (gof.chi_square_p ? "; chi-square p = " + format_p_value(*gof.chi_square_p) : std::string());
     detection.series = {bars, curve};
     const std::string stem = namer.stem("detection", {name});
-    manifest += csv_field(stem + ".svg") + "," + csv_field(name) + ",detection function\n" +
-                csv_field(stem + ".png") + "," + csv_field(name) + ",detection function\n";
+    manifest += csv_field(stem + ".svg") + "," + csv_field(name) + ",detection function\n" + csv_field(stem + ".png") +
+                "," + csv_field(name) + ",detection function\n";
     const std::string shows = "detection function of " + name;
     files.push_back({stem + ".svg", chart_svg(detection), shows});
     files.push_back({stem + ".png", chart_png(detection), shows});
@@ -307,15 +337,15 @@ std::vector<FigureFile> transect_figures(const TransectSurvey& survey, const Tra
     qq.title = "Q-Q plot - " + name;
     qq.x_label = "fitted cumulative distribution";
     qq.y_label = "empirical cumulative distribution";
-    qq.caption = gof.ks_p ? "Kolmogorov-Smirnov p = " + format_p_value(*gof.ks_p) + ", Cramer-von Mises p = " +
-                                format_p_value(gof.cvm_p.value_or(1.0))
+    qq.caption = gof.ks_p ? "Kolmogorov-Smirnov p = " + format_p_value(*gof.ks_p) +
+                                ", Cramer-von Mises p = " + format_p_value(gof.cvm_p.value_or(1.0))
                           : std::string();
     qq.series = {ChartSeries{ChartSeries::Kind::dashed_line, {0.0, 1.0}, {0.0, 1.0}, {}, 1, "1:1"}, points};
     const std::string qq_stem = namer.stem("qq", {name});
     files.push_back({qq_stem + ".svg", chart_svg(qq), "Q-Q plot of the distances of " + name});
     files.push_back({qq_stem + ".png", chart_png(qq), "Q-Q plot of the distances of " + name});
-    manifest += csv_field(qq_stem + ".svg") + "," + csv_field(name) + ",Q-Q plot\n" +
-                csv_field(qq_stem + ".png") + "," + csv_field(name) + ",Q-Q plot\n";
+    manifest += csv_field(qq_stem + ".svg") + "," + csv_field(name) + ",Q-Q plot\n" + csv_field(qq_stem + ".png") +
+                "," + csv_field(name) + ",Q-Q plot\n";
   }
   // Which file shows which species: names are shortened or hashed when needed.
   if (!files.empty()) files.push_back({"figures.csv", manifest, ""});

@@ -25,8 +25,7 @@ std::vector<Point> simulate_binomial(const Window& window, std::size_t n, Engine
   return points;
 }
 
-std::vector<Point> simulate_poisson(const Window& window, double intensity_per_m2,
-                                    Engine& engine) {
+std::vector<Point> simulate_poisson(const Window& window, double intensity_per_m2, Engine& engine) {
   if (!(intensity_per_m2 >= 0.0)) throw AnalysisError("intensity must be >= 0");
   const double mean = intensity_per_m2 * window.area_m2();
   if (mean <= 0.0) return {};
@@ -34,8 +33,7 @@ std::vector<Point> simulate_poisson(const Window& window, double intensity_per_m
   return simulate_binomial(window, count(engine), engine);
 }
 
-std::vector<Point> thin(const std::vector<Point>& points, double keep_probability,
-                        Engine& engine) {
+std::vector<Point> thin(const std::vector<Point>& points, double keep_probability, Engine& engine) {
   if (!(keep_probability >= 0.0 && keep_probability <= 1.0))
     throw AnalysisError("thinning probability must lie in [0, 1]");
   boost::random::bernoulli_distribution<double> keep(keep_probability);
@@ -60,15 +58,14 @@ Bounds dilate(const Bounds& b, double by) {
 
 }  // namespace
 
-std::vector<Point> simulate_thomas(const Window& window, double kappa_per_m2,
-                                   double mean_offspring, double sigma_m, Engine& engine) {
+std::vector<Point> simulate_thomas(const Window& window, double kappa_per_m2, double mean_offspring, double sigma_m,
+                                   Engine& engine) {
   if (!(kappa_per_m2 >= 0.0 && mean_offspring >= 0.0 && sigma_m > 0.0))
     throw AnalysisError("Thomas process needs kappa >= 0, mu >= 0 and sigma > 0");
   const Bounds outer = dilate(window.bounds(), 4.0 * sigma_m);
   boost::random::poisson_distribution<std::size_t, double> parents(
       std::max(1e-12, kappa_per_m2 * outer.width() * outer.height()));
-  boost::random::poisson_distribution<std::size_t, double> offspring(
-      std::max(1e-12, mean_offspring));
+  boost::random::poisson_distribution<std::size_t, double> offspring(std::max(1e-12, mean_offspring));
   boost::random::normal_distribution<double> step(0.0, sigma_m);
   std::vector<Point> points;
   const std::size_t n_parents = parents(engine);
@@ -84,8 +81,8 @@ std::vector<Point> simulate_thomas(const Window& window, double kappa_per_m2,
   return points;
 }
 
-std::vector<Point> simulate_matern_ii(const Window& window, double intensity_per_m2,
-                                      double hard_core_m, Engine& engine) {
+std::vector<Point> simulate_matern_ii(const Window& window, double intensity_per_m2, double hard_core_m,
+                                      Engine& engine) {
   if (!(intensity_per_m2 >= 0.0 && hard_core_m >= 0.0))
     throw AnalysisError("Matern II process needs intensity >= 0 and a hard core >= 0");
   const Bounds outer = dilate(window.bounds(), hard_core_m);
@@ -112,9 +109,8 @@ std::vector<Point> simulate_matern_ii(const Window& window, double intensity_per
   return kept;
 }
 
-std::vector<Point> simulate_sequential_inhibition(const Window& window, std::size_t n,
-                                                  double inhibition_m, Engine& engine,
-                                                  std::size_t max_attempts) {
+std::vector<Point> simulate_sequential_inhibition(const Window& window, std::size_t n, double inhibition_m,
+                                                  Engine& engine, std::size_t max_attempts) {
   std::vector<Point> points;
   const double d2 = inhibition_m * inhibition_m;
   std::size_t failures = 0;

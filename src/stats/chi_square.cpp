@@ -14,8 +14,7 @@ namespace stipple {
 
 namespace {
 
-double statistic_of(const std::vector<std::uint64_t>& observed,
-                    const std::vector<double>& expected) {
+double statistic_of(const std::vector<std::uint64_t>& observed, const std::vector<double>& expected) {
   double x2 = 0.0;
   for (std::size_t i = 0; i < observed.size(); ++i) {
     if (expected[i] <= 0.0) continue;
@@ -66,8 +65,8 @@ Compacted compact(const std::vector<std::vector<std::uint64_t>>& table) {
 }
 
 double contingency_statistic(const std::vector<std::vector<std::uint64_t>>& table,
-                             const std::vector<std::uint64_t>& rows,
-                             const std::vector<std::uint64_t>& cols, std::uint64_t total) {
+                             const std::vector<std::uint64_t>& rows, const std::vector<std::uint64_t>& cols,
+                             std::uint64_t total) {
   double x2 = 0.0;
   const double n = static_cast<double>(total);
   for (std::size_t i = 0; i < rows.size(); ++i) {
@@ -87,10 +86,8 @@ double chi_square_upper_tail(double statistic, double df) {
   return boost::math::cdf(boost::math::complement(law, std::max(0.0, statistic)));
 }
 
-ChiSquareTest pearson_goodness_of_fit(const std::vector<std::uint64_t>& observed,
-                                      const std::vector<double>& expected) {
-  if (observed.size() != expected.size())
-    throw AnalysisError("observed and expected counts differ in length");
+ChiSquareTest pearson_goodness_of_fit(const std::vector<std::uint64_t>& observed, const std::vector<double>& expected) {
+  if (observed.size() != expected.size()) throw AnalysisError("observed and expected counts differ in length");
   ChiSquareTest test;
   std::size_t cells = 0;
   double min_expected = 0.0;
@@ -110,8 +107,7 @@ ChiSquareTest pearson_goodness_of_fit(const std::vector<std::uint64_t>& observed
   return test;
 }
 
-MonteCarloTails multinomial_monte_carlo(const std::vector<std::uint64_t>& observed,
-                                        const std::vector<double>& expected,
+MonteCarloTails multinomial_monte_carlo(const std::vector<std::uint64_t>& observed, const std::vector<double>& expected,
                                         std::size_t simulations, Engine& engine) {
   const auto total = std::accumulate(observed.begin(), observed.end(), std::uint64_t{0});
   const double expected_total = std::accumulate(expected.begin(), expected.end(), 0.0);
@@ -137,10 +133,8 @@ MonteCarloTails multinomial_monte_carlo(const std::vector<std::uint64_t>& observ
         remaining = 0;
         continue;
       }
-      const double p = remaining_p > 0.0 ? std::clamp(probabilities[i] / remaining_p, 0.0, 1.0)
-                                         : 0.0;
-      boost::random::binomial_distribution<std::int64_t, double> binomial(
-          static_cast<std::int64_t>(remaining), p);
+      const double p = remaining_p > 0.0 ? std::clamp(probabilities[i] / remaining_p, 0.0, 1.0) : 0.0;
+      boost::random::binomial_distribution<std::int64_t, double> binomial(static_cast<std::int64_t>(remaining), p);
       draw[i] = static_cast<std::uint64_t>(binomial(engine));
       remaining -= draw[i];
       remaining_p -= probabilities[i];
@@ -160,8 +154,7 @@ ChiSquareTest pearson_contingency(const std::vector<std::vector<std::uint64_t>>&
   double min_expected = -1.0;
   for (const auto r : c.rows) {
     for (const auto col : c.cols) {
-      const double e = static_cast<double>(r) * static_cast<double>(col) /
-                       static_cast<double>(c.total);
+      const double e = static_cast<double>(r) * static_cast<double>(col) / static_cast<double>(c.total);
       min_expected = min_expected < 0.0 ? e : std::min(min_expected, e);
     }
   }
@@ -170,18 +163,16 @@ ChiSquareTest pearson_contingency(const std::vector<std::vector<std::uint64_t>>&
   return test;
 }
 
-double contingency_monte_carlo_p(const std::vector<std::vector<std::uint64_t>>& table,
-                                 std::size_t simulations, Engine& engine) {
+double contingency_monte_carlo_p(const std::vector<std::vector<std::uint64_t>>& table, std::size_t simulations,
+                                 Engine& engine) {
   const Compacted c = compact(table);
   if (c.rows.size() < 2 || c.cols.size() < 2)
     throw AnalysisError("a contingency test needs at least two non-empty rows and columns");
   const double observed_x2 = contingency_statistic(c.table, c.rows, c.cols, c.total);
   std::vector<std::size_t> labels;
   labels.reserve(c.total);
-  for (std::size_t j = 0; j < c.cols.size(); ++j)
-    labels.insert(labels.end(), c.cols[j], j);
-  std::vector<std::vector<std::uint64_t>> draw(c.rows.size(),
-                                               std::vector<std::uint64_t>(c.cols.size()));
+  for (std::size_t j = 0; j < c.cols.size(); ++j) labels.insert(labels.end(), c.cols[j], j);
+  std::vector<std::vector<std::uint64_t>> draw(c.rows.size(), std::vector<std::uint64_t>(c.cols.size()));
   std::size_t extreme = 0;
   for (std::size_t s = 0; s < simulations; ++s) {
     shuffle(labels, engine);

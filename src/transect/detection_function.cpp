@@ -5,13 +5,13 @@
 #include <numeric>
 
 #include <boost/math/constants/constants.hpp>
+#include <boost/math/distributions/chi_squared.hpp>
 #include <boost/math/quadrature/exp_sinh.hpp>
 #include <boost/math/quadrature/gauss_kronrod.hpp>
 #include <boost/math/special_functions/bessel.hpp>
 #include <boost/math/special_functions/gamma.hpp>
 #include <boost/numeric/ublas/lu.hpp>
 #include <boost/numeric/ublas/matrix.hpp>
-#include <boost/math/distributions/chi_squared.hpp>
 #include <nlopt.hpp>
 
 #include "stipple/error.hpp"
@@ -95,12 +95,10 @@ double objective(unsigned n, const double* x, double* gradient, void* context) {
 
 constexpr std::size_t monotone_grid = 50;
 
-void monotone_constraints(unsigned m, double* result, unsigned n, const double* x, double* gradient,
-                          void* context) {
+void monotone_constraints(unsigned m, double* result, unsigned n, const double* x, double* gradient, void* context) {
   (void)gradient;
   const auto* o = static_cast<const Objective*>(context);
-  const DetectionFunction f(o->model, natural_from_working(o->model, std::vector<double>(x, x + n)),
-                            o->truncation);
+  const DetectionFunction f(o->model, natural_from_working(o->model, std::vector<double>(x, x + n)), o->truncation);
   const double step = o->truncation / static_cast<double>(monotone_grid - 1);
   double previous = f.g(0.0);
   for (std::size_t k = 1; k < monotone_grid; ++k) {
@@ -214,8 +212,7 @@ std::vector<std::string> parameter_names(const DetectionModel& model) {
   return names;
 }
 
-DetectionFunction::DetectionFunction(DetectionModel model, std::vector<double> parameters,
-                                     double truncation_m)
+DetectionFunction::DetectionFunction(DetectionModel model, std::vector<double> parameters, double truncation_m)
     : model_(model), parameters_(std::move(parameters)), truncation_m_(truncation_m) {
   normaliser_ = key(0.0) * series(0.0);
 }
@@ -259,15 +256,17 @@ double DetectionFunction::series(double x) const {
   return sum;
 }
 
-double DetectionFunction::g(double x) const { return key(x) * series(x) / normaliser_; }
+double DetectionFunction::g(double x) const {
+  return key(x) * series(x) / normaliser_;
+}
 
 double DetectionFunction::integral(double a, double b, TransectKind kind) const {
   const auto f = [&](double x) { return kind == TransectKind::line ? g(x) : 2.0 * pi * x * g(x); };
   if (!(b > a)) return 0.0;
   if (std::isinf(b)) {
     boost::math::quadrature::exp_sinh<double> integrator;
-    return integrator.integrate(
-        [&](double x) { return x >= a ? f(x) : 0.0; }, a, std::numeric_limits<double>::infinity());
+    return integrator.integrate([&](double x) { return x >= a ? f(x) : 0.0; }, a,
+                                std::numeric_limits<double>::infinity());
   }
   return boost::math::quadrature::gauss_kronrod<double, 31>::integrate(f, a, b, 12, 1e-11);
 }
@@ -456,8 +455,7 @@ DetectionFit fit_detection_function(const DistanceData& data, const DetectionMod
                         {"truncation"});
   if (n < q + 2)
     throw AnalysisError("too few detections (" + std::to_string(n) + ") to fit a " +
-                        std::string(key_function_name(m.key)) + " model with " + std::to_string(q) +
-                        " parameters");
+                        std::string(key_function_name(m.key)) + " model with " + std::to_string(q) + " parameters");
 
   std::vector<double> warm;
   if (warm_start && warm_start->model().key == m.key && warm_start->model().adjustment == m.adjustment &&
@@ -480,8 +478,8 @@ DetectionFit fit_detection_function(const DistanceData& data, const DetectionMod
   fit.aic = -2.0 * fit.log_likelihood + 2.0 * static_cast<double>(q);
   const double nd = static_cast<double>(n);
   const double qd = static_cast<double>(q);
-  fit.aicc = nd - qd - 1.0 > 0.0 ? fit.aic + 2.0 * qd * (qd + 1.0) / (nd - qd - 1.0)
-                                 : std::numeric_limits<double>::infinity();
+  fit.aicc =
+      nd - qd - 1.0 > 0.0 ? fit.aic + 2.0 * qd * (qd + 1.0) / (nd - qd - 1.0) : std::numeric_limits<double>::infinity();
 
   // Observed information: numerical Hessian of -log L at the optimum, over the parameters
   // not held at a bound (a parameter on its bound is treated as fixed; common practice).
@@ -506,10 +504,14 @@ DetectionFit fit_detection_function(const DistanceData& data, const DetectionMod
         value = (nll(p1) - 2.0 * f0 + nll(m1)) / (h[i] * h[i]);
       } else {
         std::vector<double> pp = theta, pm = theta, mp = theta, mm = theta;
-        pp[i] += h[i]; pp[j] += h[j];
-        pm[i] += h[i]; pm[j] -= h[j];
-        mp[i] -= h[i]; mp[j] += h[j];
-        mm[i] -= h[i]; mm[j] -= h[j];
+        pp[i] += h[i];
+        pp[j] += h[j];
+        pm[i] += h[i];
+        pm[j] -= h[j];
+        mp[i] -= h[i];
+        mp[j] += h[j];
+        mm[i] -= h[i];
+        mm[j] -= h[j];
         value = (nll(pp) - nll(pm) - nll(mp) + nll(mm)) / (4.0 * h[i] * h[j]);
       }
       hessian[a][b] = hessian[b][a] = value;
@@ -526,11 +528,12 @@ DetectionFit fit_detection_function(const DistanceData& data, const DetectionMod
     return data.kind == TransectKind::line ? f.effective_strip_width() : f.effective_area();
   };
   const double value = effective(theta);
-  if (data.kind == TransectKind::line) fit.effective_strip_width_m = value;
-  else fit.effective_area_m2 = value;
-  fit.detection_probability = std::isfinite(w)
-                                  ? (data.kind == TransectKind::line ? value / w : value / (pi * w * w))
-                                  : nan_value;
+  if (data.kind == TransectKind::line)
+    fit.effective_strip_width_m = value;
+  else
+    fit.effective_area_m2 = value;
+  fit.detection_probability =
+      std::isfinite(w) ? (data.kind == TransectKind::line ? value / w : value / (pi * w * w)) : nan_value;
   if (nf == 0) {
     fit.effective_cv = 0.0;
   } else if (free_covariance.empty()) {
@@ -554,8 +557,7 @@ DetectionFit fit_detection_function(const DistanceData& data, const DetectionMod
 }
 
 std::vector<DetectionFit> fit_candidates(const DistanceData& data, const std::vector<KeyFunction>& keys,
-                                         const std::vector<Adjustment>& adjustments,
-                                         std::size_t max_terms) {
+                                         const std::vector<Adjustment>& adjustments, std::size_t max_terms) {
   std::vector<DetectionFit> fits;
   std::string last_error;
   const double w = data.binned() ? data.bin_edges.back() : data.truncation_m;
@@ -588,7 +590,8 @@ std::vector<DetectionFit> fit_candidates(const DistanceData& data, const std::ve
     }
   }
   if (fits.empty()) throw AnalysisError("no detection function could be fitted: " + last_error);
-  std::stable_sort(fits.begin(), fits.end(), [](const DetectionFit& a, const DetectionFit& b) { return a.aic < b.aic; });
+  std::stable_sort(fits.begin(), fits.end(),
+                   [](const DetectionFit& a, const DetectionFit& b) { return a.aic < b.aic; });
   return fits;
 }
 
@@ -597,8 +600,7 @@ double kolmogorov_smirnov_p(double d, std::size_t n) {
   const double lambda = (std::sqrt(m) + 0.12 + 0.11 / std::sqrt(m)) * d;
   if (lambda < 0.2) return 1.0;  // the series converges slowly there, and Q is 1 to 1e-10
   double q = 0.0;
-  for (int k = 1; k <= 100; ++k)
-    q += 2.0 * ((k % 2) ? 1.0 : -1.0) * std::exp(-2.0 * k * k * lambda * lambda);
+  for (int k = 1; k <= 100; ++k) q += 2.0 * ((k % 2) ? 1.0 : -1.0) * std::exp(-2.0 * k * k * lambda * lambda);
   return std::clamp(q, 0.0, 1.0);
 }
 
@@ -610,8 +612,8 @@ double cramer_von_mises_p(double w2) {
   for (int j = 0; j < 200; ++j) {
     const double u = (4.0 * j + 1.0) * (4.0 * j + 1.0) / (16.0 * w2);
     if (u > 700.0) break;
-    const double coefficient = std::exp(boost::math::lgamma(j + 0.5) - boost::math::lgamma(0.5) -
-                                        boost::math::lgamma(j + 1.0));
+    const double coefficient =
+        std::exp(boost::math::lgamma(j + 0.5) - boost::math::lgamma(0.5) - boost::math::lgamma(j + 1.0));
     cdf += coefficient * std::sqrt(4.0 * j + 1.0) * std::exp(-u) * boost::math::cyl_bessel_k(0.25, u);
   }
   cdf /= pi * std::sqrt(w2);
@@ -634,8 +636,10 @@ GoodnessOfFit goodness_of_fit(const DetectionFit& fit, const DistanceData& data)
   } else {
     double top = fit.function.truncation_m();
     if (!std::isfinite(top)) top = *std::max_element(data.exact.begin(), data.exact.end());
-    const auto bins = static_cast<std::size_t>(std::clamp(std::round(std::sqrt(static_cast<double>(data.exact.size()))), 3.0, 10.0));
-    for (std::size_t k = 0; k <= bins; ++k) gof.bin_edges.push_back(top * static_cast<double>(k) / static_cast<double>(bins));
+    const auto bins =
+        static_cast<std::size_t>(std::clamp(std::round(std::sqrt(static_cast<double>(data.exact.size()))), 3.0, 10.0));
+    for (std::size_t k = 0; k <= bins; ++k)
+      gof.bin_edges.push_back(top * static_cast<double>(k) / static_cast<double>(bins));
     gof.observed.assign(bins, 0.0);
     for (const double x : data.exact) {
       const auto k = std::min(bins - 1, static_cast<std::size_t>(x / top * static_cast<double>(bins)));

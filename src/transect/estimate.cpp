@@ -10,9 +10,9 @@
 #include <boost/math/distributions/students_t.hpp>
 #include <boost/random/uniform_int_distribution.hpp>
 
+#include "detail/parallel.hpp"
 #include "stipple/error.hpp"
 #include "stipple/format.hpp"
-#include "detail/parallel.hpp"
 #include "stipple/stats/interval.hpp"
 
 namespace stipple {
@@ -24,8 +24,7 @@ const double nan_value = std::numeric_limits<double>::quiet_NaN();
 using Key = std::optional<std::string>;
 
 // Distances (within truncation) for one species, or all when `species` is empty.
-DistanceData distances_of(const TransectSurvey& survey, const Key& species, double w,
-                          const std::vector<double>& bins) {
+DistanceData distances_of(const TransectSurvey& survey, const Key& species, double w, const std::vector<double>& bins) {
   DistanceData d;
   d.kind = survey.kind;
   d.truncation_m = w;
@@ -162,8 +161,7 @@ std::vector<double> parse_bin_edges(const std::string& text) {
     const auto value = parse_finite_number(item);
     if (!value) throw InputError(quoted + ": '" + item + "' is not a number (give metres, e.g. 0,10,25,50)");
     if (*value < 0.0) throw InputError(quoted + ": " + item + " is negative");
-    if (!edges.empty() && !(*value > edges.back()))
-      throw InputError(quoted + ": edges must be strictly increasing");
+    if (!edges.empty() && !(*value > edges.back())) throw InputError(quoted + ": edges must be strictly increasing");
     edges.push_back(*value);
     if (edges.size() > 1000) throw InputError(quoted + ": more than 1000 edges");
     if (comma == std::string::npos) break;
@@ -286,8 +284,9 @@ TransectResult analyse_transects(const TransectSurvey& survey, const TransectOpt
     }
   }
   if (options.pool_detection)
-    result.notes.push_back("one detection function, fitted to all species and strata, is shared; encounter "
-                           "rates and cluster sizes stay specific to each species and stratum");
+    result.notes.push_back(
+        "one detection function, fitted to all species and strata, is shared; encounter "
+        "rates and cluster sizes stay specific to each species and stratum");
 
   std::vector<Row> rows;
   for (const auto& s : species)
@@ -318,16 +317,19 @@ TransectResult analyse_transects(const TransectSurvey& survey, const TransectOpt
     } else {
       // No detections (or one transect): an exact Poisson upper limit on n (Garwood 1936).
       const double upper_n = garwood_interval(numbers.n, options.confidence).upper;
-      const double per_detection = numbers.n > 0 ? e.density / static_cast<double>(numbers.n)
-                                                 : (survey.kind == TransectKind::line
-                                                        ? per_unit / (2.0 * fit.effective_strip_width_m * e.effort * 1000.0)
-                                                        : per_unit / (e.effort * fit.effective_area_m2));
+      const double per_detection =
+          numbers.n > 0
+              ? e.density / static_cast<double>(numbers.n)
+              : (survey.kind == TransectKind::line ? per_unit / (2.0 * fit.effective_strip_width_m * e.effort * 1000.0)
+                                                   : per_unit / (e.effort * fit.effective_area_m2));
       e.density_ci = {0.0, upper_n * per_detection};
       e.density_cv = nan_value;
     }
     std::optional<double> area;
-    if (!row.stratum) area = options.study_area_m2;
-    else if (options.stratum_area_m2.count(*row.stratum)) area = options.stratum_area_m2.at(*row.stratum);
+    if (!row.stratum)
+      area = options.study_area_m2;
+    else if (options.stratum_area_m2.count(*row.stratum))
+      area = options.stratum_area_m2.at(*row.stratum);
     if (area) {
       e.abundance = e.density / per_unit * *area;
       e.abundance_ci = Interval{e.density_ci.lower / per_unit * *area, e.density_ci.upper / per_unit * *area};

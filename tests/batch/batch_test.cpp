@@ -44,7 +44,8 @@ TEST(RunBatch, PoolingEqualsDensityOverAllPlots) {
     EXPECT_EQ(pooled.pooled[i].plots, 4u);
     EXPECT_NEAR(pooled.pooled[i].intensity, all.pooled[i].intensity, 1e-12 * all.pooled[i].intensity);
     EXPECT_NEAR(pooled.pooled[i].ci.lower, all.pooled[i].ci.lower, 1e-12 * all.pooled[i].ci.lower);
-    EXPECT_NEAR(pooled.pooled[i].homogeneity->chi_square.statistic, all.pooled[i].homogeneity->chi_square.statistic, 1e-9);
+    EXPECT_NEAR(pooled.pooled[i].homogeneity->chi_square.statistic, all.pooled[i].homogeneity->chi_square.statistic,
+                1e-9);
   }
   // Typed rows for the report: one per plot x species and all together, in input order.
   EXPECT_EQ(summary.report.densities.size(), 20u);
@@ -55,7 +56,8 @@ TEST(RunBatch, PoolingEqualsDensityOverAllPlots) {
   ASSERT_EQ(loaded.densities.size(), summary.report.densities.size());
   for (std::size_t i = 0; i < loaded.densities.size(); ++i) {
     EXPECT_EQ(loaded.densities[i].estimate.count, summary.report.densities[i].estimate.count);
-    EXPECT_EQ(loaded.densities[i].estimate.intensity, summary.report.densities[i].estimate.intensity);  // round-trip numbers
+    EXPECT_EQ(loaded.densities[i].estimate.intensity,
+              summary.report.densities[i].estimate.intensity);  // round-trip numbers
   }
   ASSERT_TRUE(loaded.pooled.has_value());
   EXPECT_EQ(loaded.pooled->pooled.back().corrected.ci.upper, pooled.pooled.back().corrected.ci.upper);

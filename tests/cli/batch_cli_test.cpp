@@ -12,8 +12,8 @@
 
 #include <gdal_priv.h>
 #include <gtest/gtest.h>
-#include <nlohmann/json.hpp>
 #include <ogrsf_frmts.h>
+#include <nlohmann/json.hpp>
 
 #include "support.hpp"
 
@@ -48,8 +48,8 @@ TEST(BatchCli, EqualsThePerFileCommands) {
   for (const char* name : {"burn.gpkg", "glade.gpkg", "north.gpkg", "ridge.gpkg"}) {
     const std::string file = sample(std::string("season/") + name);
     const auto d = nlohmann::json::parse(run_cli(file + " --plots " + file + " --json -").out);
-    const auto g = nlohmann::json::parse(
-        run_cli("randomness " + file + " --plots " + file + " --simulations 49 --json -").out);
+    const auto g =
+        nlohmann::json::parse(run_cli("randomness " + file + " --plots " + file + " --simulations 49 --json -").out);
     std::vector<nlohmann::json> batch_d, batch_g;
     for (auto rec : density)
       if (rec["file"] == name) rec.erase("file"), batch_d.push_back(rec);
@@ -68,7 +68,8 @@ TEST(BatchCli, EqualsThePerFileCommands) {
   const auto first_line = [](const std::string& text) { return text.substr(0, text.find('\n')); };
   const std::string file = sample("season/north.gpkg");
   const std::string density_csv = run_cli(file + " --plots " + file + " --csv -").out;
-  const std::string randomness_csv = run_cli("randomness " + file + " --plots " + file + " --simulations 49 --csv -").out;
+  const std::string randomness_csv =
+      run_cli("randomness " + file + " --plots " + file + " --simulations 49 --csv -").out;
   EXPECT_EQ(first_line(read(out.file("all/density.csv"))), "file," + first_line(density_csv));
   EXPECT_EQ(first_line(read(out.file("all/randomness.csv"))), "file," + first_line(randomness_csv));
   // And the rows: north's rows are the single command's rows with the file name in front.
@@ -83,9 +84,12 @@ TEST(BatchCli, EqualsThePerFileCommands) {
 // plots at once (reserve.gpkg holds the same plots and sightings as season/).
 TEST(BatchCli, SeasonPoolingEqualsDensityOverAllPlots) {
   TempDir out;
-  ASSERT_EQ(run_cli(batch(sample("season"), out.file("o"), "--analyses density --detection " + sample("detection.csv"))).exit_code, 0);
+  ASSERT_EQ(run_cli(batch(sample("season"), out.file("o"), "--analyses density --detection " + sample("detection.csv")))
+                .exit_code,
+            0);
   const auto all = nlohmann::json::parse(run_cli(sample("reserve.gpkg") + " --plots " + sample("reserve.gpkg") +
-                                                 " --detection " + sample("detection.csv") + " --json -").out);
+                                                 " --detection " + sample("detection.csv") + " --json -")
+                                             .out);
   const auto pooled = nlohmann::json::parse(read(out.file("o/pooled.json")));
   ASSERT_EQ(pooled["pooled"].size(), all["pooled"].size());
   // Relative 1e-12: the same sums, in another order of plots (floating-point rounding only).
@@ -130,14 +134,17 @@ TEST(BatchCli, InputsOfTheWrongKindAreSkippedWithAReason) {
   ASSERT_EQ(r.exit_code, 0) << r.err;
   EXPECT_NE(r.err.find("skipped: transects.gpkg: holds transect lines"), std::string::npos) << r.err;
   const std::string failures = read(out.file("o/failures.csv"));
-  EXPECT_NE(failures.find("transects.gpkg,skipped,holds transect lines (layer 'lines'); not a plot file (the transect analysis fits it)"), std::string::npos)
+  EXPECT_NE(failures.find("transects.gpkg,skipped,holds transect lines (layer 'lines'); not a plot file (the transect "
+                          "analysis fits it)"),
+            std::string::npos)
       << failures;
   EXPECT_EQ(read(out.file("o/density.csv")).find("transects.gpkg"), std::string::npos);
   const auto run = nlohmann::json::parse(read(out.file("o/run.json")));
   EXPECT_EQ(run["inputs"][1]["kind"], "transects");
   EXPECT_EQ(run["inputs"][1]["status"], "skipped");
   // And the other way round: plot files are skipped by a transect-only batch.
-  const auto t = run_cli(batch(in.path().string(), out.file("t"), "--analyses transect --distance-field distance --size-field size"));
+  const auto t = run_cli(
+      batch(in.path().string(), out.file("t"), "--analyses transect --distance-field distance --size-field size"));
   ASSERT_EQ(t.exit_code, 0) << t.err;
   EXPECT_NE(read(out.file("t/failures.csv")).find("north.gpkg,skipped,holds plots and sightings; not a transect file"),
             std::string::npos);
@@ -147,9 +154,9 @@ TEST(BatchCli, InputsOfTheWrongKindAreSkippedWithAReason) {
 // A folder of per-plot sighting Shapefiles over one plots layer.
 TEST(BatchCli, OneSharedPlotsLayerForAFolderOfSightingFiles) {
   TempDir out;
-  const auto r = run_cli(batch(sample("shapefiles"), out.file("o"),
-                               "--pattern '*-sightings.shp' --plots " + sample("reserve.gpkg") +
-                                   " --plots-layer plots --analyses density"));
+  const auto r = run_cli(batch(
+      sample("shapefiles"), out.file("o"),
+      "--pattern '*-sightings.shp' --plots " + sample("reserve.gpkg") + " --plots-layer plots --analyses density"));
   ASSERT_EQ(r.exit_code, 0) << r.err;
   const std::string density = read(out.file("o/density.csv"));
   EXPECT_NE(density.find("north-sightings.shp,plot,north,birch,81,"), std::string::npos) << density;
@@ -168,7 +175,8 @@ TEST(BatchCli, ShardsMergeToTheSingleRun) {
   ASSERT_EQ(run_cli(batch(sample("season"), out.file("s1"), "--gis --shard 1/3")).exit_code, 0);
   ASSERT_EQ(run_cli(batch(sample("season"), out.file("s2"), "--gis --shard 2/3")).exit_code, 0);
   ASSERT_EQ(run_cli(batch(sample("season"), out.file("s3"), "--gis --shard 3/3")).exit_code, 0);
-  const auto m = run_cli("merge " + out.file("s3") + " " + out.file("s1") + " " + out.file("s2") + " --out " + out.file("merged"));
+  const auto m =
+      run_cli("merge " + out.file("s3") + " " + out.file("s1") + " " + out.file("s2") + " --out " + out.file("merged"));
   ASSERT_EQ(m.exit_code, 0) << m.err;
   for (const char* f : {"density.csv", "density.json", "randomness.csv", "randomness.json", "interactions.csv",
                         "interactions.json", "pooled.csv", "pooled.json", "failures.csv", "figures.csv", "run.json"})
@@ -189,7 +197,8 @@ TEST(BatchCli, ShardsMergeToTheSingleRun) {
 
 TEST(BatchCli, ACorruptFileIsReportedWhileOthersFinish) {
   TempDir in;
-  for (const char* name : {"north.gpkg", "glade.gpkg"}) fs::copy_file(sample(std::string("season/") + name), in.path() / name);
+  for (const char* name : {"north.gpkg", "glade.gpkg"})
+    fs::copy_file(sample(std::string("season/") + name), in.path() / name);
   (void)in.write("broken.gpkg", "not a GeoPackage at all");
   TempDir out;
   const auto r = run_cli(batch(in.path().string(), out.file("o")));
@@ -207,7 +216,9 @@ TEST(BatchCli, SimulationsHaveOneDefaultInEveryCommand) {
   TempDir out;
   const std::string file = sample("season/north.gpkg");
   EXPECT_EQ(nlohmann::json::parse(run_cli(file + " --plots " + file + " --json -").out)["simulations"], 999);
-  EXPECT_EQ(nlohmann::json::parse(run_cli("randomness " + file + " --plots " + file + " --only quadrat --json -").out)["simulations"], 999);
+  EXPECT_EQ(nlohmann::json::parse(
+                run_cli("randomness " + file + " --plots " + file + " --only quadrat --json -").out)["simulations"],
+            999);
   ASSERT_EQ(run_cli("batch " + file + " --out " + out.file("o") + " --analyses density --quiet").exit_code, 0);
   EXPECT_EQ(nlohmann::json::parse(read(out.file("o/run.json")))["simulations"], 999);
 }
@@ -285,7 +296,8 @@ TEST(BatchCli, GisFeaturesOfEveryFileAreInTheBatchCrs) {
   const auto run = nlohmann::json::parse(read(out.file("o/run.json")));
   EXPECT_EQ(run["crs"], "EPSG:32630");
   EXPECT_NE(run["inputs"][1]["crs"], "EPSG:32630");  // north in lon/lat: its own local CRS
-  EXPECT_NE(run["warnings"].dump().find("reprojected to the batch CRS EPSG:32630"), std::string::npos) << run["warnings"];
+  EXPECT_NE(run["warnings"].dump().find("reprojected to the batch CRS EPSG:32630"), std::string::npos)
+      << run["warnings"];
   GDALDatasetUniquePtr gpkg(GDALDataset::Open(out.file("o/plot-results.gpkg").c_str(), GDAL_OF_VECTOR));
   ASSERT_TRUE(gpkg);
   OGRLayer* layer = gpkg->GetLayerByName("plot_results");
@@ -320,15 +332,18 @@ TEST(BatchCli, ReportRendersInHeadlessChromium) {
   TempDir out;
   ASSERT_EQ(run_cli(batch(sample("season"), out.file("o"), "--report")).exit_code, 0);
   const std::string html = read(out.file("o/report.html"));
-  for (const char* part : {"SHA-256", "EPSG:32630", "Methods", "Garwood", "Plot maps", "L-function envelopes", "cautions",
-                           "The season pooled", "Between species", "leaves the global envelope", "(per ha)"})
+  for (const char* part :
+       {"SHA-256", "EPSG:32630", "Methods", "Garwood", "Plot maps", "L-function envelopes", "cautions",
+        "The season pooled", "Between species", "leaves the global envelope", "(per ha)"})
     EXPECT_NE(html.find(part), std::string::npos) << part;
   EXPECT_EQ(html.find("src=\"http"), std::string::npos);  // self-contained
   const std::string png = out.file("shot.png");
-  const std::string command = "/usr/bin/chromium --headless --no-sandbox --disable-gpu --disable-quic --no-first-run "
-                              "--disable-background-networking --disable-component-update --disable-sync "
-                              "--user-data-dir=" + out.file("profile") + " --window-size=1200,1600 --screenshot=" + png +
-                              " file://" + out.file("o/report.html") + " > /dev/null 2>&1";
+  const std::string command =
+      "/usr/bin/chromium --headless --no-sandbox --disable-gpu --disable-quic --no-first-run "
+      "--disable-background-networking --disable-component-update --disable-sync "
+      "--user-data-dir=" +
+      out.file("profile") + " --window-size=1200,1600 --screenshot=" + png + " file://" + out.file("o/report.html") +
+      " > /dev/null 2>&1";
   ASSERT_EQ(std::system(command.c_str()), 0);
   cairo_surface_t* image = cairo_image_surface_create_from_png(png.c_str());
   ASSERT_EQ(cairo_surface_status(image), CAIRO_STATUS_SUCCESS);
@@ -357,9 +372,9 @@ struct Screenshot {
     const std::string command =
         "/usr/bin/chromium --headless --no-sandbox --disable-gpu --disable-quic --no-first-run "
         "--disable-background-networking --disable-component-update --disable-sync --hide-scrollbars "
-        "--force-device-scale-factor=1 --user-data-dir=" + dir.file("profile-" + name) + " --window-size=" +
-        std::to_string(width) + "," + std::to_string(height) + " --screenshot=" + png + " file://" + page +
-        " > /dev/null 2>&1";
+        "--force-device-scale-factor=1 --user-data-dir=" +
+        dir.file("profile-" + name) + " --window-size=" + std::to_string(width) + "," + std::to_string(height) +
+        " --screenshot=" + png + " file://" + page + " > /dev/null 2>&1";
     if (std::system(command.c_str()) == 0) image = cairo_image_surface_create_from_png(png.c_str());
   }
   ~Screenshot() {
@@ -423,10 +438,10 @@ TEST(BatchCli, ReportFigureTitlesRenderAsTheirOwnFiles) {
     without_figures += html.substr(from, open - from);
     from = caption_end + 22;
     ASSERT_TRUE(file_of.count(title)) << "figure '" << title << "' is not in figures.csv";
-    const std::string at = "left:" + std::to_string(static_cast<int>(k % columns) * cell_w) + "px;top:" +
-                           std::to_string(static_cast<int>(k / columns) * cell_h) + "px;";
-    const std::string box = "position:absolute;" + at + "width:" + std::to_string(cell_w) + "px;height:" +
-                            std::to_string(cell_h) + "px;margin:0;display:block;";
+    const std::string at = "left:" + std::to_string(static_cast<int>(k % columns) * cell_w) +
+                           "px;top:" + std::to_string(static_cast<int>(k / columns) * cell_h) + "px;";
+    const std::string box = "position:absolute;" + at + "width:" + std::to_string(cell_w) +
+                            "px;height:" + std::to_string(cell_h) + "px;margin:0;display:block;";
     reference += "<img style=\"" + box + "\" src=\"" + out.file("o/" + file_of[title]) + "\">";
     placed += "<div style=\"" + box + "background:#fff;z-index:" + std::to_string(100 + k) + "\">" + svg + "</div>";
   }
@@ -437,7 +452,8 @@ TEST(BatchCli, ReportFigureTitlesRenderAsTheirOwnFiles) {
   // The report itself, with every inlined figure moved onto its cell above the page.
   const std::string style =
       "<style>html,body{margin:0!important;padding:0!important;background:#fff}"
-      ".cell svg{width:" + std::to_string(cell_w) + "px!important;height:" + std::to_string(cell_h) +
+      ".cell svg{width:" +
+      std::to_string(cell_w) + "px!important;height:" + std::to_string(cell_h) +
       "px!important;border:0!important;display:block}</style>";
   html.insert(html.find("</head>"), style);
   html.insert(html.find("</body>"), "<div class=cell>" + placed + "</div>");
@@ -488,7 +504,8 @@ TEST(BatchCli, ReportIdsAreUniqueAndEveryReferenceResolves) {
   EXPECT_GT(count, 100u);  // the figures' glyphs
   static const std::regex reference(R"re((?:href="#|url\(#)([^")]+))re");
   std::size_t references = 0;
-  for (auto it = std::sregex_iterator(html.begin(), html.end(), reference); it != std::sregex_iterator(); ++it, ++references)
+  for (auto it = std::sregex_iterator(html.begin(), html.end(), reference); it != std::sregex_iterator();
+       ++it, ++references)
     EXPECT_TRUE(ids.count((*it)[1].str())) << "unresolved reference #" << (*it)[1].str();
   EXPECT_GT(references, 100u);
 }
@@ -497,7 +514,10 @@ TEST(BatchCli, ReportIdsAreUniqueAndEveryReferenceResolves) {
 // references for what it cites, cautions of the analyses that ran.
 TEST(BatchCli, ReportTellsTheRunItWasMadeFrom) {
   TempDir out;
-  ASSERT_EQ(run_cli(batch(sample("season"), out.file("o"), "--report --edge-correction border --rmax 12 --quadrats 3x3")).exit_code, 0);
+  ASSERT_EQ(
+      run_cli(batch(sample("season"), out.file("o"), "--report --edge-correction border --rmax 12 --quadrats 3x3"))
+          .exit_code,
+      0);
   const std::string html = read(out.file("o/report.html"));
   for (const char* part : {"edge correction: border", "up to 12 m", "3x3 grid", "49 binomial-process simulations",
                            "Clark P.J. &amp; Evans F.C. (1954)", "Garwood F. (1936)"})
@@ -557,7 +577,8 @@ TEST(BatchCli, RunFilePathsAreRelativeToTheRunFile) {
 
 TEST(BatchCli, ShapefilePairsAndBadInputs) {
   TempDir out;
-  const auto r = run_cli(batch(sample("shapefiles"), out.file("o"), "--pattern '*-sightings.shp' --plots-name '{*}-plot.shp' --analyses density"));
+  const auto r = run_cli(batch(sample("shapefiles"), out.file("o"),
+                               "--pattern '*-sightings.shp' --plots-name '{*}-plot.shp' --analyses density"));
   ASSERT_EQ(r.exit_code, 0) << r.err;
   EXPECT_NE(read(out.file("o/density.csv")).find("north-sightings.shp,plot,north,birch,81,"), std::string::npos);
   EXPECT_EQ(run_cli(batch(sample("season"), out.file("x"), "--shard 4/3")).exit_code, 2);
@@ -576,7 +597,8 @@ TEST(BatchCli, ShapefilePairsAndBadInputs) {
 
 TEST(SurfaceCli, WritesOneGeoTiffPerSpecies) {
   TempDir out;
-  const auto r = run_cli("surface " + sample("reserve.gpkg") + " --plots " + sample("reserve.gpkg") + " --out " + out.file("s"));
+  const auto r =
+      run_cli("surface " + sample("reserve.gpkg") + " --plots " + sample("reserve.gpkg") + " --out " + out.file("s"));
   ASSERT_EQ(r.exit_code, 0) << r.err;
   for (const char* name : {"birch.tif", "hazel.tif", "juniper.tif", "wood-ant.tif", "all-species.tif"})
     EXPECT_TRUE(fs::exists(out.file(std::string("s/") + name))) << name;
@@ -595,11 +617,17 @@ TEST(BatchCli, SlurmArrayScriptShardsMergeToTheSingleRun) {
   for (int task = 1; task <= 2; ++task) {
     const std::string command = "SLURM_ARRAY_TASK_ID=" + std::to_string(task) +
                                 " SLURM_ARRAY_TASK_COUNT=2 SLURM_CPUS_PER_TASK=1 STIPPLE=" + std::string(STIPPLE_CLI) +
-                                " bash " + script + " " + test::sample("season") + " " + out.file("r") + " --simulations 49 --quiet > /dev/null 2>&1";
+                                " bash " + script + " " + test::sample("season") + " " + out.file("r") +
+                                " --simulations 49 --quiet > /dev/null 2>&1";
     ASSERT_EQ(std::system(command.c_str()), 0) << command;
   }
-  ASSERT_EQ(test::run_cli("merge " + out.file("r/shard-1") + " " + out.file("r/shard-2") + " --out " + out.file("m")).exit_code, 0);
-  ASSERT_EQ(test::run_cli("batch " + test::sample("season") + " --out " + out.file("one") + " --gis --quiet --simulations 49").exit_code, 0);
+  ASSERT_EQ(test::run_cli("merge " + out.file("r/shard-1") + " " + out.file("r/shard-2") + " --out " + out.file("m"))
+                .exit_code,
+            0);
+  ASSERT_EQ(
+      test::run_cli("batch " + test::sample("season") + " --out " + out.file("one") + " --gis --quiet --simulations 49")
+          .exit_code,
+      0);
   for (const char* f : {"density.csv", "randomness.csv", "density.json", "randomness.json"})
     EXPECT_EQ(read(out.file(std::string("one/") + f)), read(out.file(std::string("m/") + f))) << f;
 }
@@ -630,12 +658,15 @@ namespace {
 
 TEST(BatchCli, TransectAnalysisEqualsTheSingleCommand) {
   test::TempDir dir;
-  const auto r = test::run_cli("batch " + std::string(STIPPLE_SAMPLE_DIR) + " --pattern transects.gpkg --analyses transect "
-                               "--distance-field distance --size-field size --report --quiet --out " + dir.file("o"));
+  const auto r = test::run_cli("batch " + std::string(STIPPLE_SAMPLE_DIR) +
+                               " --pattern transects.gpkg --analyses transect "
+                               "--distance-field distance --size-field size --report --quiet --out " +
+                               dir.file("o"));
   ASSERT_EQ(r.exit_code, 0) << r.err;
-  const auto single = nlohmann::json::parse(
-      test::run_cli("transect " + test::sample("transects.gpkg") + " --lines " + test::sample("transects.gpkg") +
-                    " --distance-field distance --size-field size --json -").out);
+  const auto single = nlohmann::json::parse(test::run_cli("transect " + test::sample("transects.gpkg") + " --lines " +
+                                                          test::sample("transects.gpkg") +
+                                                          " --distance-field distance --size-field size --json -")
+                                                .out);
   const auto records = nlohmann::json::parse(read(dir.file("o/transect.json")));
   ASSERT_EQ(records.size(), single["results"].size());
   for (std::size_t i = 0; i < records.size(); ++i) {

@@ -1,9 +1,9 @@
 // The command-line tool as a user runs it: the demo, output formats, and every bad input
 // it refuses (message naming the file, layer, field or feature; exit code 2).
 
+#include <charconv>
 #include <fstream>
 #include <sstream>
-#include <charconv>
 #include <string>
 #include <vector>
 
@@ -20,10 +20,8 @@ using test::run_cli;
 using test::sample;
 using test::TempDir;
 
-const std::string kSquare =
-    "[[512000,6290000],[512000,6290100],[512100,6290100],[512100,6290000],[512000,6290000]]";
-const std::string kSquareB =
-    "[[512200,6290000],[512200,6290100],[512300,6290100],[512300,6290000],[512200,6290000]]";
+const std::string kSquare = "[[512000,6290000],[512000,6290100],[512100,6290100],[512100,6290000],[512000,6290000]]";
+const std::string kSquareB = "[[512200,6290000],[512200,6290100],[512300,6290100],[512300,6290000],[512200,6290000]]";
 
 // A valid little survey: two 1-ha plots in EPSG:32630, sightings CSV with a .prj.
 struct Fixture {
@@ -31,8 +29,8 @@ struct Fixture {
   std::string plots;
   std::string sightings;
   Fixture() {
-    plots = dir.write("plots.geojson", test::geojson_utm(test::plot_feature("A", kSquare) + "," +
-                                                         test::plot_feature("B", kSquareB)));
+    plots = dir.write("plots.geojson",
+                      test::geojson_utm(test::plot_feature("A", kSquare) + "," + test::plot_feature("B", kSquareB)));
     sightings = write_csv("sightings",
                           "x,y,species\n512010,6290010,oak\n512050,6290050,ash\n"
                           "512250,6290050,oak\n512150,6290050,oak\n");
@@ -43,7 +41,9 @@ struct Fixture {
   }
 };
 
-nlohmann::json parse(const std::string& text) { return nlohmann::json::parse(text); }
+nlohmann::json parse(const std::string& text) {
+  return nlohmann::json::parse(text);
+}
 
 TEST(Cli, HelpAndVersion) {
   EXPECT_EQ(run_cli("--help").exit_code, 0);
@@ -58,8 +58,8 @@ TEST(Cli, HelpAndVersion) {
 TEST(Cli, DemoRecoversGeneratingIntensities) {
   // The demo's stated truth (sample-plots/generating-values.json) must lie inside the
   // corrected 95% interval of every species pooled over the four plots.
-  const auto r = run_cli(sample("reserve.gpkg") + " --plots " + sample("reserve.gpkg") +
-                         " --detection " + sample("detection.csv") + " --json -");
+  const auto r = run_cli(sample("reserve.gpkg") + " --plots " + sample("reserve.gpkg") + " --detection " +
+                         sample("detection.csv") + " --json -");
   ASSERT_EQ(r.exit_code, 0) << r.err;
   const auto doc = parse(r.out);
   std::ifstream truth_file(sample("generating-values.json"));
@@ -80,18 +80,18 @@ TEST(Cli, DemoRecoversGeneratingIntensities) {
 }
 
 TEST(Cli, JsonContractHolds) {
-  const auto r = run_cli(sample("reserve.gpkg") + " --plots " + sample("reserve.gpkg") +
-                         " --detection " + sample("detection.csv") + " --json -");
+  const auto r = run_cli(sample("reserve.gpkg") + " --plots " + sample("reserve.gpkg") + " --detection " +
+                         sample("detection.csv") + " --json -");
   ASSERT_EQ(r.exit_code, 0) << r.err;
   const auto doc = parse(r.out);
   EXPECT_EQ(doc["crs"], "EPSG:32630");
   EXPECT_EQ(doc["unit"], "ha");
   EXPECT_EQ(doc["confidence"], 0.95);
-  for (const char* key : {"plot", "species", "count", "area", "intensity", "ci",
-                          "detection_probability", "corrected_intensity", "corrected_ci"})
+  for (const char* key : {"plot", "species", "count", "area", "intensity", "ci", "detection_probability",
+                          "corrected_intensity", "corrected_ci"})
     EXPECT_TRUE(doc["estimates"][0].contains(key)) << key;
-  for (const char* key : {"species", "plots", "count", "area", "intensity", "ci",
-                          "corrected_intensity", "corrected_ci", "homogeneity"})
+  for (const char* key :
+       {"species", "plots", "count", "area", "intensity", "ci", "corrected_intensity", "corrected_ci", "homogeneity"})
     EXPECT_TRUE(doc["pooled"][0].contains(key)) << key;
   for (const char* key : {"statistic", "df", "p_value"})
     EXPECT_TRUE(doc["pooled"][0]["homogeneity"].contains(key)) << key;
@@ -105,8 +105,8 @@ TEST(Cli, JsonContractHolds) {
 
 TEST(Cli, TableAndCsvOutputs) {
   TempDir out;
-  const auto r = run_cli(sample("reserve.gpkg") + " --plots " + sample("reserve.gpkg") +
-                         " --csv " + out.file("d.csv") + " --unit km2");
+  const auto r = run_cli(sample("reserve.gpkg") + " --plots " + sample("reserve.gpkg") + " --csv " + out.file("d.csv") +
+                         " --unit km2");
   ASSERT_EQ(r.exit_code, 0) << r.err;
   EXPECT_NE(r.out.find("Per plot"), std::string::npos);
   EXPECT_NE(r.out.find("Pooled across plots"), std::string::npos);
@@ -118,8 +118,8 @@ TEST(Cli, TableAndCsvOutputs) {
 }
 
 TEST(Cli, GpsLonLatCsvIsReprojectedAndStraysAreReported) {
-  const auto r = run_cli(sample("gps-sightings.csv") + " --assume-crs EPSG:4326 --plots " +
-                         sample("reserve.gpkg") + " --json -");
+  const auto r =
+      run_cli(sample("gps-sightings.csv") + " --assume-crs EPSG:4326 --plots " + sample("reserve.gpkg") + " --json -");
   ASSERT_EQ(r.exit_code, 0) << r.err;
   const auto doc = parse(r.out);
   EXPECT_EQ(doc["crs"], "EPSG:32630");  // the plots' projected CRS
@@ -127,8 +127,7 @@ TEST(Cli, GpsLonLatCsvIsReprojectedAndStraysAreReported) {
   EXPECT_EQ(doc["excluded"]["outside_plots_feature_ids"].size(), 3u);
   EXPECT_EQ(doc["assignment"]["by"], "point-in-polygon");
   // Same sightings as the GeoPackage (which assigns by attribute): same counts.
-  const auto gpkg = parse(run_cli(sample("reserve.gpkg") + " --plots " + sample("reserve.gpkg") +
-                                  " --json -").out);
+  const auto gpkg = parse(run_cli(sample("reserve.gpkg") + " --plots " + sample("reserve.gpkg") + " --json -").out);
   ASSERT_EQ(doc["estimates"].size(), gpkg["estimates"].size());
   for (std::size_t i = 0; i < doc["estimates"].size(); ++i)
     EXPECT_EQ(doc["estimates"][i]["count"], gpkg["estimates"][i]["count"]) << i;
@@ -136,8 +135,7 @@ TEST(Cli, GpsLonLatCsvIsReprojectedAndStraysAreReported) {
 }
 
 TEST(Cli, GeographicInputWithoutPlotsGetsLocalEqualAreaAndModelBasedWarning) {
-  const auto r = run_cli(sample("gps-sightings.csv") +
-                         " --assume-crs EPSG:4326 --window convex-hull --json -");
+  const auto r = run_cli(sample("gps-sightings.csv") + " --assume-crs EPSG:4326 --window convex-hull --json -");
   ASSERT_EQ(r.exit_code, 0) << r.err;
   const auto doc = parse(r.out);
   // A Lambert azimuthal equal-area CRS centred on the sightings; its PROJ string is the code.
@@ -149,12 +147,11 @@ TEST(Cli, GeographicInputWithoutPlotsGetsLocalEqualAreaAndModelBasedWarning) {
 }
 
 TEST(Cli, PerPlotShapefilesGiveThePlotsCounts) {
-  const auto r = run_cli(sample("shapefiles/north-sightings.shp") + " --plots " +
-                         sample("shapefiles/north-plot.shp") + " --json -");
+  const auto r = run_cli(sample("shapefiles/north-sightings.shp") + " --plots " + sample("shapefiles/north-plot.shp") +
+                         " --json -");
   ASSERT_EQ(r.exit_code, 0) << r.err;
   const auto one = parse(r.out);
-  const auto all = parse(run_cli(sample("reserve.gpkg") + " --plots " + sample("reserve.gpkg") +
-                                 " --json -").out);
+  const auto all = parse(run_cli(sample("reserve.gpkg") + " --plots " + sample("reserve.gpkg") + " --json -").out);
   for (const auto& e : one["estimates"]) {
     for (const auto& f : all["estimates"])
       if (f["plot"] == "north" && f["species"] == e["species"]) {
@@ -184,8 +181,7 @@ TEST(Cli, InspectDescribesASource) {
 
 TEST(CliBadInput, MissingFile) {
   Fixture f;
-  expect_refused(run_cli(f.dir.file("nope.gpkg") + " --plots " + f.plots),
-                 f.dir.file("nope.gpkg") + ": no such file");
+  expect_refused(run_cli(f.dir.file("nope.gpkg") + " --plots " + f.plots), f.dir.file("nope.gpkg") + ": no such file");
   expect_refused(run_cli(f.sightings + " --plots " + f.dir.file("nope.shp")),
                  f.dir.file("nope.shp") + ": no such file");
 }
@@ -199,8 +195,7 @@ TEST(CliBadInput, UnreadableFile) {
 TEST(CliBadInput, UnknownLayer) {
   expect_refused(run_cli(sample("reserve.gpkg") + " --layer stems --plots " + sample("reserve.gpkg")),
                  "reserve.gpkg: layer 'stems' not found (layers: ");
-  expect_refused(run_cli(sample("reserve.gpkg") + " --plots " + sample("reserve.gpkg") +
-                         " --plots-layer zones"),
+  expect_refused(run_cli(sample("reserve.gpkg") + " --plots " + sample("reserve.gpkg") + " --plots-layer zones"),
                  "layer 'zones' not found");
 }
 
@@ -224,10 +219,10 @@ TEST(CliBadInput, MissingPlotField) {
 
 TEST(CliBadInput, NonPointSightings) {
   Fixture f;
-  const auto lines = f.dir.write(
-      "tracks.geojson",
-      test::geojson_utm("{\"type\":\"Feature\",\"properties\":{\"species\":\"oak\"},\"geometry\":"
-                        "{\"type\":\"LineString\",\"coordinates\":[[512010,6290010],[512020,6290020]]}}"));
+  const auto lines =
+      f.dir.write("tracks.geojson",
+                  test::geojson_utm("{\"type\":\"Feature\",\"properties\":{\"species\":\"oak\"},\"geometry\":"
+                                    "{\"type\":\"LineString\",\"coordinates\":[[512010,6290010],[512020,6290020]]}}"));
   expect_refused(run_cli(lines + " --plots " + f.plots),
                  "tracks.geojson: layer 'tracks': feature 0: geometry is Line String; sightings "
                  "must be single points");
@@ -236,33 +231,30 @@ TEST(CliBadInput, NonPointSightings) {
 TEST(CliBadInput, EmptyPlot) {
   Fixture f;
   const auto plots = f.dir.write(
-      "empty.geojson",
-      test::geojson_utm(test::plot_feature("A", kSquare) +
-                        ",{\"type\":\"Feature\",\"properties\":{\"plot\":\"B\"},\"geometry\":null}"));
+      "empty.geojson", test::geojson_utm(test::plot_feature("A", kSquare) +
+                                         ",{\"type\":\"Feature\",\"properties\":{\"plot\":\"B\"},\"geometry\":null}"));
   expect_refused(run_cli(f.sightings + " --plots " + plots),
                  "empty.geojson: layer 'empty': feature 1: plot polygon is empty");
 }
 
 TEST(CliBadInput, ZeroAreaPlot) {
   Fixture f;
-  const auto plots = f.dir.write(
-      "flat.geojson",
-      test::geojson_utm(test::plot_feature(
-          "A", "[[512000,6290000],[512050,6290000],[512100,6290000],[512000,6290000]]")));
+  const auto plots =
+      f.dir.write("flat.geojson", test::geojson_utm(test::plot_feature(
+                                      "A", "[[512000,6290000],[512050,6290000],[512100,6290000],[512000,6290000]]")));
   expect_refused(run_cli(f.sightings + " --plots " + plots),
                  "flat.geojson: layer 'flat': feature 0: plot polygon has zero area");
 }
 
 TEST(CliBadInput, SelfIntersectingPlotIsRefusedUnlessRepaired) {
   Fixture f;
-  const auto plots = f.dir.write(
-      "bowtie.geojson",
-      test::geojson_utm(test::plot_feature(
-          "A", "[[512000,6290000],[512100,6290100],[512100,6290000],[512000,6290100],[512000,6290000]]")));
+  const auto plots =
+      f.dir.write("bowtie.geojson",
+                  test::geojson_utm(test::plot_feature(
+                      "A", "[[512000,6290000],[512100,6290100],[512100,6290000],[512000,6290100],[512000,6290000]]")));
   expect_refused(run_cli(f.sightings + " --plots " + plots),
                  "bowtie.geojson: layer 'bowtie': feature 0: plot polygon is not valid");
-  EXPECT_NE(run_cli(f.sightings + " --plots " + plots).err.find("--repair-geometry"),
-            std::string::npos);
+  EXPECT_NE(run_cli(f.sightings + " --plots " + plots).err.find("--repair-geometry"), std::string::npos);
   const auto repaired = run_cli(f.sightings + " --plots " + plots + " --repair-geometry --json -");
   ASSERT_EQ(repaired.exit_code, 0) << repaired.err;
   const auto doc = parse(repaired.out);
@@ -276,8 +268,9 @@ TEST(CliBadInput, NanOrInfiniteCoordinates) {
                  "nan.csv: layer 'nan': feature 2: has no point geometry: coordinates must be "
                  "finite numbers (x: empty or not a number, y = 6290020)");
   const auto inf = f.write_csv("inf", "x,y,species\n512010,inf,oak\n");
-  expect_refused(run_cli(inf + " --plots " + f.plots), "feature 1: has no point geometry: "
-                                                       "coordinates must be finite numbers");
+  expect_refused(run_cli(inf + " --plots " + f.plots),
+                 "feature 1: has no point geometry: "
+                 "coordinates must be finite numbers");
 }
 
 TEST(CliBadInput, DetectionProbabilityOutsideUnitInterval) {
@@ -440,10 +433,12 @@ TEST(OptionRanges, CountsSeedsAndSizesAreRefusedOutsideTheirRange) {
       {"transect " + lines + " --bootstrap -3", "--bootstrap: must be a whole number from 0-100000 (got '-3')"},
       {"transect " + lines + " --max-terms 9", "--max-terms: must be a whole number from 0-5"},
       {"effort --pilot-detections 40 --pilot-effort 10 --target-cv 15", "a CV is a fraction"},
-      {"effort --pilot-detections -4 --pilot-effort 10 --target-cv 0.1", "--pilot-detections: must be a number greater than 0"},
+      {"effort --pilot-detections -4 --pilot-effort 10 --target-cv 0.1",
+       "--pilot-detections: must be a number greater than 0"},
       {"surface " + plots + " --out /tmp/never-written --pixel 0", "--pixel: must be a number greater than 0"},
       {"surface " + plots + " --out /tmp/never-written --bandwidth 0", "--bandwidth: must be a number greater than 0"},
-      {"batch " + sample("season") + " --out /tmp/never-written --simulations -1", "--simulations: must be a whole number"},
+      {"batch " + sample("season") + " --out /tmp/never-written --simulations -1",
+       "--simulations: must be a whole number"},
   };
   for (const auto& [args, message] : cases) {
     SCOPED_TRACE(args);

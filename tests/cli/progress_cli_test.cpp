@@ -14,13 +14,15 @@ namespace {
 using stipple::test::run_cli;
 using stipple::test::TempDir;
 
-std::string sample(const std::string& name) { return std::string(STIPPLE_SAMPLE_DIR) + "/" + name; }
+std::string sample(const std::string& name) {
+  return std::string(STIPPLE_SAMPLE_DIR) + "/" + name;
+}
 
 // Runs the command line under a pseudo-terminal; returns what the terminal showed
 // (standard output and standard error together).
 std::string on_terminal(const std::string& args) {
-  const std::string command = "STIPPLE_PROGRESS_DELAY=0 script -q -e -c '" + std::string(STIPPLE_CLI) + " " + args +
-                              "' /dev/null </dev/null";
+  const std::string command =
+      "STIPPLE_PROGRESS_DELAY=0 script -q -e -c '" + std::string(STIPPLE_CLI) + " " + args + "' /dev/null </dev/null";
   std::string shown;
   FILE* pipe = popen(command.c_str(), "r");
   if (pipe == nullptr) return shown;
@@ -50,10 +52,9 @@ std::string batch_args(const TempDir& out) {
 
 TEST(ProgressCli, ShownWithAnEtaOnATerminal) {
   TempDir out;
-  for (const auto& [args, label] : {std::pair{randomness_args(), "stipple randomness"},
-                                    std::pair{bootstrap_args(), "stipple transect"},
-                                    std::pair{surface_args(out), "stipple surface"},
-                                    std::pair{batch_args(out), "stipple batch: files"}}) {
+  for (const auto& [args, label] :
+       {std::pair{randomness_args(), "stipple randomness"}, std::pair{bootstrap_args(), "stipple transect"},
+        std::pair{surface_args(out), "stipple surface"}, std::pair{batch_args(out), "stipple batch: files"}}) {
     const std::string shown = on_terminal(args);
     EXPECT_NE(shown.find(label), std::string::npos) << args << "\n" << shown;
     EXPECT_NE(shown.find("ETA "), std::string::npos) << args << "\n" << shown;

@@ -18,8 +18,7 @@ using test::sample;
 using test::TempDir;
 
 std::string demo(const std::string& extra) {
-  return "randomness " + sample("reserve.gpkg") + " --plots " + sample("reserve.gpkg") +
-         " --simulations 199 " + extra;
+  return "randomness " + sample("reserve.gpkg") + " --plots " + sample("reserve.gpkg") + " --simulations 199 " + extra;
 }
 
 TEST(RandomnessCli, FindsTheDemosClusteringAndRegularity) {
@@ -51,11 +50,11 @@ TEST(RandomnessCli, JsonContractHolds) {
   const auto& g = doc["results"][0];
   for (const char* key : {"plot", "species", "n", "quadrat", "clark_evans", "envelope", "verdict"})
     EXPECT_TRUE(g.contains(key)) << key;
-  for (const char* key : {"nx", "ny", "statistic", "df", "p_upper", "p_lower", "p_value",
-                          "monte_carlo_p_value", "dispersion_index"})
+  for (const char* key :
+       {"nx", "ny", "statistic", "df", "p_upper", "p_lower", "p_value", "monte_carlo_p_value", "dispersion_index"})
     EXPECT_TRUE(g["quadrat"].contains(key)) << key;
-  for (const char* key : {"mean_distance", "expected_distance", "ratio", "z", "p_value",
-                          "edge_correction", "monte_carlo_p_value"})
+  for (const char* key :
+       {"mean_distance", "expected_distance", "ratio", "z", "p_value", "edge_correction", "monte_carlo_p_value"})
     EXPECT_TRUE(g["clark_evans"].contains(key)) << key;
   for (const char* key : {"function", "rmax", "simulations", "mad_p_value", "dclf_p_value"})
     EXPECT_TRUE(g["envelope"].contains(key)) << key;
@@ -81,8 +80,8 @@ TEST(RandomnessCli, ResultsDoNotDependOnThreads) {
 
 TEST(RandomnessCli, WritesCurvesAndFigures) {
   TempDir out;
-  const auto r = run_cli(demo("--only envelope --curves " + out.file("curves.csv") + " --figures " +
-                              out.file("figures")));
+  const auto r =
+      run_cli(demo("--only envelope --curves " + out.file("curves.csv") + " --figures " + out.file("figures")));
   ASSERT_EQ(r.exit_code, 0) << r.err;
   std::ifstream curves(out.file("curves.csv"));
   std::string header;
@@ -109,16 +108,17 @@ TEST(RandomnessCli, CsvHasOneRowPerGroupWithEveryPValue) {
   std::istringstream csv(r.out);
   std::string header;
   std::getline(csv, header);
-  EXPECT_EQ(header, "plot,species,n,quadrat_statistic,quadrat_df,quadrat_p,quadrat_p_method,clark_evans_ratio,"
-                    "clark_evans_z,clark_evans_p,clark_evans_p_method,clark_evans_edge_correction,l_rmax,l_mad_p,"
-                    "l_dclf_p,l_erl_p,l_departures,simulations,verdict,verdict_basis");
+  EXPECT_EQ(header,
+            "plot,species,n,quadrat_statistic,quadrat_df,quadrat_p,quadrat_p_method,clark_evans_ratio,"
+            "clark_evans_z,clark_evans_p,clark_evans_p_method,clark_evans_edge_correction,l_rmax,l_mad_p,"
+            "l_dclf_p,l_erl_p,l_departures,simulations,verdict,verdict_basis");
   std::size_t rows = 0;
   bool hazel_north = false;
   for (std::string line; std::getline(csv, line);) {
     ++rows;
     if (line.rfind("north,hazel,", 0) == 0) hazel_north = line.find(",clustered,") != std::string::npos;
   }
-  EXPECT_EQ(rows, 20u);  // 4 plots x (4 species + all together)
+  EXPECT_EQ(rows, 20u);      // 4 plots x (4 species + all together)
   EXPECT_TRUE(hazel_north);  // the demo's hazel is a Thomas process (generating-values.json)
 }
 
@@ -145,9 +145,9 @@ TEST(RandomnessCliBadInput, BadOptions) {
   EXPECT_EQ(run_cli(demo("--edge-correction toroidal")).exit_code, 2);
   EXPECT_EQ(run_cli(demo("--pair-correction translation")).exit_code, 2);
   EXPECT_EQ(run_cli(demo("--distance-correction hanisch")).exit_code, 2);
-  expect_refused(run_cli("randomness " + sample("reserve.gpkg") + " --plots " + sample("reserve.gpkg") +
-                         " --simulations 0"),
-                 "--simulations 0 leaves no envelope");
+  expect_refused(
+      run_cli("randomness " + sample("reserve.gpkg") + " --plots " + sample("reserve.gpkg") + " --simulations 0"),
+      "--simulations 0 leaves no envelope");
   expect_refused(run_cli("randomness " + sample("reserve.gpkg")), "needs the surveyed area");
 }
 

@@ -48,10 +48,26 @@ TEST(TransectCli, JsonContractHolds) {
   const auto doc = nlohmann::json::parse(r.out);
   EXPECT_EQ(doc["unit"], "km2");
   const auto& e = doc["results"][0];
-  for (const char* key : {"species", "stratum", "model", "adjustments", "parameters", "aic", "n", "effort",
-                          "truncation", "esw", "effective_area", "detection_probability", "encounter_rate",
-                          "encounter_rate_cv", "density", "density_cv", "density_ci", "abundance",
-                          "abundance_ci", "gof"})
+  for (const char* key : {"species",
+                          "stratum",
+                          "model",
+                          "adjustments",
+                          "parameters",
+                          "aic",
+                          "n",
+                          "effort",
+                          "truncation",
+                          "esw",
+                          "effective_area",
+                          "detection_probability",
+                          "encounter_rate",
+                          "encounter_rate_cv",
+                          "density",
+                          "density_cv",
+                          "density_ci",
+                          "abundance",
+                          "abundance_ci",
+                          "gof"})
     EXPECT_TRUE(e.contains(key)) << key;
   for (const char* key : {"chi_square_p", "ks_p", "cvm_p"}) EXPECT_TRUE(e["gof"].contains(key)) << key;
   EXPECT_TRUE(e["adjustments"].is_array());
@@ -67,17 +83,20 @@ TEST(TransectCli, JsonContractHolds) {
 TEST(TransectCli, DistancesFromLocationsMatchRecordedOnes) {
   // Without --distance-field, distances come from the sightings' locations (Boost.Geometry).
   const auto recorded = nlohmann::json::parse(run_cli(demo("--models half-normal --adjustments none --json -")).out);
-  const auto located = nlohmann::json::parse(
-      run_cli("transect " + sample("transects.gpkg") + " --lines " + sample("transects.gpkg") +
-              " --size-field size --models half-normal --adjustments none --json -").out);
+  const auto located =
+      nlohmann::json::parse(run_cli("transect " + sample("transects.gpkg") + " --lines " + sample("transects.gpkg") +
+                                    " --size-field size --models half-normal --adjustments none --json -")
+                                .out);
   EXPECT_NEAR(located["results"][0]["esw"].get<double>(), recorded["results"][0]["esw"].get<double>(), 0.05);
   EXPECT_EQ(located["results"][0]["n"], recorded["results"][0]["n"]);
 }
 
 TEST(TransectCli, BinnedPooledBootstrapAndFigures) {
   TempDir out;
-  const auto r = run_cli(demo("--bins 0,10,25,50,100,150,210 --pool-detection --bootstrap 49 --target-cv 0.15 "
-                              "--figures " + out.file("fig") + " --csv " + out.file("t.csv") + " --json -"));
+  const auto r =
+      run_cli(demo("--bins 0,10,25,50,100,150,210 --pool-detection --bootstrap 49 --target-cv 0.15 "
+                   "--figures " +
+                   out.file("fig") + " --csv " + out.file("t.csv") + " --json -"));
   ASSERT_EQ(r.exit_code, 0) << r.err;
   const auto doc = nlohmann::json::parse(r.out);
   EXPECT_EQ(doc["truncation"], 210.0);
@@ -102,11 +121,14 @@ TEST(TransectCli, BinnedPooledBootstrapAndFigures) {
   std::getline(csv, row);
   std::vector<std::string> cells(1);
   for (const char c : row) {
-    if (c == ',') cells.emplace_back();
-    else cells.back() += c;
+    if (c == ',')
+      cells.emplace_back();
+    else
+      cells.back() += c;
   }
   EXPECT_DOUBLE_EQ(std::stod(cells.at(column("bootstrap_ci_low"))), doc["results"][0]["bootstrap_ci"][0].get<double>());
-  EXPECT_DOUBLE_EQ(std::stod(cells.at(column("bootstrap_ci_high"))), doc["results"][0]["bootstrap_ci"][1].get<double>());
+  EXPECT_DOUBLE_EQ(std::stod(cells.at(column("bootstrap_ci_high"))),
+                   doc["results"][0]["bootstrap_ci"][1].get<double>());
   const auto table = run_cli(demo("--bootstrap 49"));
   ASSERT_EQ(table.exit_code, 0) << table.err;
   EXPECT_NE(table.out.find("95% bootstrap"), std::string::npos) << table.out;
@@ -119,7 +141,8 @@ TEST(TransectCli, EffortPlanning) {
   const auto r = run_cli("effort --pilot-detections 40 --pilot-effort 10 --target-cv 0.1");
   ASSERT_EQ(r.exit_code, 0) << r.err;
   EXPECT_NE(r.out.find("75"), std::string::npos) << r.out;
-  expect_refused(run_cli("effort --pilot-detections 0 --pilot-effort 10 --target-cv 0.1"), "--pilot-detections: must be a number greater than 0");
+  expect_refused(run_cli("effort --pilot-detections 0 --pilot-effort 10 --target-cv 0.1"),
+                 "--pilot-detections: must be a number greater than 0");
   // The same as JSON, at full precision.
   const auto j = run_cli("effort --pilot-detections 40 --pilot-effort 10 --target-cv 0.1 --json -");
   ASSERT_EQ(j.exit_code, 0) << j.err;
@@ -134,11 +157,12 @@ struct TransectFixture {
   TempDir dir;
   std::string lines;
   TransectFixture() {
-    lines = dir.write("lines.geojson",
-                      test::geojson_utm("{\"type\":\"Feature\",\"properties\":{\"transect\":\"A\"},\"geometry\":{\"type\":"
-                                        "\"LineString\",\"coordinates\":[[512000,6290000],[512000,6291000]]}},"
-                                        "{\"type\":\"Feature\",\"properties\":{\"transect\":\"B\"},\"geometry\":{\"type\":"
-                                        "\"LineString\",\"coordinates\":[[512500,6290000],[512500,6291000]]}}"));
+    lines =
+        dir.write("lines.geojson",
+                  test::geojson_utm("{\"type\":\"Feature\",\"properties\":{\"transect\":\"A\"},\"geometry\":{\"type\":"
+                                    "\"LineString\",\"coordinates\":[[512000,6290000],[512000,6291000]]}},"
+                                    "{\"type\":\"Feature\",\"properties\":{\"transect\":\"B\"},\"geometry\":{\"type\":"
+                                    "\"LineString\",\"coordinates\":[[512500,6290000],[512500,6291000]]}}"));
   }
   std::string sightings(const std::string& rows) const {
     (void)dir.write("s.prj", test::utm30_prj());
@@ -155,10 +179,12 @@ struct TransectFixture {
 
 TEST(TransectCliBadInput, NegativeOrMissingDistance) {
   TransectFixture f;
-  expect_refused(run_cli("transect " + f.many("512000,6290500,hare,A,-4\n") + " --lines " + f.lines + " --distance-field distance"),
+  expect_refused(run_cli("transect " + f.many("512000,6290500,hare,A,-4\n") + " --lines " + f.lines +
+                         " --distance-field distance"),
                  "s.csv: layer 's': feature 31: distance -4 is negative");
-  expect_refused(run_cli("transect " + f.many("512000,6290500,hare,A,\n") + " --lines " + f.lines + " --distance-field distance"),
-                 "feature 31: distance field 'distance' is empty");
+  expect_refused(
+      run_cli("transect " + f.many("512000,6290500,hare,A,\n") + " --lines " + f.lines + " --distance-field distance"),
+      "feature 31: distance field 'distance' is empty");
 }
 
 TEST(TransectCliBadInput, ImplausibleDistanceOrUnknownTransect) {
@@ -187,15 +213,17 @@ TEST(TransectCliBadInput, SightingFarFromEveryTransect) {
   TransectFixture f;
   (void)f.dir.write("far.prj", test::utm30_prj());
   const auto far = f.dir.write("far.csv", "x,y,species\n512010,6290500,hare\n530000,6290500,hare\n");
-  expect_refused(run_cli("transect " + far + " --lines " + f.lines),
-                 "far.csv: layer 'far': feature 2: lies 17500 m from the nearest transect, more than --max-offset 1000 m");
+  expect_refused(
+      run_cli("transect " + far + " --lines " + f.lines),
+      "far.csv: layer 'far': feature 2: lies 17500 m from the nearest transect, more than --max-offset 1000 m");
 }
 
 TEST(TransectCliBadInput, ZeroLengthLine) {
   TransectFixture f;
-  const auto lines = f.dir.write("zero.geojson",
-                                 test::geojson_utm("{\"type\":\"Feature\",\"properties\":{\"transect\":\"A\"},\"geometry\":{\"type\":"
-                                                   "\"LineString\",\"coordinates\":[[512000,6290000],[512000,6290000]]}}"));
+  const auto lines =
+      f.dir.write("zero.geojson",
+                  test::geojson_utm("{\"type\":\"Feature\",\"properties\":{\"transect\":\"A\"},\"geometry\":{\"type\":"
+                                    "\"LineString\",\"coordinates\":[[512000,6290000],[512000,6290000]]}}"));
   expect_refused(run_cli("transect " + f.many("") + " --lines " + lines + " --distance-field distance"),
                  "zero.geojson: layer 'zero': transect 'A' has zero length");
 }
@@ -209,13 +237,17 @@ TEST(TransectCliBadInput, TooFewSightings) {
 
 TEST(TransectCliBadInput, UnknownTransectAndBadOptions) {
   TransectFixture f;
-  expect_refused(run_cli("transect " + f.many("512000,6290500,hare,Z,4\n") + " --lines " + f.lines + " --distance-field distance"),
-                 "feature 31: transect 'Z' is not in");
-  expect_refused(run_cli("transect " + f.many("") + " --distance-field distance"), "exactly one of --lines PATH or --stations PATH");
-  expect_refused(run_cli("transect " + f.many("") + " --lines " + f.lines + " --distance-field distance --truncate 120%"),
-                 "--truncate 120%: a percentage must lie in [0, 100)");
-  expect_refused(run_cli("transect " + f.many("") + " --lines " + f.lines + " --distance-field distance --models logistic"),
-                 "--models takes half-normal, hazard-rate, uniform");
+  expect_refused(
+      run_cli("transect " + f.many("512000,6290500,hare,Z,4\n") + " --lines " + f.lines + " --distance-field distance"),
+      "feature 31: transect 'Z' is not in");
+  expect_refused(run_cli("transect " + f.many("") + " --distance-field distance"),
+                 "exactly one of --lines PATH or --stations PATH");
+  expect_refused(
+      run_cli("transect " + f.many("") + " --lines " + f.lines + " --distance-field distance --truncate 120%"),
+      "--truncate 120%: a percentage must lie in [0, 100)");
+  expect_refused(
+      run_cli("transect " + f.many("") + " --lines " + f.lines + " --distance-field distance --models logistic"),
+      "--models takes half-normal, hazard-rate, uniform");
   expect_refused(run_cli("transect " + f.many("") + " --lines " + f.lines + " --distance-field dist"),
                  "no field 'dist'");
 }
@@ -231,9 +263,9 @@ TEST(TransectCli, PointStationsCountVisits) {
   test::TempDir dir;
   std::string stations;
   for (int i = 0; i < 10; ++i)
-    stations += std::string(i ? "," : "") + "{\"type\":\"Feature\",\"properties\":{\"transect\":\"S" + std::to_string(i) +
-                "\",\"visits\":2},\"geometry\":{\"type\":\"Point\",\"coordinates\":[" + std::to_string(512000 + 200 * i) +
-                ",6290000]}}";
+    stations += std::string(i ? "," : "") + "{\"type\":\"Feature\",\"properties\":{\"transect\":\"S" +
+                std::to_string(i) + "\",\"visits\":2},\"geometry\":{\"type\":\"Point\",\"coordinates\":[" +
+                std::to_string(512000 + 200 * i) + ",6290000]}}";
   const auto stations_path = dir.write("stations.geojson", test::geojson_utm(stations));
   std::string rows = "species,transect,distance\n";
   for (int i = 0; i < 80; ++i)
@@ -261,15 +293,17 @@ TEST(TransectCli, StrataGetTheirOwnEncounterRates) {
   std::string lines;
   for (int i = 0; i < 6; ++i)
     lines += std::string(i ? "," : "") + "{\"type\":\"Feature\",\"properties\":{\"transect\":\"L" + std::to_string(i) +
-             "\",\"habitat\":\"" + (i < 3 ? "heath" : "wood") + "\"},\"geometry\":{\"type\":\"LineString\",\"coordinates\":[[" +
-             std::to_string(512000 + 500 * i) + ",6290000],[" + std::to_string(512000 + 500 * i) + ",6291000]]}}";
+             "\",\"habitat\":\"" + (i < 3 ? "heath" : "wood") +
+             "\"},\"geometry\":{\"type\":\"LineString\",\"coordinates\":[[" + std::to_string(512000 + 500 * i) +
+             ",6290000],[" + std::to_string(512000 + 500 * i) + ",6291000]]}}";
   const auto lines_path = dir.write("lines.geojson", test::geojson_utm(lines));
   std::string rows = "species,transect,distance\n";
   for (int i = 0; i < 90; ++i)
     rows += "hare,L" + std::to_string(i % 6 < 3 ? i % 3 : 3 + i % 3) + "," + std::to_string((i * 13) % 50) + "\n";
   for (int i = 0; i < 30; ++i) rows += "hare,L" + std::to_string(i % 3) + "," + std::to_string((i * 7) % 40) + "\n";
   const auto path = dir.write("s.csv", rows);
-  const auto r = test::run_cli("transect " + path + " --lines " + lines_path + " --distance-field distance --stratum-field habitat "
+  const auto r = test::run_cli("transect " + path + " --lines " + lines_path +
+                               " --distance-field distance --stratum-field habitat "
                                "--models half-normal --adjustments none --study-area 12 --json -");
   ASSERT_EQ(r.exit_code, 0) << r.err;
   const auto doc = nlohmann::json::parse(r.out);

@@ -17,8 +17,7 @@ extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size
     const auto table = stipple::read_detection_table(file.path(), std::nullopt);
     for (const auto& species : table.listed_species()) {
       const stipple::Detection d = table.for_species(species);
-      if (!(d.probability > 0.0 && d.probability <= 1.0) || !std::isfinite(d.standard_error) ||
-          d.standard_error < 0.0)
+      if (!(d.probability > 0.0 && d.probability <= 1.0) || !std::isfinite(d.standard_error) || d.standard_error < 0.0)
         std::abort();
     }
   } catch (const stipple::InputError&) {

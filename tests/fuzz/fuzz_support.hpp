@@ -2,12 +2,12 @@
 // Shared by the fuzz targets: a private temporary file holding the fuzzer's bytes, and the
 // errors stipple is allowed to answer with. Anything else escaping a target is a finding.
 
+#include <unistd.h>
 #include <cstddef>
 #include <cstdint>
 #include <cstdio>
 #include <cstdlib>
 #include <string>
-#include <unistd.h>
 
 namespace stipple::fuzz {
 

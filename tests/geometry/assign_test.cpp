@@ -42,8 +42,7 @@ TEST(AssignToPlots, AttributeDecidesAndMismatchesAreReported) {
 }
 
 TEST(AssignToPlots, RefusesOverlappingPlots) {
-  std::vector<Plot> plots{Plot{"A", Window::rectangle(0, 0, 10, 10)},
-                          Plot{"B", Window::rectangle(5, 0, 15, 10)}};
+  std::vector<Plot> plots{Plot{"A", Window::rectangle(0, 0, 10, 10)}, Plot{"B", Window::rectangle(5, 0, 15, 10)}};
   try {
     (void)assign_to_plots({}, plots);
     FAIL();
@@ -51,8 +50,8 @@ TEST(AssignToPlots, RefusesOverlappingPlots) {
     EXPECT_NE(std::string(e.what()).find("plots 'A' and 'B' overlap"), std::string::npos);
   }
   // Shared edges are fine.
-  EXPECT_NO_THROW((void)assign_to_plots({}, {Plot{"A", Window::rectangle(0, 0, 10, 10)},
-                                             Plot{"B", Window::rectangle(10, 0, 20, 10)}}));
+  EXPECT_NO_THROW((void)assign_to_plots(
+      {}, {Plot{"A", Window::rectangle(0, 0, 10, 10)}, Plot{"B", Window::rectangle(10, 0, 20, 10)}}));
 }
 
 }  // namespace

@@ -18,16 +18,18 @@
 namespace stipple {
 namespace {
 
-double distance(const Point& a, const Point& b) { return std::hypot(a.x - b.x, a.y - b.y); }
+double distance(const Point& a, const Point& b) {
+  return std::hypot(a.x - b.x, a.y - b.y);
+}
 
 std::vector<Point> test_points() {
   Engine engine(derive_seed(1, "spatial-index-test"));
   boost::random::uniform_real_distribution<double> u(0.0, 100.0);
   boost::random::uniform_real_distribution<double> near(-0.5, 0.5);
   std::vector<Point> points;
-  for (int i = 0; i < 300; ++i) points.push_back({u(engine), u(engine) * 0.3});  // a long strip
+  for (int i = 0; i < 300; ++i) points.push_back({u(engine), u(engine) * 0.3});                // a long strip
   for (int i = 0; i < 100; ++i) points.push_back({50.0 + near(engine), 10.0 + near(engine)});  // a tight cluster
-  points.push_back(points[7]);  // an exact duplicate
+  points.push_back(points[7]);                                                                 // an exact duplicate
   points.push_back({1e3, 1e3});  // far outlier: a sparse grid corner
   return points;
 }

@@ -3,9 +3,9 @@
 #include <cmath>
 #include <memory>
 
-#include <boost/geometry.hpp>
 #include <gtest/gtest.h>
 #include <ogr_geometry.h>
+#include <boost/geometry.hpp>
 
 #include "stipple/error.hpp"
 
@@ -44,8 +44,7 @@ TEST(Window, AreasMatchGdal) {
 
 TEST(Window, HolesAndPartsAreCounted) {
   const Window w = Window::from_polygons(
-      from_wkt("MULTIPOLYGON(((0 0,0 10,10 10,10 0,0 0),(4 4,6 4,6 6,4 6,4 4)),((20 0,20 5,25 5,25 0,20 0)))"),
-      "test");
+      from_wkt("MULTIPOLYGON(((0 0,0 10,10 10,10 0,0 0),(4 4,6 4,6 6,4 6,4 4)),((20 0,20 5,25 5,25 0,20 0)))"), "test");
   EXPECT_EQ(w.part_count(), 2u);
   EXPECT_EQ(w.hole_count(), 1u);
   EXPECT_NEAR(w.area_m2(), 100.0 - 4.0 + 25.0, 1e-9);
@@ -69,23 +68,20 @@ TEST(Window, RefusesSelfIntersectingPolygon) {
     (void)Window::from_polygons(from_wkt("MULTIPOLYGON(((0 0,10 10,10 0,0 10,0 0)))"), "plots.gpkg");
     FAIL();
   } catch (const InputError& e) {
-    EXPECT_NE(std::string(e.what()).find("plots.gpkg: plot polygon is not valid"), std::string::npos)
-        << e.what();
+    EXPECT_NE(std::string(e.what()).find("plots.gpkg: plot polygon is not valid"), std::string::npos) << e.what();
     EXPECT_NE(std::string(e.what()).find("repair_geometry"), std::string::npos);
   }
 }
 
 TEST(Window, RefusesEmptyAndZeroArea) {
   EXPECT_THROW((void)Window::from_polygons(BgMultiPolygon{}, "x"), InputError);
-  EXPECT_THROW((void)Window::from_polygons(from_wkt("MULTIPOLYGON(((0 0,5 0,10 0,0 0)))"), "x"),
-               InputError);
+  EXPECT_THROW((void)Window::from_polygons(from_wkt("MULTIPOLYGON(((0 0,5 0,10 0,0 0)))"), "x"), InputError);
 }
 
 TEST(RipleyRassonHull, DilatesHullByPublishedFactor) {
   // Source: Ripley & Rasson (1977): hull dilated about its centroid by 1/sqrt(1 - m/n), so
   // the area grows by n / (n - m). Square hull (m = 4) with 4 interior points: n = 8.
-  const std::vector<Point> points{{0, 0}, {10, 0}, {10, 10}, {0, 10},
-                                  {3, 3}, {7, 3},  {3, 7},   {7, 7}};
+  const std::vector<Point> points{{0, 0}, {10, 0}, {10, 10}, {0, 10}, {3, 3}, {7, 3}, {3, 7}, {7, 7}};
   const Window w = ripley_rasson_hull(points, "test");
   EXPECT_NEAR(w.area_m2(), 100.0 * 8.0 / 4.0, 1e-9);
   EXPECT_THROW((void)ripley_rasson_hull({{0, 0}, {1, 1}, {2, 2}}, "test"), AnalysisError);

@@ -12,8 +12,7 @@ namespace {
 
 // A survey of three square plots with the given areas (m2) and, per plot, counts of
 // species "a" and "b" placed on a grid inside each plot.
-Survey make_survey(const std::vector<double>& areas_m2,
-                   const std::vector<std::vector<std::uint64_t>>& counts) {
+Survey make_survey(const std::vector<double>& areas_m2, const std::vector<std::vector<std::uint64_t>>& counts) {
   std::vector<Sighting> sightings;
   std::vector<Plot> plots;
   double x0 = 0.0;
@@ -24,8 +23,8 @@ Survey make_survey(const std::vector<double>& areas_m2,
     for (std::size_t s = 0; s < counts[i].size(); ++s) {
       for (std::uint64_t k = 0; k < counts[i][s]; ++k) {
         const double u = (static_cast<double>(k) + 0.5) / static_cast<double>(counts[i][s]);
-        sightings.push_back(Sighting{{x0 + side * u, side * (0.25 + 0.5 * static_cast<double>(s))},
-                                     fid++, s == 0 ? "a" : "b", std::nullopt});
+        sightings.push_back(Sighting{
+            {x0 + side * u, side * (0.25 + 0.5 * static_cast<double>(s))}, fid++, s == 0 ? "a" : "b", std::nullopt});
       }
     }
     x0 += side + 10.0;
@@ -57,7 +56,8 @@ TEST(EstimateDensity, CountsAloneAndAppendedSurveysGiveTheSameResult) {
       const auto near = [](double a, double b) { return std::abs(a - b) <= 1e-12 * std::abs(b); };
       EXPECT_TRUE(near(r->pooled[i].area, direct.pooled[i].area));
       EXPECT_TRUE(near(r->pooled[i].ci.upper, direct.pooled[i].ci.upper));
-      EXPECT_TRUE(near(r->pooled[i].homogeneity->chi_square.statistic, direct.pooled[i].homogeneity->chi_square.statistic));
+      EXPECT_TRUE(
+          near(r->pooled[i].homogeneity->chi_square.statistic, direct.pooled[i].homogeneity->chi_square.statistic));
       EXPECT_EQ(r->pooled[i].homogeneity->chi_square.df, direct.pooled[i].homogeneity->chi_square.df);
     }
   }
@@ -133,8 +133,7 @@ TEST(EstimateDensity, HeterogeneousPlotsReportBetweenPlotError) {
   EXPECT_TRUE(h.significant);
   const double expected_se = std::sqrt(1.5 * (40.0 * 40.0 + 0.0 + 40.0 * 40.0)) / 3.0;
   EXPECT_NEAR(h.between_plot_se, expected_se, 1e-9);
-  EXPECT_GT(h.between_plot_ci.upper - h.between_plot_ci.lower,
-            r.pooled.front().ci.upper - r.pooled.front().ci.lower);
+  EXPECT_GT(h.between_plot_ci.upper - h.between_plot_ci.lower, r.pooled.front().ci.upper - r.pooled.front().ci.lower);
 }
 
 TEST(EstimateDensity, BetweenPlotIntervalIsOnTheCorrectedScale) {
@@ -175,8 +174,7 @@ TEST(EstimateDensity, BetweenPlotIntervalIsOnTheCorrectedScale) {
 TEST(EstimateDensity, AllSpeciesRowIsTheSuperposition) {
   const Survey survey = make_survey({1e4}, {{12, 8}});
   DensityOptions options;
-  options.detection = DetectionTable::by_species({{"a", {0.5, 0.0}}, {"b", {1.0, 0.0}}},
-                                                 std::nullopt, "test");
+  options.detection = DetectionTable::by_species({{"a", {0.5, 0.0}}, {"b", {1.0, 0.0}}}, std::nullopt, "test");
   const DensityResult r = estimate_density(survey, options);
   ASSERT_EQ(r.estimates.size(), 3u);
   EXPECT_FALSE(r.estimates[2].species);

@@ -39,8 +39,7 @@ TEST(DetectionCorrection, CertainDetectionIsTheObservedInterval) {
 
 TEST(DetectionCorrection, SuperposedSpeciesAddTheirCorrectedRates) {
   // Superposition (rates add; Kingman 1993, from memory: section 2.2): D = sum n_s/p_s / A.
-  const auto c =
-      correct_for_detection({30, 10}, {Detection{0.5, 0.0}, Detection{1.0, 0.0}}, 2.0, 0.95);
+  const auto c = correct_for_detection({30, 10}, {Detection{0.5, 0.0}, Detection{1.0, 0.0}}, 2.0, 0.95);
   EXPECT_NEAR(c.intensity, (60.0 + 10.0) / 2.0, 1e-12);
   EXPECT_NEAR(c.detection_probability, 40.0 / 70.0, 1e-12);
   // Delta method: var = 30/0.25 + 10 = 130 on the total 70.
@@ -76,11 +75,9 @@ TEST(DetectionTable, UnlistedSpeciesNeedsFallback) {
     (void)table.for_species("birch");
     ADD_FAILURE();
   } catch (const InputError& e) {
-    EXPECT_NE(std::string(e.what()).find("p.csv: no detection probability for species 'birch'"),
-              std::string::npos);
+    EXPECT_NE(std::string(e.what()).find("p.csv: no detection probability for species 'birch'"), std::string::npos);
   }
-  const auto with_fallback =
-      DetectionTable::by_species({{"hazel", {0.9, 0.03}}}, Detection{0.7, 0.0}, "p.csv");
+  const auto with_fallback = DetectionTable::by_species({{"hazel", {0.9, 0.03}}}, Detection{0.7, 0.0}, "p.csv");
   EXPECT_EQ(with_fallback.for_species("birch").probability, 0.7);
   EXPECT_FALSE(with_fallback.is_certain());
   EXPECT_TRUE(DetectionTable().is_certain());

@@ -6,9 +6,9 @@
 #include <cmath>
 #include <optional>
 
+#include <gtest/gtest.h>
 #include <boost/geometry.hpp>
 #include <boost/math/distributions/normal.hpp>
-#include <gtest/gtest.h>
 
 #include "stipple/error.hpp"
 #include "stipple/geometry/survey.hpp"
@@ -30,8 +30,8 @@ double box_mass(const Point& u, double h, double x0, double y0, double x1, doubl
 TEST(GaussianWindowMass, RectangleEqualsTheProductOfNormalProbabilities) {
   const Window w = Window::rectangle(0, 0, 40, 25);
   const double h = 6.0;
-  for (const Point u : {Point{20, 12.5}, Point{0.3, 0.2}, Point{1, 12}, Point{39.9, 24.5}, Point{10, 0.0},
-                        Point{5, 5}, Point{38, 3}}) {
+  for (const Point u :
+       {Point{20, 12.5}, Point{0.3, 0.2}, Point{1, 12}, Point{39.9, 24.5}, Point{10, 0.0}, Point{5, 5}, Point{38, 3}}) {
     EXPECT_NEAR(gaussian_window_mass(w, u, h), box_mass(u, h, 0, 0, 40, 25), 1e-9) << u.x << "," << u.y;
   }
 }
@@ -40,13 +40,13 @@ TEST(GaussianWindowMass, PolygonWithHoleIsTheSumOfItsRectangles) {
   // L shape [0,60]x[0,40] u [0,30]x[40,70], less the hole [10,20]x[10,20]: masses add over
   // disjoint rectangles (common practice).
   BgMultiPolygon shape;
-  boost::geometry::read_wkt(
-      "MULTIPOLYGON(((0 0,0 70,30 70,30 40,60 40,60 0,0 0),(10 10,20 10,20 20,10 20,10 10)))", shape);
+  boost::geometry::read_wkt("MULTIPOLYGON(((0 0,0 70,30 70,30 40,60 40,60 0,0 0),(10 10,20 10,20 20,10 20,10 10)))",
+                            shape);
   const Window w = Window::from_polygons(shape, "test");
   const double h = 5.0;
   for (const Point u : {Point{25, 38}, Point{9, 15}, Point{31, 41}, Point{2, 68}, Point{58, 2}, Point{15, 21}}) {
-    const double expected = box_mass(u, h, 0, 0, 60, 40) + box_mass(u, h, 0, 40, 30, 70) -
-                            box_mass(u, h, 10, 10, 20, 20);
+    const double expected =
+        box_mass(u, h, 0, 0, 60, 40) + box_mass(u, h, 0, 40, 30, 70) - box_mass(u, h, 10, 10, 20, 20);
     EXPECT_NEAR(gaussian_window_mass(w, u, h), expected, 1e-9) << u.x << "," << u.y;
   }
 }
@@ -105,8 +105,10 @@ Survey two_plot_survey() {
   for (const Point p : {Point{5, 5}, Point{12, 8}, Point{20, 20}, Point{30, 12}, Point{35, 30}, Point{8, 33}})
     sightings.push_back({p, ++fid, "oak", std::nullopt});
   for (const Point p : {Point{15, 25}, Point{28, 6}}) sightings.push_back({p, ++fid, "ash", std::nullopt});
-  for (const Point p : {Point{65, 10}, Point{72, 25}, Point{80, 18}}) sightings.push_back({p, ++fid, "oak", std::nullopt});
-  return assign_to_plots(sightings, {Plot{"A", Window::rectangle(0, 0, 40, 40)}, Plot{"B", Window::rectangle(60, 0, 90, 30)}});
+  for (const Point p : {Point{65, 10}, Point{72, 25}, Point{80, 18}})
+    sightings.push_back({p, ++fid, "oak", std::nullopt});
+  return assign_to_plots(sightings,
+                         {Plot{"A", Window::rectangle(0, 0, 40, 40)}, Plot{"B", Window::rectangle(60, 0, 90, 30)}});
 }
 
 // Sum of the raster's values over the pixels whose centres lie in `w`, times the pixel area.

@@ -11,8 +11,8 @@
 #include <vector>
 
 #include <gtest/gtest.h>
-#include <nlohmann/json.hpp>
 #include <ogr_spatialref.h>
+#include <nlohmann/json.hpp>
 
 #include "stipple/format.hpp"
 #include "support.hpp"
@@ -43,8 +43,8 @@ double ellipsoid_cell_area(double lon1, double lat1, double lon2, double lat2) {
 std::string lonlat_cell(const std::string& id, double lon1, double lat1, double lon2, double lat2) {
   std::ostringstream ring;
   ring.precision(12);
-  ring << "[[" << lon1 << "," << lat1 << "],[" << lon2 << "," << lat1 << "],[" << lon2 << "," << lat2 << "],["
-       << lon1 << "," << lat2 << "],[" << lon1 << "," << lat1 << "]]";
+  ring << "[[" << lon1 << "," << lat1 << "],[" << lon2 << "," << lat1 << "],[" << lon2 << "," << lat2 << "],[" << lon1
+       << "," << lat2 << "],[" << lon1 << "," << lat1 << "]]";
   return plot_feature(id, ring.str());
 }
 
@@ -69,7 +69,8 @@ Json density_json_of(const TempDir& dir, const std::vector<Cell>& cells) {
     row << (lon > 180.0 ? lon - 360.0 : lon) << "," << 0.5 * (c.lat1 + c.lat2) << ",heather\n";
     sightings += row.str();
   }
-  const std::string plots = dir.write("plots.geojson", "{\"type\":\"FeatureCollection\",\"features\":[" + features + "]}");
+  const std::string plots =
+      dir.write("plots.geojson", "{\"type\":\"FeatureCollection\",\"features\":[" + features + "]}");
   const std::string csv = dir.write("sightings.csv", sightings);
   const auto r = run_cli(csv + " --plots " + plots + " --assume-crs EPSG:4326 --unit m2 --json -");
   EXPECT_EQ(r.exit_code, 0) << r.err;
@@ -101,7 +102,8 @@ TEST_P(GeodesicAreas, EveryPlotWithinOneTenThousandthOfTheEllipsoidalArea) {
 
 INSTANTIATE_TEST_SUITE_P(
     Surveys, GeodesicAreas,
-    testing::Values(AreaCase{"antimeridian", {{"east", 179.98, -17.0, 179.99, -16.99}, {"west", -179.99, -17.0, -179.98, -16.99}}},
+    testing::Values(AreaCase{"antimeridian",
+                             {{"east", 179.98, -17.0, 179.99, -16.99}, {"west", -179.99, -17.0, -179.98, -16.99}}},
                     AreaCase{"across", {{"straddle", 179.995, 64.0, -179.995, 64.01}}},
                     AreaCase{"two_utm_zones", {{"west", -4.02, 60.0, -4.0, 60.01}, {"east", 4.0, 60.0, 4.02, 60.01}}},
                     AreaCase{"near_pole", {{"a", 10.0, 88.5, 10.01, 88.51}, {"b", 100.0, 88.5, 100.01, 88.51}}},
@@ -128,9 +130,11 @@ TEST(GeodesicAreas, ProjectedInputThatMisstatesAreasIsReplaced) {
   ring << "[";
   for (int i = 0; i < 5; ++i) ring << (i ? "," : "") << "[" << xs[i] << "," << ys[i] << "]";
   ring << "]";
-  const std::string plots = dir.write(
-      "plots.geojson", "{\"type\":\"FeatureCollection\",\"crs\":{\"type\":\"name\",\"properties\":{\"name\":"
-                       "\"urn:ogc:def:crs:EPSG::32631\"}},\"features\":[" + plot_feature("far", ring.str()) + "]}");
+  const std::string plots =
+      dir.write("plots.geojson",
+                "{\"type\":\"FeatureCollection\",\"crs\":{\"type\":\"name\",\"properties\":{\"name\":"
+                "\"urn:ogc:def:crs:EPSG::32631\"}},\"features\":[" +
+                    plot_feature("far", ring.str()) + "]}");
   std::ostringstream sighting;
   sighting.precision(12);
   sighting << "x,y,species\n" << 0.5 * (xs[0] + xs[1]) << "," << 0.5 * (ys[0] + ys[2]) << ",heather\n";
@@ -147,9 +151,12 @@ TEST(GeodesicAreas, ProjectedInputThatMisstatesAreasIsReplaced) {
 // chi2(0.975; 2)/2 = 3.6888794541139363 (scipy.stats.chi2.ppf(0.975, 2) / 2) over its area.
 TEST(NoSilentLoss, PlotsWithoutSightingsKeepCountZeroAndTheExactInterval) {
   TempDir dir;
-  const std::string plots = dir.write("plots.geojson", geojson_utm(
-      plot_feature("A", "[[440000,4470000],[440100,4470000],[440100,4470100],[440000,4470100],[440000,4470000]]") + "," +
-      plot_feature("B", "[[440200,4470000],[440400,4470000],[440400,4470100],[440200,4470100],[440200,4470000]]")));
+  const std::string plots = dir.write(
+      "plots.geojson",
+      geojson_utm(
+          plot_feature("A", "[[440000,4470000],[440100,4470000],[440100,4470100],[440000,4470100],[440000,4470000]]") +
+          "," +
+          plot_feature("B", "[[440200,4470000],[440400,4470000],[440400,4470100],[440200,4470100],[440200,4470000]]")));
   const std::string csv = dir.write("empty.csv", "x,y,species\n");
   const auto r = run_cli(csv + " --plots " + plots + " --assume-crs EPSG:32630 --unit m2 --json -");
   ASSERT_EQ(r.exit_code, 0) << r.err;
@@ -168,8 +175,10 @@ TEST(NoSilentLoss, PlotsWithoutSightingsKeepCountZeroAndTheExactInterval) {
 
 TEST(NoSilentLoss, BlankRowsDuplicatesAndNameVariantsAreReported) {
   TempDir dir;
-  const std::string plots = dir.write("plots.geojson", geojson_utm(plot_feature(
-      "A", "[[440000,4470000],[440100,4470000],[440100,4470100],[440000,4470100],[440000,4470000]]")));
+  const std::string plots =
+      dir.write("plots.geojson",
+                geojson_utm(plot_feature(
+                    "A", "[[440000,4470000],[440100,4470000],[440100,4470100],[440000,4470100],[440000,4470000]]")));
   const std::string csv = dir.write("s.csv",
                                     "x,y,species\n440010,4470010,Gorse\n,,\n440020,4470020,gorse \n"
                                     "440020,4470020,gorse\n440050,4470060,heather\n, ,\n");
@@ -194,7 +203,8 @@ TEST(NoSilentLoss, BlankRowsDuplicatesAndNameVariantsAreReported) {
     }
   }
   // The randomness JSON carries the same duplicates.
-  const auto rr = run_cli("randomness " + csv + " --plots " + plots + " --assume-crs EPSG:32630 --simulations 19 --json -");
+  const auto rr =
+      run_cli("randomness " + csv + " --plots " + plots + " --assume-crs EPSG:32630 --simulations 19 --json -");
   ASSERT_EQ(rr.exit_code, 0) << rr.err;
   EXPECT_EQ(Json::parse(rr.out)["duplicate_locations"][0]["feature_ids"], Json({3, 4}));
 }
@@ -223,7 +233,8 @@ TEST(Encoding, Latin1ShapefileIsDecodedOrVisiblyReplaced) {
 // waypoint label. Assignment by location, or by the sightings' own plot field, works.
 TEST(Attributes, SightingsPlotFieldAndAssignmentByLocation) {
   const std::string bad = std::string(STIPPLE_TEST_DATA_DIR) + "/bad/";
-  const std::string base = bad + "named-sightings.csv --plots " + bad + "named-plots.geojson --assume-crs EPSG:32630 --plot-field Name";
+  const std::string base =
+      bad + "named-sightings.csv --plots " + bad + "named-plots.geojson --assume-crs EPSG:32630 --plot-field Name";
   const auto by_location = run_cli(base + " --assign location --json -");
   ASSERT_EQ(by_location.exit_code, 0) << by_location.err;
   const Json doc = Json::parse(by_location.out);
@@ -234,10 +245,12 @@ TEST(Attributes, SightingsPlotFieldAndAssignmentByLocation) {
   EXPECT_EQ(total, 20);
 
   TempDir dir;
-  const std::string csv = dir.write("s.csv", "x,y,species,Name,plot_name\n440010,4470015,gorse,wp1,Plot A\n"
-                                             "440215,4470012,gorse,wp2,Plot B\n440030,4470040,heather,wp3,Plot A\n");
-  const auto by_field = run_cli(csv + " --plots " + bad + "named-plots.geojson --assume-crs EPSG:32630 --plot-field Name "
-                                      "--sightings-plot-field plot_name --json -");
+  const std::string csv = dir.write("s.csv",
+                                    "x,y,species,Name,plot_name\n440010,4470015,gorse,wp1,Plot A\n"
+                                    "440215,4470012,gorse,wp2,Plot B\n440030,4470040,heather,wp3,Plot A\n");
+  const auto by_field = run_cli(csv + " --plots " + bad +
+                                "named-plots.geojson --assume-crs EPSG:32630 --plot-field Name "
+                                "--sightings-plot-field plot_name --json -");
   ASSERT_EQ(by_field.exit_code, 0) << by_field.err;
   const Json f = Json::parse(by_field.out);
   EXPECT_EQ(f["assignment"]["by"], "attribute");
@@ -254,7 +267,8 @@ TEST(Attributes, SightingsTransectFieldNamesTheirOwnIds) {
   std::string rows = "line_name,distance,species\n";
   for (int i = 0; i < 30; ++i) rows += "T" + std::to_string(i % 3) + "," + std::to_string(2 + (i * 7) % 40) + ",hare\n";
   const std::string csv = dir.write("d.csv", rows);
-  const auto r = run_cli("transect " + csv + " --lines " + bad + "lines.geojson --distance-field distance "
+  const auto r = run_cli("transect " + csv + " --lines " + bad +
+                         "lines.geojson --distance-field distance "
                          "--sightings-transect-field line_name --models half-normal --adjustments none --json -");
   ASSERT_EQ(r.exit_code, 0) << r.err;
   EXPECT_EQ(Json::parse(r.out)["results"][0]["n"], 30);
@@ -278,15 +292,17 @@ TEST(FileNames, DifferentNamesNeverShareAFile) {
 
 TEST(FileNames, FigureFolderHasDistinctFilesAndAManifest) {
   TempDir dir;
-  const std::string plots = dir.write("plots.geojson", geojson_utm(plot_feature(
-      "A", "[[440000,4470000],[440100,4470000],[440100,4470100],[440000,4470100],[440000,4470000]]")));
+  const std::string plots =
+      dir.write("plots.geojson",
+                geojson_utm(plot_feature(
+                    "A", "[[440000,4470000],[440100,4470000],[440100,4470100],[440000,4470100],[440000,4470000]]")));
   std::string rows = "x,y,species\n";
   for (int i = 0; i < 24; ++i)
     rows += std::to_string(440003 + (i * 37) % 95) + "," + std::to_string(4470004 + (i * 53) % 93) + "," +
             (i % 2 ? "a/b" : "a_b") + "\n";
   const std::string csv = dir.write("s.csv", rows);
-  const auto r = run_cli("randomness " + csv + " --plots " + plots + " --assume-crs EPSG:32630 --simulations 19 --figures " +
-                         dir.file("fig"));
+  const auto r = run_cli("randomness " + csv + " --plots " + plots +
+                         " --assume-crs EPSG:32630 --simulations 19 --figures " + dir.file("fig"));
   ASSERT_EQ(r.exit_code, 0) << r.err;
   std::set<std::string> svgs;
   for (const auto& entry : std::filesystem::directory_iterator(dir.file("fig")))
@@ -302,12 +318,16 @@ TEST(FileNames, FigureFolderHasDistinctFilesAndAManifest) {
 // Fewer than 10 sightings that no test rejects are `too few to tell`, never `random`.
 TEST(TooFewToTell, SmallGroupsAreNotCalledRandom) {
   TempDir dir;
-  const std::string plots = dir.write("plots.geojson", geojson_utm(plot_feature(
-      "A", "[[440000,4470000],[440100,4470000],[440100,4470100],[440000,4470100],[440000,4470000]]")));
-  const std::string csv = dir.write("s.csv", "x,y,species\n440012,4470021,gorse\n440063,4470048,gorse\n"
-                                             "440031,4470077,gorse\n440085,4470015,gorse\n440047,4470052,gorse\n"
-                                             "440020,4470090,heather\n440070,4470070,heather\n");
-  const auto r = run_cli("randomness " + csv + " --plots " + plots + " --assume-crs EPSG:32630 --simulations 99 --json -");
+  const std::string plots =
+      dir.write("plots.geojson",
+                geojson_utm(plot_feature(
+                    "A", "[[440000,4470000],[440100,4470000],[440100,4470100],[440000,4470100],[440000,4470000]]")));
+  const std::string csv = dir.write("s.csv",
+                                    "x,y,species\n440012,4470021,gorse\n440063,4470048,gorse\n"
+                                    "440031,4470077,gorse\n440085,4470015,gorse\n440047,4470052,gorse\n"
+                                    "440020,4470090,heather\n440070,4470070,heather\n");
+  const auto r =
+      run_cli("randomness " + csv + " --plots " + plots + " --assume-crs EPSG:32630 --simulations 99 --json -");
   ASSERT_EQ(r.exit_code, 0) << r.err;
   const Json doc = Json::parse(r.out);
   ASSERT_EQ(doc["results"].size(), 3u);

@@ -5,9 +5,9 @@
 
 #include <gdal_priv.h>
 #include <gtest/gtest.h>
-#include <nlohmann/json.hpp>
 #include <ogr_spatialref.h>
 #include <ogrsf_frmts.h>
+#include <nlohmann/json.hpp>
 
 #include "stipple/error.hpp"
 #include "support.hpp"
@@ -25,12 +25,12 @@ struct Site {
 // Points inside the demo's 'north' plot (UTM 30N 512000-512100 E, 6290400-6290500 N).
 // From gdaltransform EPSG:32630 -> EPSG:4326 of (512020, 6290420), (512050, 6290450),
 // (512080, 6290480).
-const Site kSites[] = {{-2.80340927, 56.75759229, "oak"}, {-2.80291720, 56.75786103, "ash"},
-                       {-2.80242513, 56.75812977, "oak"}};
+const Site kSites[] = {
+    {-2.80340927, 56.75759229, "oak"}, {-2.80291720, 56.75786103, "ash"}, {-2.80242513, 56.75812977, "oak"}};
 
 // Writes the sites with GDAL's own driver (GeoJSON, GPX, KML, ...) in EPSG:4326.
-std::string write_points(const TempDir& dir, const std::string& driver_name,
-                         const std::string& file, const std::string& species_field) {
+std::string write_points(const TempDir& dir, const std::string& driver_name, const std::string& file,
+                         const std::string& species_field) {
   GDALDriver* driver = GetGDALDriverManager()->GetDriverByName(driver_name.c_str());
   EXPECT_NE(driver, nullptr) << driver_name;
   const std::string path = dir.file(file);
@@ -38,8 +38,7 @@ std::string write_points(const TempDir& dir, const std::string& driver_name,
   OGRSpatialReference wgs84;
   wgs84.importFromEPSG(4326);
   wgs84.SetAxisMappingStrategy(OAMS_TRADITIONAL_GIS_ORDER);
-  OGRLayer* layer = ds->CreateLayer(driver_name == "GPX" ? "waypoints" : "sites", &wgs84, wkbPoint,
-                                    nullptr);
+  OGRLayer* layer = ds->CreateLayer(driver_name == "GPX" ? "waypoints" : "sites", &wgs84, wkbPoint, nullptr);
   if (driver_name != "GPX") {
     OGRFieldDefn field(species_field.c_str(), OFTString);
     EXPECT_EQ(layer->CreateField(&field), OGRERR_NONE);
@@ -73,8 +72,7 @@ TEST(LoadSurvey, ReadsTheDemoGeoPackage) {
   EXPECT_EQ(s.survey.species, (std::vector<std::string>{"birch", "hazel", "juniper", "wood-ant"}));
   // Plot areas from the generator's stated geometry (sample-plots/generating-values.json).
   for (const auto& plot : s.survey.plots)
-    EXPECT_NEAR(plot.window.area_m2() / 1e4, truth["plot_areas_ha"][plot.id].get<double>(), 1e-9)
-        << plot.id;
+    EXPECT_NEAR(plot.window.area_m2() / 1e4, truth["plot_areas_ha"][plot.id].get<double>(), 1e-9) << plot.id;
 }
 
 TEST(LoadSurvey, ReprojectionMatchesProjThroughGdal) {
@@ -141,8 +139,7 @@ TEST(LoadSurvey, ReconcilesPlotsInAnotherCrs) {
   OGRLayer* layer = out->CreateLayer("plots", &web, wkbMultiPolygon, nullptr);
   OGRFieldDefn field("plot", OFTString);
   ASSERT_EQ(layer->CreateField(&field), OGRERR_NONE);
-  std::unique_ptr<OGRCoordinateTransformation> ct(
-      OGRCreateCoordinateTransformation(in_layer->GetSpatialRef(), &web));
+  std::unique_ptr<OGRCoordinateTransformation> ct(OGRCreateCoordinateTransformation(in_layer->GetSpatialRef(), &web));
   for (auto& f : *in_layer) {
     OGRFeature g(layer->GetLayerDefn());
     g.SetField("plot", f->GetFieldAsString("plot"));
@@ -185,8 +182,7 @@ TEST(LoadSurvey, NanCoordinateInGeoPackageIsNamed) {
     (void)load_survey(demo_options(path));
     FAIL();
   } catch (const InputError& e) {
-    EXPECT_NE(std::string(e.what()).find("nan.gpkg: layer 'stems': feature 1:"), std::string::npos)
-        << e.what();
+    EXPECT_NE(std::string(e.what()).find("nan.gpkg: layer 'stems': feature 1:"), std::string::npos) << e.what();
   }
 }
 
@@ -202,9 +198,7 @@ TEST(ReadDetectionTable, ReadsSpeciesProbabilitiesAndErrors) {
     (void)read_detection_table(text, std::nullopt);
     FAIL();
   } catch (const InputError& e) {
-    EXPECT_NE(std::string(e.what()).find("text.csv: line 2: p 'high' is not a number"),
-              std::string::npos)
-        << e.what();
+    EXPECT_NE(std::string(e.what()).find("text.csv: line 2: p 'high' is not a number"), std::string::npos) << e.what();
   }
 }
 

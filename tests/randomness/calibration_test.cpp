@@ -4,8 +4,8 @@
 
 #include <cmath>
 
-#include <boost/geometry.hpp>
 #include <gtest/gtest.h>
+#include <boost/geometry.hpp>
 
 #include "stipple/randomness/analysis.hpp"
 #include "stipple/simulate/point_process.hpp"
@@ -16,9 +16,8 @@ namespace {
 Window irregular_window() {
   // 1 ha less a pond, L-shaped outline: neither rectangle nor convex.
   BgMultiPolygon shape;
-  boost::geometry::read_wkt(
-      "MULTIPOLYGON(((0 0,0 100,60 100,60 60,120 60,120 0,0 0),(20 20,40 20,40 40,20 40,20 20)))",
-      shape);
+  boost::geometry::read_wkt("MULTIPOLYGON(((0 0,0 100,60 100,60 60,120 60,120 0,0 0),(20 20,40 20,40 40,20 40,20 20)))",
+                            shape);
   return Window::from_polygons(shape, "test");
 }
 
@@ -58,9 +57,12 @@ Rejections count_rejections(const Window& w, int patterns, const std::string& ke
 }
 
 void expect_calibrated(const Rejections& r) {
-  for (const auto& [name, count] : {std::pair{"quadrat", r.quadrat}, {"Clark-Evans", r.clark_evans},
-                                    {"Clark-Evans MC", r.clark_evans_mc}, {"MAD", r.mad},
-                                    {"DCLF", r.dclf}, {"ERL", r.erl},
+  for (const auto& [name, count] : {std::pair{"quadrat", r.quadrat},
+                                    {"Clark-Evans", r.clark_evans},
+                                    {"Clark-Evans MC", r.clark_evans_mc},
+                                    {"MAD", r.mad},
+                                    {"DCLF", r.dclf},
+                                    {"ERL", r.erl},
                                     {"departures from the global envelope", r.departures}}) {
     EXPECT_GE(count, 3) << name;
     EXPECT_LE(count, 19) << name;
@@ -69,18 +71,16 @@ void expect_calibrated(const Rejections& r) {
 
 TEST(Calibration, CsrRejectsAtNominalRateInIrregularWindow) {
   const Window w = irregular_window();
-  const auto r = count_rejections(w, 200, "csr-irregular/", [&](Engine& e) {
-    return simulate_binomial(w, 60, e);
-  }, quick_options());
+  const auto r = count_rejections(
+      w, 200, "csr-irregular/", [&](Engine& e) { return simulate_binomial(w, 60, e); }, quick_options());
   expect_calibrated(r);
 }
 
 TEST(Calibration, CsrRejectsAtNominalRateInRectangle) {
   // Rectangle: the Clark-Evans default is Donnelly's correction.
   const Window w = Window::rectangle(0, 0, 100, 50);
-  const auto r = count_rejections(w, 200, "csr-rectangle/", [&](Engine& e) {
-    return simulate_binomial(w, 40, e);
-  }, quick_options());
+  const auto r = count_rejections(
+      w, 200, "csr-rectangle/", [&](Engine& e) { return simulate_binomial(w, 40, e); }, quick_options());
   expect_calibrated(r);
 }
 
@@ -142,9 +142,8 @@ TEST(Power, ThomasClustersAreDetected) {
   // Thomas process, 8 parents per ha, 8 offspring, sigma 4 m: strongly clustered.
   const Window w = irregular_window();
   const int patterns = 30;
-  const auto r = count_rejections(w, patterns, "thomas/", [&](Engine& e) {
-    return simulate_thomas(w, 8e-4, 8.0, 4.0, e);
-  }, quick_options());
+  const auto r = count_rejections(
+      w, patterns, "thomas/", [&](Engine& e) { return simulate_thomas(w, 8e-4, 8.0, 4.0, e); }, quick_options());
   EXPECT_GE(r.dclf, 27) << "DCLF power";
   EXPECT_GE(r.mad, 25) << "MAD power";
   EXPECT_GE(r.clark_evans_mc, 25) << "Clark-Evans power";
@@ -155,15 +154,13 @@ TEST(Power, HardCoreRegularityIsDetected) {
   // Simple sequential inhibition: 60 points at least 7 m apart in the 0.68-ha window.
   const Window w = irregular_window();
   const int patterns = 30;
-  const auto r = count_rejections(w, patterns, "ssi/", [&](Engine& e) {
-    return simulate_sequential_inhibition(w, 60, 7.0, e);
-  }, quick_options());
+  const auto r = count_rejections(
+      w, patterns, "ssi/", [&](Engine& e) { return simulate_sequential_inhibition(w, 60, 7.0, e); }, quick_options());
   EXPECT_GE(r.dclf, 27) << "DCLF power";
   EXPECT_GE(r.clark_evans_mc, 27) << "Clark-Evans power";
   // Matern II: hard core 6 m.
-  const auto m = count_rejections(w, patterns, "matern/", [&](Engine& e) {
-    return simulate_matern_ii(w, 0.02, 6.0, e);
-  }, quick_options());
+  const auto m = count_rejections(
+      w, patterns, "matern/", [&](Engine& e) { return simulate_matern_ii(w, 0.02, 6.0, e); }, quick_options());
   EXPECT_GE(m.dclf, 25) << "DCLF power, Matern II";
 }
 
@@ -173,8 +170,7 @@ TEST(Verdict, NamesTheDirection) {
   Engine e1(1);
   EXPECT_EQ(analyse_pattern(simulate_thomas(w, 8e-4, 8.0, 4.0, e1), w, o, "v1").verdict, "clustered");
   Engine e2(2);
-  EXPECT_EQ(analyse_pattern(simulate_sequential_inhibition(w, 60, 7.0, e2), w, o, "v2").verdict,
-            "regular");
+  EXPECT_EQ(analyse_pattern(simulate_sequential_inhibition(w, 60, 7.0, e2), w, o, "v2").verdict, "regular");
 }
 
 TEST(Calibration, RandomLabellingHoldsItsLevel) {
@@ -198,8 +194,8 @@ TEST(Power, RandomLabellingFindsSegregation) {
   const Window west = Window::rectangle(0, 0, 50, 100);
   const Window east = Window::rectangle(50, 0, 100, 100);
   Engine engine(5);
-  const auto r = random_labelling_test(simulate_binomial(west, 30, engine),
-                                       simulate_binomial(east, 30, engine), w, quick_options(), "seg");
+  const auto r = random_labelling_test(simulate_binomial(west, 30, engine), simulate_binomial(east, 30, engine), w,
+                                       quick_options(), "seg");
   EXPECT_LT(r.p_value, 0.05);
   EXPECT_EQ(r.direction, "segregation");
 }

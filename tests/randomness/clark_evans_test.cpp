@@ -2,8 +2,8 @@
 
 #include <cmath>
 
-#include <boost/geometry.hpp>
 #include <gtest/gtest.h>
+#include <boost/geometry.hpp>
 
 #include "stipple/error.hpp"
 #include "stipple/geometry/spatial_index.hpp"
@@ -12,8 +12,7 @@
 namespace stipple {
 namespace {
 
-ClarkEvansResult run(const std::vector<Point>& points, const Window& window,
-                     NeighbourEdgeCorrection correction) {
+ClarkEvansResult run(const std::vector<Point>& points, const Window& window, NeighbourEdgeCorrection correction) {
   const PointGrid grid(points);
   std::vector<double> boundary;
   for (const auto& p : points) boundary.push_back(window.boundary_distance(p));
@@ -22,8 +21,7 @@ ClarkEvansResult run(const std::vector<Point>& points, const Window& window,
 
 TEST(ClarkEvans, PublishedFormulaCaseA) {
   // Source: Clark & Evans (1954); REFERENCES.md section 3 case A (NN from SciPy cKDTree).
-  const auto r = run({{1, 1}, {4, 5}, {7, 1}, {4, 9}}, Window::rectangle(0, 0, 10, 10),
-                     NeighbourEdgeCorrection::none);
+  const auto r = run({{1, 1}, {4, 5}, {7, 1}, {4, 9}}, Window::rectangle(0, 0, 10, 10), NeighbourEdgeCorrection::none);
   EXPECT_NEAR(r.mean_distance, 4.5, 1e-12);
   EXPECT_NEAR(r.expected_distance, 2.5, 1e-12);
   EXPECT_NEAR(r.ratio, 1.8, 1e-12);
@@ -48,8 +46,7 @@ TEST(ClarkEvans, PublishedFormulaCaseB) {
 TEST(ClarkEvans, SeConstantIsPublishedValue) {
   // Source: Clark & Evans (1954): SE = 0.26136 / sqrt(n lambda), the printed rounding of
   // sqrt((4 - pi) / (4 pi)) = 0.2613616 (REFERENCES.md §3).
-  const auto r = run({{1, 1}, {4, 5}, {7, 1}, {4, 9}}, Window::rectangle(0, 0, 10, 10),
-                     NeighbourEdgeCorrection::none);
+  const auto r = run({{1, 1}, {4, 5}, {7, 1}, {4, 9}}, Window::rectangle(0, 0, 10, 10), NeighbourEdgeCorrection::none);
   EXPECT_NEAR(r.standard_error * std::sqrt(4 * 0.04), 0.26136, 1e-12);
   EXPECT_NEAR(0.26136, std::sqrt((4 - 3.14159265358979) / (4 * 3.14159265358979)), 2e-6);
 }

@@ -3,8 +3,8 @@
 #include <string>
 #include <tuple>
 
-#include <boost/random/normal_distribution.hpp>
 #include <gtest/gtest.h>
+#include <boost/random/normal_distribution.hpp>
 
 #include "stipple/error.hpp"
 #include "stipple/simulate/engine.hpp"

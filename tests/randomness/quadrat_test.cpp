@@ -1,7 +1,7 @@
 #include "stipple/randomness/quadrat.hpp"
 
-#include <boost/geometry.hpp>
 #include <gtest/gtest.h>
+#include <boost/geometry.hpp>
 
 #include "stipple/error.hpp"
 
@@ -15,8 +15,7 @@ std::vector<Point> fill_cells(std::size_t nx, const std::vector<std::uint64_t>& 
     const double x = static_cast<double>(c % nx);
     const double y = static_cast<double>(c / nx);
     for (std::uint64_t k = 0; k < counts[c]; ++k)
-      points.push_back({x + 0.1 + 0.8 * static_cast<double>(k + 1) / static_cast<double>(counts[c] + 1),
-                        y + 0.5});
+      points.push_back({x + 0.1 + 0.8 * static_cast<double>(k + 1) / static_cast<double>(counts[c] + 1), y + 0.5});
   }
   return points;
 }
@@ -67,8 +66,7 @@ TEST(QuadratTest, ClippedCellsExpectByArea) {
   // An L-shaped window over a 2 x 2 grid: the missing quarter is no cell; the others are
   // whole. With a hole the cell's expected count shrinks with its clipped area.
   BgMultiPolygon shape;
-  boost::geometry::read_wkt(
-      "MULTIPOLYGON(((0 0,0 10,5 10,5 5,10 5,10 0,0 0),(1 1,4 1,4 4,1 4,1 1)))", shape);
+  boost::geometry::read_wkt("MULTIPOLYGON(((0 0,0 10,5 10,5 5,10 5,10 0,0 0),(1 1,4 1,4 4,1 4,1 1)))", shape);
   const Window w = Window::from_polygons(shape, "test");
   const std::vector<Point> points{{0.5, 0.5}, {6, 2}, {7, 3}, {2, 7}, {3, 8}, {8, 1}};
   Engine engine(3);

@@ -3,8 +3,8 @@
 #include <algorithm>
 #include <cmath>
 
-#include <boost/geometry.hpp>
 #include <gtest/gtest.h>
+#include <boost/geometry.hpp>
 
 #include "stipple/simulate/point_process.hpp"
 
@@ -15,9 +15,8 @@ constexpr double pi = 3.14159265358979323846;
 
 Window window_with_hole() {
   BgMultiPolygon shape;
-  boost::geometry::read_wkt(
-      "MULTIPOLYGON(((0 0,0 100,60 100,60 60,100 60,100 0,0 0),(20 20,40 20,40 40,20 40,20 20)))",
-      shape);
+  boost::geometry::read_wkt("MULTIPOLYGON(((0 0,0 100,60 100,60 60,100 60,100 0,0 0),(20 20,40 20,40 40,20 40,20 20)))",
+                            shape);
   return Window::from_polygons(shape, "test");
 }
 
@@ -85,8 +84,7 @@ TEST(IsotropicWeight, PolygonWithHoleAgreesWithAngleSampling) {
   // Common practice: the share of a circle inside a window equals the share of equally
   // spaced angles whose circle point lies inside (here 200 000 angles, error < 1e-4).
   const Window w = window_with_hole();
-  const std::pair<Point, double> cases[] = {{{45, 30}, 8.0}, {{55, 55}, 10.0}, {{10, 90}, 15.0},
-                                            {{30, 50}, 12.0}};
+  const std::pair<Point, double> cases[] = {{{45, 30}, 8.0}, {{55, 55}, 10.0}, {{10, 90}, 15.0}, {{30, 50}, 12.0}};
   for (const auto& [c, r] : cases) {
     const int steps = 200000;
     int inside = 0;
@@ -144,8 +142,7 @@ TEST(SummaryFunctions, CsrMatchesTheoryInPolygonWithHole) {
   // Poisson ones at fixed n).
   const Window w = window_with_hole();
   const double lambda = 100.0 / w.area_m2();
-  const CsrAverages iso = average_over_csr(w, 100, 300, PairCorrection::isotropic,
-                                           DistanceCorrection::kaplan_meier);
+  const CsrAverages iso = average_over_csr(w, 100, 300, PairCorrection::isotropic, DistanceCorrection::kaplan_meier);
   for (std::size_t s = 0; s < iso.r.size(); ++s) {
     const double r = iso.r[s];
     EXPECT_NEAR(iso.k[s] / (pi * r * r), 1.0, 0.03) << "K at r = " << r;
@@ -160,8 +157,7 @@ TEST(SummaryFunctions, CsrMatchesTheoryInPolygonWithHole) {
     EXPECT_NEAR(iso.nn[s], theory, 0.02) << "G (Kaplan-Meier) at r = " << r;
     EXPECT_NEAR(iso.f[s], theory, 0.02) << "F (Kaplan-Meier) at r = " << r;
   }
-  const CsrAverages border = average_over_csr(w, 100, 300, PairCorrection::border,
-                                              DistanceCorrection::border);
+  const CsrAverages border = average_over_csr(w, 100, 300, PairCorrection::border, DistanceCorrection::border);
   for (std::size_t s = 0; s < border.r.size(); ++s) {
     const double r = border.r[s];
     EXPECT_NEAR(border.k[s] / (pi * r * r), 1.0, 0.05) << "border K at r = " << r;
@@ -202,7 +198,7 @@ TEST(SummaryFunctions, CsrCurvesAreTheory) {
 
 TEST(DefaultRmax, IsStatedRule) {
   const Window w = Window::rectangle(0, 0, 100, 200);
-  EXPECT_NEAR(default_rmax(w, 10), 25.0, 1e-12);  // quarter of the shorter side
+  EXPECT_NEAR(default_rmax(w, 10), 25.0, 1e-12);                     // quarter of the shorter side
   EXPECT_NEAR(default_rmax(w, 20000), 4.0 / std::sqrt(1.0), 1e-12);  // 4 / sqrt(lambda)
 }
 

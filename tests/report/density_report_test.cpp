@@ -18,8 +18,7 @@ Tiny tiny_survey() {
   s.input.sightings_label = "s.gpkg: layer 'stems'";
   s.input.plots_label = "p.gpkg: layer 'plots'";
   std::vector<Sighting> sightings;
-  for (int i = 0; i < 31; ++i)
-    sightings.push_back(Sighting{{1.0 + i, 50.0}, i + 1, "oak", std::nullopt});
+  for (int i = 0; i < 31; ++i) sightings.push_back(Sighting{{1.0 + i, 50.0}, i + 1, "oak", std::nullopt});
   s.survey = assign_to_plots(sightings, {Plot{"P1", Window::rectangle(0, 0, 100, 100)}});
   return s;
 }

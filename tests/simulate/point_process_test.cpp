@@ -6,8 +6,8 @@
 #include <cmath>
 #include <numeric>
 
-#include <boost/geometry.hpp>
 #include <gtest/gtest.h>
+#include <boost/geometry.hpp>
 
 #include "stipple/intensity/density.hpp"
 
@@ -65,8 +65,7 @@ TEST(Thinning, KeptPointsArePoissonWithRatePLambdaAndIndependentOfRemoved) {
   EXPECT_NEAR(mk.mean, 15.0, 4 * 0.061);
   EXPECT_NEAR(mk.variance, 15.0, 4 * 0.34);
   double cov = 0.0;
-  for (std::size_t i = 0; i < kept.size(); ++i)
-    cov += (kept[i] - mk.mean) * (removed[i] - mr.mean);
+  for (std::size_t i = 0; i < kept.size(); ++i) cov += (kept[i] - mk.mean) * (removed[i] - mr.mean);
   cov /= static_cast<double>(kept.size() - 1);
   EXPECT_NEAR(cov / std::sqrt(mk.variance * mr.variance), 0.0, 4 * 0.016);
 }
@@ -75,8 +74,7 @@ TEST(BinomialProcess, PointsFillAnIrregularWindowUniformly) {
   // Common practice: under uniform placement the share of points in a sub-region is its
   // share of the area. Hole of 25% of the box: no point inside; left half gets half.
   BgMultiPolygon shape;
-  boost::geometry::read_wkt(
-      "MULTIPOLYGON(((0 0,0 100,100 100,100 0,0 0),(25 25,75 25,75 75,25 75,25 25)))", shape);
+  boost::geometry::read_wkt("MULTIPOLYGON(((0 0,0 100,100 100,100 0,0 0),(25 25,75 25,75 75,25 75,25 25)))", shape);
   const Window w = Window::from_polygons(shape, "test");
   Engine engine(11);
   const auto points = simulate_binomial(w, 20000, engine);
@@ -95,15 +93,13 @@ TEST(DensityRecovery, ThinnedSuperposedSpeciesRecoverTheirTrueRates) {
   // mean) and the 95% exact interval / p covers the truth at a rate inside the binomial 99%
   // band for 400 trials around 0.95 (at least 0.95 - 2.58 sqrt(.95 .05 / 400) = 0.922;
   // Garwood intervals are conservative, so no upper limit below 1).
-  const std::vector<Window> windows{Window::rectangle(0, 0, 100, 100),
-                                    Window::rectangle(200, 0, 250, 100),
+  const std::vector<Window> windows{Window::rectangle(0, 0, 100, 100), Window::rectangle(200, 0, 250, 100),
                                     Window::rectangle(300, 0, 450, 100)};
   const double truth[2] = {60.0, 25.0};
   const double p[2] = {0.6, 0.9};
   DensityOptions options;
   options.simulations = 0;
-  options.detection = DetectionTable::by_species({{"a", {p[0], 0.0}}, {"b", {p[1], 0.0}}},
-                                                 std::nullopt, "test");
+  options.detection = DetectionTable::by_species({{"a", {p[0], 0.0}}, {"b", {p[1], 0.0}}}, std::nullopt, "test");
   std::vector<double> estimates[3];
   int covered[3] = {0, 0, 0};
   const int surveys = 400;
@@ -116,8 +112,7 @@ TEST(DensityRecovery, ThinnedSuperposedSpeciesRecoverTheirTrueRates) {
       plots.push_back(Plot{"P" + std::to_string(w), windows[w]});
       for (int s = 0; s < 2; ++s) {
         const auto detected = thin(simulate_poisson(windows[w], truth[s] / 1e4, engine), p[s], engine);
-        for (const auto& pt : detected)
-          sightings.push_back(Sighting{pt, fid++, s == 0 ? "a" : "b", std::nullopt});
+        for (const auto& pt : detected) sightings.push_back(Sighting{pt, fid++, s == 0 ? "a" : "b", std::nullopt});
       }
     }
     const DensityResult result = estimate_density(assign_to_plots(sightings, plots), options);
@@ -125,8 +120,7 @@ TEST(DensityRecovery, ThinnedSuperposedSpeciesRecoverTheirTrueRates) {
     for (int k = 0; k < 3; ++k) {
       const auto& pooled = result.pooled[static_cast<std::size_t>(k)];
       estimates[k].push_back(pooled.corrected.intensity);
-      if (pooled.corrected.ci.lower <= truths[k] && truths[k] <= pooled.corrected.ci.upper)
-        ++covered[k];
+      if (pooled.corrected.ci.lower <= truths[k] && truths[k] <= pooled.corrected.ci.upper) ++covered[k];
     }
   }
   const double truths[3] = {truth[0], truth[1], truth[0] + truth[1]};

@@ -56,7 +56,8 @@ TEST(ParallelFor, AThreadThatCannotStartMeansFewerThreadsNotATerminatedProcess) 
   for (const int allowed : {0, 1, 2}) {
     int started = 0;
     std::vector<std::atomic<int>> runs(200);
-    parallel_for(runs.size(), 8, [&](std::size_t i) { ++runs[i]; }, FailingStart{&started, allowed});
+    parallel_for(
+        runs.size(), 8, [&](std::size_t i) { ++runs[i]; }, FailingStart{&started, allowed});
     EXPECT_EQ(started, allowed);
     for (const auto& r : runs) EXPECT_EQ(r.load(), 1) << allowed << " threads started";
   }

@@ -10,8 +10,8 @@
 #include <fstream>
 #include <string>
 
-#include <boost/math/distributions/normal.hpp>
 #include <gtest/gtest.h>
+#include <boost/math/distributions/normal.hpp>
 #include <nlohmann/json.hpp>
 
 #include "stipple/transect/detection_function.hpp"

@@ -2,10 +2,10 @@
 
 #include <cmath>
 
+#include <gtest/gtest.h>
 #include <boost/math/quadrature/gauss_kronrod.hpp>
 #include <boost/math/special_functions/erf.hpp>
 #include <boost/math/special_functions/gamma.hpp>
-#include <gtest/gtest.h>
 
 #include "stipple/error.hpp"
 
@@ -77,7 +77,8 @@ TEST(EffectiveStripWidth, AdjustedModelsAgreeWithIndependentQuadrature) {
 TEST(HalfNormalFit, UntruncatedMleIsClosedForm) {
   // Source: Buckland et al. (2001); REFERENCES.md section 8: lines sigma^2 = sum x^2 / n:
   // x = [0,3,4,5,12] -> 38.8, sigma = 6.228965.
-  const DetectionFit fit = fit_detection_function(lines({0, 3, 4, 5, 12}), {KeyFunction::half_normal, Adjustment::none, 0});
+  const DetectionFit fit =
+      fit_detection_function(lines({0, 3, 4, 5, 12}), {KeyFunction::half_normal, Adjustment::none, 0});
   EXPECT_NEAR(fit.function.parameters()[0], 6.228965, 1e-5);
   EXPECT_NEAR(fit.function.parameters()[0] * fit.function.parameters()[0], 38.8, 1e-3);
   // Points: sigma^2 = sum r^2 / (2n): r = [3,4,5,6,12] -> 4.795832.
@@ -90,7 +91,8 @@ TEST(HalfNormalFit, UntruncatedMleIsClosedForm) {
 
 TEST(HalfNormalFit, TruncatedMleMatchesReference) {
   // Source: REFERENCES.md section 8 (numerical MLE): w = 10, x = [0,3,4,5,8]: sigma = 5.999587.
-  const DetectionFit fit = fit_detection_function(lines({0, 3, 4, 5, 8}, 10.0), {KeyFunction::half_normal, Adjustment::none, 0});
+  const DetectionFit fit =
+      fit_detection_function(lines({0, 3, 4, 5, 8}, 10.0), {KeyFunction::half_normal, Adjustment::none, 0});
   EXPECT_NEAR(fit.function.parameters()[0], 5.999587, 1e-4);
   EXPECT_EQ(fit.parameter_count, 1u);
   EXPECT_NEAR(fit.aic, -2 * fit.log_likelihood + 2, 1e-12);
@@ -99,7 +101,8 @@ TEST(HalfNormalFit, TruncatedMleMatchesReference) {
 TEST(HalfNormalFit, BinnedAndExactAgreeOnFineBins) {
   // Common practice: the binned likelihood tends to the exact one as bins shrink.
   std::vector<double> x;
-  for (int i = 0; i < 200; ++i) x.push_back(30.0 * std::fabs(std::sin(0.37 * i + 0.1 * i * i)) * std::fabs(std::cos(0.11 * i)));
+  for (int i = 0; i < 200; ++i)
+    x.push_back(30.0 * std::fabs(std::sin(0.37 * i + 0.1 * i * i)) * std::fabs(std::cos(0.11 * i)));
   const DistanceData exact = lines(x, 30.0);
   DistanceData binned;
   binned.kind = TransectKind::line;
@@ -116,8 +119,9 @@ TEST(HalfNormalFit, BinnedAndExactAgreeOnFineBins) {
 TEST(CandidateFits, AdjustedFitsStayMonotone) {
   std::vector<double> x;
   for (int i = 0; i < 150; ++i) x.push_back(std::fmod(i * 7.3, 50.0) * (i % 3 == 0 ? 0.5 : 1.0));
-  const auto fits = fit_candidates(lines(x, 50.0), {KeyFunction::half_normal, KeyFunction::hazard_rate, KeyFunction::uniform},
-                                   {Adjustment::cosine, Adjustment::polynomial, Adjustment::hermite});
+  const auto fits =
+      fit_candidates(lines(x, 50.0), {KeyFunction::half_normal, KeyFunction::hazard_rate, KeyFunction::uniform},
+                     {Adjustment::cosine, Adjustment::polynomial, Adjustment::hermite});
   ASSERT_FALSE(fits.empty());
   for (std::size_t i = 1; i < fits.size(); ++i) EXPECT_LE(fits[i - 1].aic, fits[i].aic);
   for (const auto& f : fits) EXPECT_TRUE(f.monotone);

@@ -3,10 +3,10 @@
 
 #include <cmath>
 
+#include <gtest/gtest.h>
 #include <boost/random/bernoulli_distribution.hpp>
 #include <boost/random/poisson_distribution.hpp>
 #include <boost/random/uniform_real_distribution.hpp>
-#include <gtest/gtest.h>
 
 #include "stipple/transect/estimate.hpp"
 
@@ -43,16 +43,22 @@ TransectSurvey simulate(const DetectionFunction& g, double density_km2, Engine& 
 
 TEST(TransectRecovery, UnbiasedWithNominalCoverage) {
   // 200 surveys per detection function at 40 animals per km2 (about 120 detections each),
-  // each fitted with the generating key (and, for adjusted truths, its series). Tolerances: mean estimate within 4% of the truth
-  // (Monte Carlo SE of the mean about 1.5%: 2.7 SE); coverage of the 95% log-normal
-  // interval inside the binomial 99% band for 200 trials around 0.95, [182, 197] (common
-  // practice). AIC selection between keys adds model uncertainty the analytic interval
-  // does not carry (Buckland et al. 2001, §3.7): that is stated in the README, not tested.
+  // each fitted with the generating key (and, for adjusted truths, its series). Tolerances: mean estimate within 4% of
+  // the truth (Monte Carlo SE of the mean about 1.5%: 2.7 SE); coverage of the 95% log-normal interval inside the
+  // binomial 99% band for 200 trials around 0.95, [182, 197] (common practice). AIC selection between keys adds model
+  // uncertainty the analytic interval does not carry (Buckland et al. 2001, §3.7): that is stated in the README, not
+  // tested.
   const Scenario scenarios[] = {
-      {"half-normal", DetectionFunction({KeyFunction::half_normal, Adjustment::none, 0}, {25.0}, 60.0),
-       KeyFunction::half_normal, {}, 40.0},
-      {"hazard-rate", DetectionFunction({KeyFunction::hazard_rate, Adjustment::none, 0}, {20.0, 3.0}, 60.0),
-       KeyFunction::hazard_rate, {}, 40.0},
+      {"half-normal",
+       DetectionFunction({KeyFunction::half_normal, Adjustment::none, 0}, {25.0}, 60.0),
+       KeyFunction::half_normal,
+       {},
+       40.0},
+      {"hazard-rate",
+       DetectionFunction({KeyFunction::hazard_rate, Adjustment::none, 0}, {20.0, 3.0}, 60.0),
+       KeyFunction::hazard_rate,
+       {},
+       40.0},
       // Key + adjustment truths, fitted by forward selection over 0..2 cosine terms of the
       // generating key (the default max_terms). Both are non-increasing on [0, 60] (checked
       // on a fine grid: half-normal sigma 25 takes a in [-0.12, 0.51]). At 120 per km2
@@ -61,9 +67,14 @@ TEST(TransectRecovery, UnbiasedWithNominalCoverage) {
       // model-selection shortfall the README states.
       {"half-normal+cosine",
        DetectionFunction({KeyFunction::half_normal, Adjustment::cosine, 1}, {25.0, 0.35}, 60.0),
-       KeyFunction::half_normal, {Adjustment::cosine}, 120.0},
-      {"uniform+cosine", DetectionFunction({KeyFunction::uniform, Adjustment::cosine, 1}, {0.7}, 60.0),
-       KeyFunction::uniform, {Adjustment::cosine}, 120.0},
+       KeyFunction::half_normal,
+       {Adjustment::cosine},
+       120.0},
+      {"uniform+cosine",
+       DetectionFunction({KeyFunction::uniform, Adjustment::cosine, 1}, {0.7}, 60.0),
+       KeyFunction::uniform,
+       {Adjustment::cosine},
+       120.0},
   };
   for (const auto& scenario : scenarios) {
     const double truth = scenario.density_km2;

@@ -14,9 +14,9 @@
 #include "stipple/io/gis_writer.hpp"
 #include "stipple/io/reader.hpp"
 #include "stipple/io/transect_reader.hpp"
-#include "stipple/transect/estimate.hpp"
 #include "stipple/randomness/analysis.hpp"
 #include "stipple/report/season_report.hpp"
+#include "stipple/transect/estimate.hpp"
 
 namespace stipple {
 
@@ -43,27 +43,27 @@ struct BatchInput {
 [[nodiscard]] std::pair<std::size_t, std::size_t> parse_shard(const std::string& text);
 
 struct BatchOptions {
-  SurveyReadOptions read;          ///< field names, CRS options; paths are set per input
+  SurveyReadOptions read;  ///< field names, CRS options; paths are set per input
   /// One plots layer for every input (a folder of sighting files over one plots file):
   /// sightings are assigned by their plot attribute or by location, as `read.assignment` says.
   std::optional<SourceSpec> shared_plots;
   bool run_density = true;
   bool run_randomness = true;
-  bool run_transect = false;       ///< inputs holding transect lines and their sightings
+  bool run_transect = false;          ///< inputs holding transect lines and their sightings
   TransectReadOptions transect_read;  ///< field names; paths are set per input
   TransectOptions transect;
   DensityOptions density;
-  RandomnessOptions randomness;    ///< threads are forced to 1 inside a file
-  unsigned threads = 0;            ///< files in parallel (0 = all cores)
-  bool figures = true;             ///< L-envelope figures and plot maps (SVG) for the report
-  bool gis = false;                ///< OUT/plot-results.gpkg
-  bool surfaces = false;           ///< OUT/surfaces/<input>/<species>.tif
+  RandomnessOptions randomness;  ///< threads are forced to 1 inside a file
+  unsigned threads = 0;          ///< files in parallel (0 = all cores)
+  bool figures = true;           ///< L-envelope figures and plot maps (SVG) for the report
+  bool gis = false;              ///< OUT/plot-results.gpkg
+  bool surfaces = false;         ///< OUT/surfaces/<input>/<species>.tif
   std::optional<double> pixel_m;
   std::optional<double> bandwidth_m;
   /// The input whose analysis CRS is the batch CRS when `read.target_crs` is not set: the
   /// first of all inputs, also when this run is one shard, so shards agree.
   std::optional<BatchInput> crs_reference;
-  SeasonRun run;                   ///< run facts for run.json and the report (version, options text...)
+  SeasonRun run;  ///< run facts for run.json and the report (version, options text...)
   /// How a failed file's error is worded in failures.csv and run.json; by default its
   /// message (a front end can name its own options, see Error::parameters).
   std::function<std::string(const Error&)> describe_error;

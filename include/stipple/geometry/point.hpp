@@ -16,9 +16,9 @@ struct Point {
 /// One recorded sighting as read from a vector source, already in the analysis CRS.
 struct Sighting {
   Point location;
-  std::int64_t feature_id = 0;        ///< feature id in the source layer (OGR FID)
-  std::string species;                ///< species mark
-  std::optional<std::string> plot;    ///< plot id carried by the sighting, if any
+  std::int64_t feature_id = 0;      ///< feature id in the source layer (OGR FID)
+  std::string species;              ///< species mark
+  std::optional<std::string> plot;  ///< plot id carried by the sighting, if any
 };
 
 }  // namespace stipple

@@ -41,9 +41,9 @@ class PointGrid {
   [[nodiscard]] std::size_t cell_x(double x) const;
   [[nodiscard]] std::size_t cell_y(double y) const;
   std::vector<Point> points_;
-  std::vector<Point> sorted_;          // the points in cell order, for cache-friendly scans
-  std::vector<std::uint32_t> order_;   // original index of each sorted point
-  std::vector<std::uint32_t> start_;   // first position in order_ of each cell, plus sentinel
+  std::vector<Point> sorted_;         // the points in cell order, for cache-friendly scans
+  std::vector<std::uint32_t> order_;  // original index of each sorted point
+  std::vector<std::uint32_t> start_;  // first position in order_ of each cell, plus sentinel
   double xmin_ = 0.0;
   double ymin_ = 0.0;
   double cell_ = 1.0;
@@ -84,8 +84,10 @@ void PointGrid::for_each_pair_within(double radius, Visit&& visit) const {
     if (d2 > r2) return;
     const std::size_t i = order_[k];
     const std::size_t j = order_[l];
-    if (i < j) visit(i, j, std::sqrt(d2));
-    else visit(j, i, std::sqrt(d2));
+    if (i < j)
+      visit(i, j, std::sqrt(d2));
+    else
+      visit(j, i, std::sqrt(d2));
   };
   // Each unordered pair once: same cell (k < l), then only "forward" neighbour cells.
   for (std::size_t cy = 0; cy < ny_; ++cy) {

@@ -27,13 +27,13 @@ struct MarkedPattern {
 /// Sightings assigned to plots. Every sighting read is either in exactly one pattern
 /// or listed among the exclusions: nothing is dropped silently.
 struct Survey {
-  std::vector<std::string> species;        ///< sorted species names
-  std::vector<Plot> plots;                 ///< in input order
-  std::vector<MarkedPattern> patterns;     ///< parallel to `plots`
+  std::vector<std::string> species;                    ///< sorted species names
+  std::vector<Plot> plots;                             ///< in input order
+  std::vector<MarkedPattern> patterns;                 ///< parallel to `plots`
   std::vector<std::int64_t> outside_feature_ids;       ///< in no plot: excluded
   std::vector<std::int64_t> unknown_plot_feature_ids;  ///< plot attribute names no plot: excluded
   std::vector<std::int64_t> off_window_feature_ids;    ///< kept by attribute, but outside its polygon
-  bool assigned_by_attribute = false;      ///< true when the plot attribute decided
+  bool assigned_by_attribute = false;                  ///< true when the plot attribute decided
 
   [[nodiscard]] std::size_t sighting_count() const;
 };
@@ -42,7 +42,6 @@ struct Survey {
 /// sighting outside its own polygon is kept and listed in `off_window_feature_ids`),
 /// otherwise by point-in-polygon (boundary inclusive). Throws InputError when plot ids
 /// repeat or two plots overlap (their areas would be counted twice).
-[[nodiscard]] Survey assign_to_plots(const std::vector<Sighting>& sightings,
-                                     std::vector<Plot> plots);
+[[nodiscard]] Survey assign_to_plots(const std::vector<Sighting>& sightings, std::vector<Plot> plots);
 
 }  // namespace stipple

@@ -90,7 +90,6 @@ class Window {
 /// Source: Ripley B.D. & Rasson J.-P. (1977) Finding the edge of a Poisson forest,
 /// J. Appl. Probab. 14:483-491 (from memory: pages).
 /// Throws AnalysisError when there are too few points or they are collinear.
-[[nodiscard]] Window ripley_rasson_hull(const std::vector<Point>& points,
-                                        std::string_view context);
+[[nodiscard]] Window ripley_rasson_hull(const std::vector<Point>& points, std::string_view context);
 
 }  // namespace stipple

@@ -10,18 +10,18 @@
 
 #include "stipple/geometry/survey.hpp"
 #include "stipple/intensity/detection.hpp"
-#include "stipple/stats/chi_square.hpp"
 #include "stipple/intensity/poisson.hpp"
 #include "stipple/simulate/engine.hpp"
+#include "stipple/stats/chi_square.hpp"
 
 namespace stipple {
 
 struct DensityOptions {
   AreaUnit unit = AreaUnit::hectare;
-  double confidence = 0.95;         ///< two-sided level of every interval; alpha = 1 - level
-  DetectionTable detection;         ///< p = 1 for every species unless given
+  double confidence = 0.95;  ///< two-sided level of every interval; alpha = 1 - level
+  DetectionTable detection;  ///< p = 1 for every species unless given
   std::uint64_t seed = default_seed;
-  std::size_t simulations = 999;    ///< Monte Carlo draws when expected counts are small
+  std::size_t simulations = 999;  ///< Monte Carlo draws when expected counts are small
 };
 
 /// One plot x species (species empty = all species together, the superposed process).
@@ -29,10 +29,10 @@ struct DensityEstimate {
   std::string plot;
   std::optional<std::string> species;
   std::uint64_t count = 0;
-  double area = 0.0;        ///< in the reporting unit
-  double area_m2 = 0.0;     ///< the same in square metres, as measured
-  double intensity = 0.0;   ///< count / area, per unit
-  Interval ci;              ///< exact Garwood interval, per unit
+  double area = 0.0;       ///< in the reporting unit
+  double area_m2 = 0.0;    ///< the same in square metres, as measured
+  double intensity = 0.0;  ///< count / area, per unit
+  Interval ci;             ///< exact Garwood interval, per unit
   CorrectedIntensity corrected;
 };
 
@@ -40,14 +40,14 @@ struct DensityEstimate {
 /// proportional to plot area, df = plots - 1 (common practice; e.g. Diggle 2003, ch. 2).
 struct HomogeneityTest {
   ChiSquareTest chi_square;
-  double p_value = 1.0;         ///< Monte Carlo when any expected count < 5, else chi-square
+  double p_value = 1.0;  ///< Monte Carlo when any expected count < 5, else chi-square
   bool monte_carlo = false;
   double dispersion_ratio = 0.0;  ///< X2 / df: about 1 when plots share one intensity
   /// Between-plot (ratio-estimator) standard error of the pooled intensity:
   /// var = k / (k - 1) * sum (n_i - R a_i)^2 / A^2, R = sum n / sum a
   /// (Cochran W.G. 1977, Sampling Techniques, 3rd ed., ch. 6, from memory: chapter).
   double between_plot_se = 0.0;
-  Interval between_plot_ci;     ///< R +- t_{k-1} se, lower limit clipped at 0 (observed scale)
+  Interval between_plot_ci;  ///< R +- t_{k-1} se, lower limit clipped at 0 (observed scale)
   /// The same on the detection-corrected scale, to be read beside the corrected intensity:
   /// the ratio estimator of the corrected plot counts y_i = sum_s n_is / p_s, plus the
   /// uncertainty of each p by the delta method, var(p part) = sum_s (N_s se_s / p_s^2)^2 / A^2
@@ -58,7 +58,7 @@ struct HomogeneityTest {
   double corrected_between_plot_se = 0.0;
   Interval corrected_between_plot_ci;
   double corrected_between_plot_df = 0.0;
-  bool significant = false;     ///< p_value < alpha
+  bool significant = false;  ///< p_value < alpha
 };
 
 /// One species (or all together) pooled over plots: sum n / sum |W| (superposition).
@@ -87,8 +87,8 @@ struct DensityResult {
   double alpha = 0.05;
   std::uint64_t seed = default_seed;
   std::size_t simulations = 0;
-  std::vector<DensityEstimate> estimates;  ///< per plot: each species, then all together
-  std::vector<PooledEstimate> pooled;      ///< each species, then all together
+  std::vector<DensityEstimate> estimates;      ///< per plot: each species, then all together
+  std::vector<PooledEstimate> pooled;          ///< each species, then all together
   std::optional<CompositionTest> composition;  ///< with two or more plots and species
 };
 
@@ -96,10 +96,10 @@ struct DensityResult {
 /// sightings of each species in each. Built from a survey or accumulated over many surveys
 /// (a season of plot files) without holding their sightings.
 struct PlotCounts {
-  std::vector<std::string> species;                   ///< sorted names
-  std::vector<std::string> plots;                     ///< plot ids, unique
-  std::vector<double> areas_m2;                       ///< parallel to `plots`
-  std::vector<std::vector<std::uint64_t>> counts;     ///< counts[plot][species]
+  std::vector<std::string> species;                ///< sorted names
+  std::vector<std::string> plots;                  ///< plot ids, unique
+  std::vector<double> areas_m2;                    ///< parallel to `plots`
+  std::vector<std::vector<std::uint64_t>> counts;  ///< counts[plot][species]
 
   /// The counts of a survey's plots.
   [[nodiscard]] static PlotCounts of(const Survey& survey);

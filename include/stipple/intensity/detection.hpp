@@ -24,8 +24,7 @@ struct Detection {
 };
 
 /// Validates p in (0, 1] and se >= 0, finite; throws InputError naming `context`.
-[[nodiscard]] Detection make_detection(double probability, double standard_error,
-                                       std::string_view context);
+[[nodiscard]] Detection make_detection(double probability, double standard_error, std::string_view context);
 
 /// Detection probabilities by species, with an optional value for every other species.
 class DetectionTable {
@@ -35,8 +34,8 @@ class DetectionTable {
   /// One detection probability for all species.
   static DetectionTable uniform(Detection detection);
   /// Per-species values read from `source`; `fallback` applies to species not listed.
-  static DetectionTable by_species(std::map<std::string, Detection> rows,
-                                   std::optional<Detection> fallback, std::string source);
+  static DetectionTable by_species(std::map<std::string, Detection> rows, std::optional<Detection> fallback,
+                                   std::string source);
 
   /// The detection probability of a species. Throws InputError when the species is
   /// neither listed nor covered by a fallback.
@@ -56,9 +55,9 @@ class DetectionTable {
 
 /// How the corrected interval was obtained.
 enum class CorrectionMethod {
-  none,               ///< p = 1: the observed exact interval
-  exact_divided_by_p, ///< se(p) = 0, one p: exact Poisson limits divided by p (exact)
-  delta_log,          ///< log-normal interval, var(log D) by the delta method
+  none,                ///< p = 1: the observed exact interval
+  exact_divided_by_p,  ///< se(p) = 0, one p: exact Poisson limits divided by p (exact)
+  delta_log,           ///< log-normal interval, var(log D) by the delta method
 };
 
 /// Machine-readable name of a correction method.
@@ -79,8 +78,8 @@ struct CorrectedIntensity {
 /// for one species CV^2 = 1/n + (se/p)^2, common practice). With no sightings the upper
 /// limit is the exact upper limit divided by the lower log-normal limit of p.
 /// `area` is in the reporting unit; counts and detections are parallel.
-[[nodiscard]] CorrectedIntensity correct_for_detection(
-    const std::vector<std::uint64_t>& counts, const std::vector<Detection>& detections,
-    double area, double confidence);
+[[nodiscard]] CorrectedIntensity correct_for_detection(const std::vector<std::uint64_t>& counts,
+                                                       const std::vector<Detection>& detections, double area,
+                                                       double confidence);
 
 }  // namespace stipple

@@ -15,8 +15,8 @@ namespace stipple {
 
 /// A north-up raster: values row by row from the top; NaN outside every window.
 struct IntensityRaster {
-  double x_min = 0.0;   ///< left edge, metres
-  double y_max = 0.0;   ///< top edge, metres
+  double x_min = 0.0;  ///< left edge, metres
+  double y_max = 0.0;  ///< top edge, metres
   double pixel_m = 1.0;
   std::size_t width = 0;
   std::size_t height = 0;

@@ -19,8 +19,8 @@ struct PlotResultFeature {
   std::string plot;
   std::optional<std::string> species;
   long long count = 0;
-  double area = 0.0;              ///< in `unit`
-  std::string unit;               ///< m2, ha or km2: area and intensities (per unit)
+  double area = 0.0;  ///< in `unit`
+  std::string unit;   ///< m2, ha or km2: area and intensities (per unit)
   double intensity = 0.0;
   double ci_low = 0.0;
   double ci_high = 0.0;
@@ -47,7 +47,8 @@ struct PlotResultFeature {
 /// fixed so a re-run gives an identical file.
 class PlotResultsWriter {
  public:
-  PlotResultsWriter(const std::string& path, const std::string& crs_wkt, const std::vector<std::string>& protected_paths);
+  PlotResultsWriter(const std::string& path, const std::string& crs_wkt,
+                    const std::vector<std::string>& protected_paths);
   ~PlotResultsWriter();
   PlotResultsWriter(const PlotResultsWriter&) = delete;
   PlotResultsWriter& operator=(const PlotResultsWriter&) = delete;

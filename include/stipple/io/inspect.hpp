@@ -23,16 +23,16 @@ struct PlotAreaSummary {
 struct LayerSummary {
   std::string name;
   std::string geometry_type;
-  std::int64_t feature_count = 0;    ///< features actually read
-  std::int64_t declared_count = -1;  ///< features the header declares; -1 = no header count
-  std::string read_error;            ///< GDAL's message when reading stopped on an error
+  std::int64_t feature_count = 0;       ///< features actually read
+  std::int64_t declared_count = -1;     ///< features the header declares; -1 = no header count
+  std::string read_error;               ///< GDAL's message when reading stopped on an error
   std::int64_t undecodable_values = 0;  ///< text values that were not valid UTF-8
-  std::string crs;       ///< "EPSG:N", a CRS name, or "none"
+  std::string crs;                      ///< "EPSG:N", a CRS name, or "none"
   std::string crs_name;
   std::vector<FieldSummary> fields;
   std::optional<std::map<std::string, std::int64_t>> species_counts;  ///< when the field exists
-  std::vector<PlotAreaSummary> plots;  ///< polygon layers
-  std::string area_crs;  ///< CRS the plot areas were measured in (the analysis rule)
+  std::vector<PlotAreaSummary> plots;                                 ///< polygon layers
+  std::string area_crs;         ///< CRS the plot areas were measured in (the analysis rule)
   double max_area_error = 0.0;  ///< largest |planar / geodesic - 1| of the plots in area_crs
 };
 

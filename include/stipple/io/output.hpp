@@ -39,8 +39,7 @@ class TemporaryOutput {
 
 /// Writes `content` to `path` through a TemporaryOutput renamed into place, so a reader never
 /// sees a half-written file; the target is checked by checked_output_path.
-void write_file_safely(const std::string& path, const std::string& content,
-                       const std::vector<std::string>& inputs);
+void write_file_safely(const std::string& path, const std::string& content, const std::vector<std::string>& inputs);
 
 /// An output written piece by piece (a table that grows as batch files finish) through a
 /// TemporaryOutput: nothing appears at `path` until commit(), and a failure leaves nothing.

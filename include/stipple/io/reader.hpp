@@ -37,13 +37,13 @@ struct SurveyReadOptions {
   std::optional<SourceSpec> plots;
   WindowMode window = WindowMode::plots;
   std::string species_field = "species";
-  std::string plot_field = "plot";     ///< plot id of the plot polygons
-  bool plot_field_given = false;      ///< the user named the plot field explicitly
+  std::string plot_field = "plot";                 ///< plot id of the plot polygons
+  bool plot_field_given = false;                   ///< the user named the plot field explicitly
   std::optional<std::string> sighting_plot_field;  ///< the sightings' plot attribute; default plot_field
   Assignment assignment = Assignment::automatic;
-  std::optional<std::string> encoding;  ///< text encoding of the sources (CPLRecode name); default UTF-8
-  std::optional<std::string> x_field; ///< CSV coordinate columns; default x/lon/longitude/easting
-  std::optional<std::string> y_field; ///< default y/lat/latitude/northing
+  std::optional<std::string> encoding;    ///< text encoding of the sources (CPLRecode name); default UTF-8
+  std::optional<std::string> x_field;     ///< CSV coordinate columns; default x/lon/longitude/easting
+  std::optional<std::string> y_field;     ///< default y/lat/latitude/northing
   std::optional<std::string> target_crs;  ///< analysis CRS, projected, metres
   std::optional<std::string> assume_crs;  ///< for layers without a CRS
   bool repair_geometry = false;           ///< fix invalid polygons with GDAL's MakeValid
@@ -65,7 +65,6 @@ struct LoadedSurvey : InputFacts {
 /// Reads a CSV (or any OGR table) of detection probabilities with columns `species`,
 /// `p` and optionally `se`; `fallback` covers species not listed. Throws InputError
 /// naming the file and row for a bad value or a repeated species.
-[[nodiscard]] DetectionTable read_detection_table(const std::string& path,
-                                                  std::optional<Detection> fallback);
+[[nodiscard]] DetectionTable read_detection_table(const std::string& path, std::optional<Detection> fallback);
 
 }  // namespace stipple

@@ -14,26 +14,26 @@ namespace stipple {
 
 struct TransectReadOptions {
   SourceSpec sightings;
-  std::optional<SourceSpec> lines;     ///< line layer, one or more features per transect
-  std::optional<SourceSpec> stations;  ///< point layer, one feature per station
-  std::string transect_field = "transect";  ///< transect id of the lines or stations
+  std::optional<SourceSpec> lines;                     ///< line layer, one or more features per transect
+  std::optional<SourceSpec> stations;                  ///< point layer, one feature per station
+  std::string transect_field = "transect";             ///< transect id of the lines or stations
   std::optional<std::string> sighting_transect_field;  ///< the sightings' one; default transect_field
-  Assignment assignment = Assignment::automatic;  ///< location = nearest transect
-  std::optional<std::string> encoding;            ///< text encoding of the sources
-  std::optional<std::string> effort_field;   ///< line length in km instead of the geometry's
-  std::optional<std::string> visits_field;   ///< default: field 'visits' when present, else 1
-  std::optional<std::string> distance_field; ///< recorded distance (m); else from locations
-  std::optional<std::string> angle_field;    ///< sighting angle (degrees): x = r sin(angle)
-  std::optional<std::string> size_field;     ///< cluster size, default 1
+  Assignment assignment = Assignment::automatic;       ///< location = nearest transect
+  std::optional<std::string> encoding;                 ///< text encoding of the sources
+  std::optional<std::string> effort_field;             ///< line length in km instead of the geometry's
+  std::optional<std::string> visits_field;             ///< default: field 'visits' when present, else 1
+  std::optional<std::string> distance_field;           ///< recorded distance (m); else from locations
+  std::optional<std::string> angle_field;              ///< sighting angle (degrees): x = r sin(angle)
+  std::optional<std::string> size_field;               ///< cluster size, default 1
   std::string species_field = "species";
   std::optional<std::string> stratum_field;  ///< on the transect layer
   std::optional<std::string> x_field;
   std::optional<std::string> y_field;
   std::optional<std::string> target_crs;
   std::optional<std::string> assume_crs;
-  double max_offset_m = 1000.0;              ///< farther from every transect is an error
-  std::vector<double> bin_edges;             ///< recorded distances must fall inside them
-  std::optional<SourceSpec> study_area;      ///< polygons; with stratum_field: per stratum
+  double max_offset_m = 1000.0;          ///< farther from every transect is an error
+  std::vector<double> bin_edges;         ///< recorded distances must fall inside them
+  std::optional<SourceSpec> study_area;  ///< polygons; with stratum_field: per stratum
 };
 
 /// Transects and sightings as read, with the facts of their reading (`study_area_m2` when a

@@ -19,21 +19,21 @@
 namespace stipple {
 
 struct RandomnessOptions {
-  QuadratOptions quadrat;                                 ///< its `simulations` is set from below
-  std::optional<NeighbourEdgeCorrection> edge_correction; ///< default per window shape
+  QuadratOptions quadrat;                                  ///< its `simulations` is set from below
+  std::optional<NeighbourEdgeCorrection> edge_correction;  ///< default per window shape
   std::size_t simulations = 999;
   std::uint64_t seed = default_seed;
-  unsigned threads = 0;                  ///< 0 = all cores; results never depend on it
-  std::optional<double> rmax_m;          ///< default: default_rmax() per group
+  unsigned threads = 0;          ///< 0 = all cores; results never depend on it
+  std::optional<double> rmax_m;  ///< default: default_rmax() per group
   std::size_t steps = 64;
-  PairCorrection pair_correction = PairCorrection::isotropic;            ///< K, L, g
+  PairCorrection pair_correction = PairCorrection::isotropic;                 ///< K, L, g
   DistanceCorrection distance_correction = DistanceCorrection::kaplan_meier;  ///< G, F
   double alpha = 0.05;
   bool run_quadrat = true;
   bool run_clark_evans = true;
   bool run_envelope = true;
   bool run_interactions = true;
-  std::size_t min_points = 3;            ///< smaller groups get no test (listed as skipped)
+  std::size_t min_points = 3;  ///< smaller groups get no test (listed as skipped)
   /// Below this many sightings a test that does not reject says `too few to tell`, not
   /// `random`: no CSR test has useful power there (README "Randomness", power table).
   std::size_t min_points_for_random = 10;
@@ -57,7 +57,7 @@ struct GroupResult {
   PairCorrection pair_correction = PairCorrection::isotropic;
   DistanceCorrection distance_correction = DistanceCorrection::kaplan_meier;
   std::vector<FunctionEnvelope> functions;  ///< L first; empty when the envelope did not run
-  std::string verdict = "random";  ///< clustered | regular | random | undetermined | too few to tell
+  std::string verdict = "random";           ///< clustered | regular | random | undetermined | too few to tell
   std::string verdict_basis;                ///< which test decided
   std::vector<std::string> notes;
   /// The L envelope, when it ran.
@@ -73,8 +73,8 @@ struct InteractionResult {
   std::size_t n_a = 0;
   std::size_t n_b = 0;
   double rmax_m = 0.0;
-  EnvelopeResult cross_l;     ///< cross-L of b around a against random labellings
-  double p_value = 1.0;       ///< DCLF test of cross-L under random labelling
+  EnvelopeResult cross_l;          ///< cross-L of b around a against random labellings
+  double p_value = 1.0;            ///< DCLF test of cross-L under random labelling
   std::string direction = "none";  ///< association | segregation | none | undetermined, at alpha
   std::string note;                ///< why the direction is undetermined, when it is
 };
@@ -109,19 +109,15 @@ struct RandomnessResult {
 /// from the sign of the mean deviation from the simulation mean), else the Clark-Evans test,
 /// else the quadrat test; it is `undetermined`, with a note giving minimum_simulations, when
 /// that test is a Monte Carlo one whose simulations cannot reach p < alpha.
-[[nodiscard]] RandomnessResult analyse_randomness(const Survey& survey,
-                                                  const RandomnessOptions& options);
+[[nodiscard]] RandomnessResult analyse_randomness(const Survey& survey, const RandomnessOptions& options);
 
 /// One group's tests: exposed for the statistical test suite and the benchmarks.
 [[nodiscard]] GroupResult analyse_pattern(const std::vector<Point>& points, const Window& window,
-                                          const RandomnessOptions& options,
-                                          const std::string& key);
+                                          const RandomnessOptions& options, const std::string& key);
 
 /// Random labelling of two species over their fixed locations (Diggle 2003, ch. 7).
-[[nodiscard]] InteractionResult random_labelling_test(const std::vector<Point>& a,
-                                                      const std::vector<Point>& b,
-                                                      const Window& window,
-                                                      const RandomnessOptions& options,
+[[nodiscard]] InteractionResult random_labelling_test(const std::vector<Point>& a, const std::vector<Point>& b,
+                                                      const Window& window, const RandomnessOptions& options,
                                                       const std::string& key);
 
 }  // namespace stipple

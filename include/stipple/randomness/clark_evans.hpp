@@ -32,9 +32,9 @@ struct ClarkEvansResult {
   double mean_distance = 0.0;        ///< r-bar, metres
   double expected_distance = 0.0;    ///< under CSR, with the chosen correction
   double standard_error = 0.0;
-  double ratio = 0.0;                ///< R = r-bar / expected
+  double ratio = 0.0;  ///< R = r-bar / expected
   double z = 0.0;
-  double normal_p_value = 1.0;       ///< two-sided, from the normal law of z
+  double normal_p_value = 1.0;  ///< two-sided, from the normal law of z
   /// The p-value to report. Normal (= normal_p_value) for none and Donnelly. For the border
   /// method the normal law is anti-conservative (size 6-11% at nominal 5% in simulation:
   /// the reference points' distances are correlated and n is small), so p_value is NaN here
@@ -43,7 +43,7 @@ struct ClarkEvansResult {
   std::string p_value_method = "normal";  ///< normal | monte-carlo | none
   NeighbourEdgeCorrection edge_correction = NeighbourEdgeCorrection::none;
   std::optional<double> monte_carlo_p_value;  ///< two-sided, filled by the caller's simulations
-  std::string note;                  ///< e.g. why a requested correction was replaced
+  std::string note;                           ///< e.g. why a requested correction was replaced
 };
 
 /// Clark & Evans (1954): r_E = 1 / (2 sqrt(lambda)), SE = 0.26136 / sqrt(n lambda),
@@ -56,15 +56,12 @@ struct ClarkEvansResult {
 /// distance and `boundary` its distance to the window boundary (parallel to the points).
 /// A requested Donnelly correction on a non-rectangular window falls back to border, with a
 /// note. Throws AnalysisError with fewer than 2 points or no reference point.
-[[nodiscard]] ClarkEvansResult clark_evans(const std::vector<double>& nearest,
-                                           const std::vector<double>& boundary,
-                                           const Window& window,
-                                           std::optional<NeighbourEdgeCorrection> requested);
+[[nodiscard]] ClarkEvansResult clark_evans(const std::vector<double>& nearest, const std::vector<double>& boundary,
+                                           const Window& window, std::optional<NeighbourEdgeCorrection> requested);
 
 /// The statistic the Monte Carlo test compares: the mean nearest-neighbour distance over
 /// the reference points of the chosen correction (NaN when there is none).
-[[nodiscard]] double clark_evans_mean(const std::vector<double>& nearest,
-                                      const std::vector<double>& boundary, const Window& window,
-                                      NeighbourEdgeCorrection correction);
+[[nodiscard]] double clark_evans_mean(const std::vector<double>& nearest, const std::vector<double>& boundary,
+                                      const Window& window, NeighbourEdgeCorrection correction);
 
 }  // namespace stipple

@@ -27,7 +27,7 @@ struct EnvelopeResult {
   std::vector<double> global_low;
   std::vector<double> global_high;
   std::size_t simulations = 0;
-  double mad_statistic = 0.0;   ///< max_r |obs - mean|
+  double mad_statistic = 0.0;  ///< max_r |obs - mean|
   double mad_p_value = 1.0;
   double dclf_statistic = 0.0;  ///< sum_r (obs - mean)^2 dr
   double dclf_p_value = 1.0;
@@ -41,13 +41,11 @@ struct EnvelopeResult {
 /// and the Diggle-Cressie-Loosmore-Ford integrated squared deviation (Diggle 1986; Cressie
 /// 1991; Loosmore & Ford 2006, from memory: years), each curve (observed and simulated)
 /// measured against the mean of the other N curves, so all N + 1 are exchangeable and the
-/// test is exact at any N. `simulation_mean` is still the mean of the simulations alone. Global envelope and p-value by extreme rank lengths,
-/// two-sided (Myllymaki, Mrkvicka, Grabarnik, Seijo & Hahn 2017, JRSS B 79:381-404).
-/// NaN values (e.g. J where F = 1) are skipped. Throws AnalysisError without simulations.
-[[nodiscard]] EnvelopeResult envelope_test(const std::vector<double>& r,
-                                           const std::vector<double>& observed,
+/// test is exact at any N. `simulation_mean` is still the mean of the simulations alone. Global envelope and p-value by
+/// extreme rank lengths, two-sided (Myllymaki, Mrkvicka, Grabarnik, Seijo & Hahn 2017, JRSS B 79:381-404). NaN values
+/// (e.g. J where F = 1) are skipped. Throws AnalysisError without simulations.
+[[nodiscard]] EnvelopeResult envelope_test(const std::vector<double>& r, const std::vector<double>& observed,
                                            const std::vector<double>& theoretical,
-                                           const std::vector<std::vector<double>>& simulated,
-                                           double alpha);
+                                           const std::vector<std::vector<double>>& simulated, double alpha);
 
 }  // namespace stipple

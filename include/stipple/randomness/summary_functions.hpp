@@ -28,11 +28,11 @@ enum class DistanceCorrection {
 [[nodiscard]] std::string_view distance_correction_name(DistanceCorrection c);
 
 struct SummaryOptions {
-  double rmax_m = 0.0;          ///< largest distance, metres (> 0)
-  std::size_t steps = 64;       ///< distances r_k = k rmax / steps, k = 1..steps
+  double rmax_m = 0.0;     ///< largest distance, metres (> 0)
+  std::size_t steps = 64;  ///< distances r_k = k rmax / steps, k = 1..steps
   PairCorrection pair_correction = PairCorrection::isotropic;
   DistanceCorrection distance_correction = DistanceCorrection::kaplan_meier;
-  std::size_t f_grid = 32;      ///< F test locations: an f_grid x f_grid lattice over the bounds
+  std::size_t f_grid = 32;  ///< F test locations: an f_grid x f_grid lattice over the bounds
 };
 
 /// Values of every summary function on the distance grid `r` (metres; K in m2).
@@ -40,10 +40,10 @@ struct SummaryCurves {
   std::vector<double> r;
   std::vector<double> k;
   std::vector<double> l;
-  std::vector<double> g;    ///< pair correlation
-  std::vector<double> nn;   ///< G
-  std::vector<double> f;    ///< F
-  std::vector<double> j;    ///< J (NaN where F = 1)
+  std::vector<double> g;         ///< pair correlation
+  std::vector<double> nn;        ///< G
+  std::vector<double> f;         ///< F
+  std::vector<double> j;         ///< J (NaN where F = 1)
   std::vector<double> nearest;   ///< per point: nearest-neighbour distance (summary_functions)
   std::vector<double> boundary;  ///< per point: distance to the window boundary
 };
@@ -79,8 +79,7 @@ class SummaryContext {
 /// distances at every r (no histogram), or from centres at least r from the boundary with
 /// border correction;
 /// G, F by Kaplan-Meier or border; J = (1 - G) / (1 - F) (van Lieshout & Baddeley 1996).
-[[nodiscard]] SummaryCurves summary_functions(const std::vector<Point>& points,
-                                              const SummaryContext& context);
+[[nodiscard]] SummaryCurves summary_functions(const std::vector<Point>& points, const SummaryContext& context);
 
 /// CSR values on the grid: K = pi r^2, L = r, g = 1, G = F = 1 - exp(-lambda pi r^2), J = 1.
 [[nodiscard]] SummaryCurves csr_curves(const std::vector<double>& r, double intensity_per_m2);

@@ -4,9 +4,9 @@
 #include <string>
 #include <vector>
 
-#include "stipple/intensity/density.hpp"
 #include "stipple/geometry/survey.hpp"
 #include "stipple/input_facts.hpp"
+#include "stipple/intensity/density.hpp"
 
 namespace stipple {
 

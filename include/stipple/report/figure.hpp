@@ -12,18 +12,18 @@ namespace stipple {
 struct ChartSeries {
   enum class Kind { line, dashed_line, band, bars, points };
   Kind kind = Kind::line;
-  std::vector<double> x;       ///< bars: left edges
-  std::vector<double> y;       ///< band: lower; bars: heights
-  std::vector<double> y_upper; ///< band: upper; bars: right edges
-  int colour = 0;              ///< index into the palette (0 blue, 1 vermillion, 2 grey, 3 light grey, 4 green)
-  std::string label;           ///< legend text; empty = no legend entry
+  std::vector<double> x;        ///< bars: left edges
+  std::vector<double> y;        ///< band: lower; bars: heights
+  std::vector<double> y_upper;  ///< band: upper; bars: right edges
+  int colour = 0;               ///< index into the palette (0 blue, 1 vermillion, 2 grey, 3 light grey, 4 green)
+  std::string label;            ///< legend text; empty = no legend entry
 };
 
 struct Chart {
   std::string title;
   std::string x_label;
   std::string y_label;
-  std::string caption;   ///< one line under the plot
+  std::string caption;              ///< one line under the plot
   std::vector<ChartSeries> series;  ///< drawn in order
 };
 

@@ -24,7 +24,6 @@ namespace stipple {
 [[nodiscard]] std::string randomness_curves_csv(const RandomnessResult& result);
 /// The figures: L with its envelopes, SVG and PNG, per group and per species pair, and a
 /// manifest `figures.csv` of which file shows which plot and species.
-[[nodiscard]] std::vector<FigureFile> randomness_figures(
-    const RandomnessResult& result);
+[[nodiscard]] std::vector<FigureFile> randomness_figures(const RandomnessResult& result);
 
 }  // namespace stipple

@@ -19,35 +19,35 @@ namespace stipple {
 /// The facts of a run the methods paragraph is written from: the options actually used.
 struct SeasonRun {
   std::string version;
-  std::string options_text;            ///< the options as given, for the record
+  std::string options_text;  ///< the options as given, for the record
   bool density = false;
   bool randomness = false;
   bool transect = false;
   std::uint64_t seed = 0;
   std::size_t simulations = 0;
-  std::string unit = "ha";             ///< density unit of the plot analyses
-  std::string transect_unit = "km2";   ///< density unit of the transect analyses
+  std::string unit = "ha";            ///< density unit of the plot analyses
+  std::string transect_unit = "km2";  ///< density unit of the transect analyses
   double confidence = 0.95;
-  std::string crs;                     ///< the batch CRS (every GIS feature is in it)
+  std::string crs;  ///< the batch CRS (every GIS feature is in it)
   std::string crs_name;
   std::string quadrats = "4x4";
-  std::string edge_correction;         ///< Clark-Evans: empty = per window shape
+  std::string edge_correction;  ///< Clark-Evans: empty = per window shape
   std::string pair_correction = "isotropic";
   std::string distance_correction = "kaplan-meier";
-  std::optional<double> rmax_m;        ///< empty = the default rule per group
-  std::string detection;               ///< how densities were corrected, one phrase
-  std::string transect_models;         ///< keys and adjustments tried
-  std::string truncation;              ///< as given
+  std::optional<double> rmax_m;  ///< empty = the default rule per group
+  std::string detection;         ///< how densities were corrected, one phrase
+  std::string transect_models;   ///< keys and adjustments tried
+  std::string truncation;        ///< as given
   std::size_t bootstrap = 0;
 };
 
 struct SeasonInput {
   std::string name;
-  std::string plots;                   ///< separate plots file, or empty
-  std::string kind;                    ///< plots | transects | unknown
-  std::string crs;                     ///< the file's own analysis CRS
-  std::string status;                  ///< ok | failed | skipped
-  std::string reason;                  ///< why it failed or was skipped
+  std::string plots;   ///< separate plots file, or empty
+  std::string kind;    ///< plots | transects | unknown
+  std::string crs;     ///< the file's own analysis CRS
+  std::string status;  ///< ok | failed | skipped
+  std::string reason;  ///< why it failed or was skipped
   std::string sha256;
   std::vector<std::string> warnings;
 };
@@ -70,7 +70,7 @@ struct SeasonRandomnessRow {
   std::optional<double> dclf_p;
   std::optional<double> erl_p;
   std::optional<double> rmax_m;
-  std::vector<Departure> departures;   ///< where L leaves the global envelope
+  std::vector<Departure> departures;  ///< where L leaves the global envelope
   std::string verdict;
 };
 
@@ -93,10 +93,10 @@ struct SeasonTransectRow {
   std::string model;
   std::size_t n = 0;
   bool lines = true;
-  double effort = 0.0;                 ///< km (lines) or visits (points)
-  double effective_width_m = 0.0;      ///< ESW (lines) or effective radius (points)
+  double effort = 0.0;             ///< km (lines) or visits (points)
+  double effective_width_m = 0.0;  ///< ESW (lines) or effective radius (points)
   double detection_probability = 0.0;
-  double density = 0.0;                ///< per SeasonRun::transect_unit
+  double density = 0.0;  ///< per SeasonRun::transect_unit
   std::optional<double> density_cv;
   Interval density_ci;
   std::optional<Interval> bootstrap_ci;
@@ -105,8 +105,8 @@ struct SeasonTransectRow {
 
 /// A figure of the season, inlined from its SVG text.
 struct SeasonFigure {
-  std::string section;                 ///< map | L | detection
-  std::string path;                    ///< relative to the output folder
+  std::string section;  ///< map | L | detection
+  std::string path;     ///< relative to the output folder
   std::string title;
 };
 
@@ -120,7 +120,7 @@ struct SeasonReport {
   std::vector<SeasonInteractionRow> interactions;
   std::vector<SeasonTransectRow> transects;
   std::vector<SeasonFigure> figures;
-  std::vector<std::string> warnings;   ///< season-wide (pooling) warnings
+  std::vector<std::string> warnings;  ///< season-wide (pooling) warnings
 };
 
 /// Reads a figure's SVG text by its path relative to the output folder.

@@ -22,8 +22,8 @@ namespace stipple {
 [[nodiscard]] std::string transect_json(const InputFacts& input, const TransectResult& result);
 /// The JSON document of `stipple effort --json`: the pilot values, the target CV, the
 /// dispersion factor b, the effort needed and the detections it should yield.
-[[nodiscard]] std::string effort_json(double pilot_detections, double pilot_effort, double target_cv,
-                                      double dispersion, double effort_needed);
+[[nodiscard]] std::string effort_json(double pilot_detections, double pilot_effort, double target_cv, double dispersion,
+                                      double effort_needed);
 /// One row per species x stratum.
 [[nodiscard]] std::string transect_csv(const TransectResult& result);
 /// Per fitted detection function: the distance histogram scaled to g with the fitted curve,

@@ -15,10 +15,10 @@ namespace stipple {
 struct ChiSquareTest {
   double statistic = 0.0;
   double df = 0.0;
-  double p_upper = 1.0;      ///< P(X2 >= observed): excess variation (clustering, heterogeneity)
-  double p_lower = 1.0;      ///< P(X2 <= observed): too little variation (regularity)
-  double p_two_sided = 1.0;  ///< 2 min(p_upper, p_lower), capped at 1
-  double min_expected = 0.0; ///< smallest expected count; below 5 the chi-square law is poor
+  double p_upper = 1.0;                       ///< P(X2 >= observed): excess variation (clustering, heterogeneity)
+  double p_lower = 1.0;                       ///< P(X2 <= observed): too little variation (regularity)
+  double p_two_sided = 1.0;                   ///< 2 min(p_upper, p_lower), capped at 1
+  double min_expected = 0.0;                  ///< smallest expected count; below 5 the chi-square law is poor
   std::optional<double> monte_carlo_p_value;  ///< upper-tail, conditional on the total
   std::size_t simulations = 0;                ///< Monte Carlo draws behind it (0 = none)
 };
@@ -40,19 +40,17 @@ inline constexpr double min_expected_for_chi_square = 5.0;
 /// `expected` (for quadrats: the binomial process, same n in the same window); Monte Carlo
 /// p-values as in Hope (1968, JRSS B 30:582-598, from memory: pages).
 [[nodiscard]] MonteCarloTails multinomial_monte_carlo(const std::vector<std::uint64_t>& observed,
-                                                      const std::vector<double>& expected,
-                                                      std::size_t simulations, Engine& engine);
+                                                      const std::vector<double>& expected, std::size_t simulations,
+                                                      Engine& engine);
 
 /// Pearson X2 of independence for an r x c table of counts (rows or columns summing to 0
 /// are dropped), df = (r - 1)(c - 1). Throws AnalysisError when fewer than 2 rows or
 /// columns remain.
-[[nodiscard]] ChiSquareTest pearson_contingency(
-    const std::vector<std::vector<std::uint64_t>>& table);
+[[nodiscard]] ChiSquareTest pearson_contingency(const std::vector<std::vector<std::uint64_t>>& table);
 
 /// Monte Carlo p-value of the contingency X2 with both margins fixed: the column labels
 /// of the individual counts are permuted at random (Hope 1968).
-[[nodiscard]] double contingency_monte_carlo_p(
-    const std::vector<std::vector<std::uint64_t>>& table, std::size_t simulations,
-    Engine& engine);
+[[nodiscard]] double contingency_monte_carlo_p(const std::vector<std::vector<std::uint64_t>>& table,
+                                               std::size_t simulations, Engine& engine);
 
 }  // namespace stipple

@@ -29,9 +29,9 @@ enum class TransectKind { line, point };
 struct DistanceData {
   TransectKind kind = TransectKind::line;
   double truncation_m = std::numeric_limits<double>::infinity();  ///< w; infinite = none
-  std::vector<double> exact;               ///< perpendicular (lines) or radial (points)
-  std::vector<double> bin_edges;           ///< binned data: edges c_0 < ... < c_m = w
-  std::vector<std::uint64_t> bin_counts;   ///< n_k in [c_{k-1}, c_k)
+  std::vector<double> exact;                                      ///< perpendicular (lines) or radial (points)
+  std::vector<double> bin_edges;                                  ///< binned data: edges c_0 < ... < c_m = w
+  std::vector<std::uint64_t> bin_counts;                          ///< n_k in [c_{k-1}, c_k)
   [[nodiscard]] bool binned() const { return !bin_edges.empty(); }
   [[nodiscard]] std::size_t size() const;
 };
@@ -80,13 +80,13 @@ class DetectionFunction {
 struct DetectionFit {
   explicit DetectionFit(DetectionFunction f) : function(std::move(f)) {}
   DetectionFunction function;
-  std::size_t n = 0;                 ///< detections used (within truncation)
-  std::size_t parameter_count = 0;   ///< q
+  std::size_t n = 0;                ///< detections used (within truncation)
+  std::size_t parameter_count = 0;  ///< q
   double log_likelihood = 0.0;
   double aic = 0.0;
   double aicc = 0.0;
   bool converged = true;
-  bool monotone = true;              ///< g non-increasing and >= 0 on [0, w]
+  bool monotone = true;  ///< g non-increasing and >= 0 on [0, w]
   /// Of the working parameters (log sigma, log b, a_j); rows of parameters held at a bound are 0.
   std::vector<std::vector<double>> covariance;
   double detection_probability = 0.0;     ///< P_a = mu / w (lines), nu / (pi w^2) (points)
@@ -115,8 +115,7 @@ struct DetectionFit {
 /// listed too, so every candidate appears with its AIC. Only converged, monotone fits are
 /// kept; the first is always one that forward selection accepted. Throws AnalysisError
 /// when none fits.
-[[nodiscard]] std::vector<DetectionFit> fit_candidates(const DistanceData& data,
-                                                       const std::vector<KeyFunction>& keys,
+[[nodiscard]] std::vector<DetectionFit> fit_candidates(const DistanceData& data, const std::vector<KeyFunction>& keys,
                                                        const std::vector<Adjustment>& adjustments,
                                                        std::size_t max_terms = 2);
 

@@ -25,8 +25,8 @@ struct TransectUnit {
 
 /// One detection (of a cluster of `size` animals) on a transect.
 struct TransectObservation {
-  std::size_t transect = 0;   ///< index into TransectSurvey::transects
-  double distance_m = 0.0;    ///< perpendicular (lines) or radial (points)
+  std::size_t transect = 0;  ///< index into TransectSurvey::transects
+  double distance_m = 0.0;   ///< perpendicular (lines) or radial (points)
   double size = 1.0;
   std::string species;
 };
@@ -45,10 +45,9 @@ struct EncounterRate {
   std::size_t transects = 0;
   double rate = 0.0;
   double variance = 0.0;
-  double cv = 0.0;   ///< NaN when n = 0
+  double cv = 0.0;  ///< NaN when n = 0
 };
-[[nodiscard]] EncounterRate encounter_rate(const std::vector<double>& effort,
-                                           const std::vector<double>& counts);
+[[nodiscard]] EncounterRate encounter_rate(const std::vector<double>& effort, const std::vector<double>& counts);
 
 /// Satterthwaite degrees of freedom of a product of independent estimates:
 /// df = CV^4 / sum (CV_i^4 / df_i) (Buckland et al. 2001, §3.7.1, from memory).
@@ -84,16 +83,16 @@ struct TransectOptions {
   std::vector<Adjustment> adjustments{Adjustment::cosine};
   std::size_t max_terms = 2;
   Truncation truncation;
-  std::vector<double> bin_edges;          ///< non-empty: binned analysis on these edges (m)
+  std::vector<double> bin_edges;  ///< non-empty: binned analysis on these edges (m)
   AreaUnit unit = AreaUnit::square_kilometre;
   double confidence = 0.95;
-  bool pool_detection = false;            ///< one detection function for every species and stratum
-  std::optional<double> study_area_m2;    ///< for abundance N = D A
+  bool pool_detection = false;          ///< one detection function for every species and stratum
+  std::optional<double> study_area_m2;  ///< for abundance N = D A
   std::map<std::string, double> stratum_area_m2;
   std::size_t bootstrap = 0;
   std::uint64_t seed = default_seed;
   unsigned threads = 0;
-  std::optional<double> target_cv;        ///< also report the effort needed for this CV
+  std::optional<double> target_cv;  ///< also report the effort needed for this CV
   /// Called after each bootstrap replicate (from any thread, one call at a time): (done, total).
   std::function<void(std::size_t, std::size_t)> progress;
 };
@@ -114,12 +113,12 @@ struct TransectEstimate {
   std::optional<std::string> stratum;  ///< empty = all strata
   DetectionFit fit;
   GoodnessOfFit gof;
-  std::size_t n = 0;                   ///< detections within truncation
-  double effort = 0.0;                 ///< km (lines) or visits (points)
-  EncounterRate encounter;             ///< per km (lines) or per visit (points)
+  std::size_t n = 0;        ///< detections within truncation
+  double effort = 0.0;      ///< km (lines) or visits (points)
+  EncounterRate encounter;  ///< per km (lines) or per visit (points)
   double mean_size = 1.0;
   double mean_size_cv = 0.0;
-  double density = 0.0;                ///< per unit area
+  double density = 0.0;  ///< per unit area
   double density_cv = 0.0;
   double df = 0.0;
   Interval density_ci;
@@ -128,7 +127,7 @@ struct TransectEstimate {
   std::optional<Interval> bootstrap_ci;
   std::optional<double> bootstrap_cv;
   std::optional<double> effort_for_target;  ///< km or visits for options.target_cv
-  double dispersion = 0.0;             ///< b = n (CV(n/L)^2 + CV(P_a)^2) from this survey
+  double dispersion = 0.0;                  ///< b = n (CV(n/L)^2 + CV(P_a)^2) from this survey
 };
 
 struct TransectResult {
@@ -136,7 +135,7 @@ struct TransectResult {
   AreaUnit unit = AreaUnit::square_kilometre;
   double confidence = 0.95;
   double truncation_m = 0.0;
-  std::size_t truncated = 0;          ///< detections beyond the truncation distance
+  std::size_t truncated = 0;  ///< detections beyond the truncation distance
   std::vector<TransectEstimate> results;
   std::vector<ModelComparison> models_compared;
   std::vector<std::string> notes;

@@ -33,9 +33,7 @@ struct DatasetCloser {
 using DatasetPtr = std::unique_ptr<GDALDataset, DatasetCloser>;
 
 struct TransformDeleter {
-  void operator()(OGRCoordinateTransformation* ct) const {
-    OGRCoordinateTransformation::DestroyCT(ct);
-  }
+  void operator()(OGRCoordinateTransformation* ct) const { OGRCoordinateTransformation::DestroyCT(ct); }
 };
 using TransformPtr = std::unique_ptr<OGRCoordinateTransformation, TransformDeleter>;
 
@@ -63,9 +61,8 @@ DatasetPtr open_vector(const std::string& path, const CsvColumns& columns = {},
 
 /// The layer to read: the named one, the only one, or the only non-empty one of the kind.
 /// Throws InputError listing the layers when the choice is ambiguous or the name unknown.
-OGRLayer& pick_layer(GDALDataset& dataset, const std::string& path,
-                     const std::optional<std::string>& name, LayerKind kind,
-                     const std::string& option_name);
+OGRLayer& pick_layer(GDALDataset& dataset, const std::string& path, const std::optional<std::string>& name,
+                     LayerKind kind, const std::string& option_name);
 
 /// "path: layer 'name'"
 std::string layer_label(const std::string& path, OGRLayer& layer);
@@ -79,8 +76,7 @@ OGRSpatialReference parse_crs(const std::string& text, const std::string& option
 
 /// The layer's CRS, or the assumed one when the layer has none. Throws InputError when
 /// the layer has no CRS and none is assumed.
-OGRSpatialReference layer_crs(OGRLayer& layer, const std::string& label,
-                              const std::optional<std::string>& assume_crs);
+OGRSpatialReference layer_crs(OGRLayer& layer, const std::string& label, const std::optional<std::string>& assume_crs);
 
 /// True for a projected CRS whose linear unit is the metre.
 bool is_projected_metres(const OGRSpatialReference& srs);
@@ -99,14 +95,12 @@ struct CentreSample {
 /// centred on the mean direction of the samples (right across the antimeridian and near the
 /// poles). Areas are exact on the ellipsoid everywhere; `centre_text` receives "51.5000N
 /// 0.1200W". Throws InputError naming `label` when no sample converts to longitude/latitude.
-OGRSpatialReference local_equal_area(const std::vector<CentreSample>& samples,
-                                     const OGRSpatialReference& datum_from,
+OGRSpatialReference local_equal_area(const std::vector<CentreSample>& samples, const OGRSpatialReference& datum_from,
                                      const std::string& label, std::string& centre_text);
 
 /// Area (m2) on the ellipsoid of `srs` of polygons given in `srs`, with geodesic edges
 /// between their vertices (PROJ's geod_polygonarea; Karney 2013).
-double geodesic_area(const BgMultiPolygon& shape, const OGRSpatialReference& srs,
-                     const std::string& label);
+double geodesic_area(const BgMultiPolygon& shape, const OGRSpatialReference& srs, const std::string& label);
 
 /// The analysis CRS: `target` when given, which must be projected in metres; else
 /// the first candidate CRS projected in metres whose plot areas (`area_error`, the largest
@@ -135,8 +129,7 @@ void check_coordinate(double x, double y, const OGRSpatialReference& srs, const 
 void check_envelope(const OGRGeometry& geometry, const OGRSpatialReference& srs, const std::string& where);
 
 /// A transformation between two CRSs, or null when they are the same.
-TransformPtr make_transform(const OGRSpatialReference& from, const OGRSpatialReference& to,
-                            const std::string& label);
+TransformPtr make_transform(const OGRSpatialReference& from, const OGRSpatialReference& to, const std::string& label);
 
 /// GDAL's last error message, or empty.
 std::string last_gdal_message();
