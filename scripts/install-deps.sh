@@ -19,6 +19,8 @@ packages=(
   libbenchmark-dev                 # Google Benchmark (bench/)
   python3                          # demo-data generator
   time                             # GNU time: whole-process peak memory in bench/batch_memory.sh
+  clang-format clang-tidy          # style and static checks enforced by scripts/lint.sh
+  locales                          # localedef: the decimal-comma locale the tests run under
 )
 if [ "$(id -u)" -ne 0 ]; then sudo=sudo; else sudo=; fi
 missing=()
@@ -28,4 +30,9 @@ done
 if [ ${#missing[@]} -gt 0 ]; then
   $sudo apt-get update -qq
   DEBIAN_FRONTEND=noninteractive $sudo apt-get install -y -qq --no-install-recommends "${missing[@]}"
+fi
+# A locale with a decimal comma: the test main switches to it, so any formatting or parsing
+# that follows the locale fails a test (tests/format_test.cpp reports itself skipped without).
+if ! locale -a 2>/dev/null | grep -qi '^de_DE\.utf-\?8$'; then
+  $sudo localedef -i de_DE -f UTF-8 de_DE.UTF-8
 fi

@@ -96,6 +96,7 @@ std::string TextTable::render(const std::string& indent) const {
   measure(header_);
   for (const auto& row : rows_) measure(row);
   std::ostringstream out;
+  out.imbue(std::locale::classic());  // numbers never follow a host's locale
   const auto emit = [&](const std::vector<std::string>& row) {
     std::string line = indent;
     for (std::size_t c = 0; c < row.size(); ++c) {

@@ -3,6 +3,7 @@
 
 #include <sys/wait.h>
 #include <algorithm>
+#include <charconv>
 #include <cstdio>
 #include <filesystem>
 #include <fstream>
@@ -13,6 +14,16 @@
 #include <gtest/gtest.h>
 
 namespace stipple::test {
+
+/// A number written with a decimal point, read whatever the locale (the suite runs under a
+/// decimal-comma one, which std::stod would follow).
+inline double number_of(const std::string& text) {
+  double value = 0.0;
+  const char* begin = text.data();
+  while (begin != text.data() + text.size() && (*begin == ' ' || *begin == '+')) ++begin;
+  std::from_chars(begin, text.data() + text.size(), value);
+  return value;
+}
 
 /// A fresh folder under the system temp dir, removed at the end of the test.
 class TempDir {

@@ -188,7 +188,7 @@ CLI::Validator non_negative_number() {
       "number >= 0");
 }
 
-CLI::Validator number_between(double low, double high, std::string hint) {
+CLI::Validator number_between(double low, double high, const std::string& hint) {
   const std::string range = format_general(low) + " and " + format_general(high);
   return CLI::Validator(
       [low, high, range, hint](std::string& text) -> std::string {

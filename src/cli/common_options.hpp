@@ -48,7 +48,7 @@ struct CommonOptions {
 /// A finite number >= 0 (a standard error).
 [[nodiscard]] CLI::Validator non_negative_number();
 /// A finite number strictly between `low` and `high`; `hint` is added to the refusal.
-[[nodiscard]] CLI::Validator number_between(double low, double high, std::string hint = {});
+[[nodiscard]] CLI::Validator number_between(double low, double high, const std::string& hint = {});
 
 /// Adds SIGHTINGS, the shared input, window, CRS and output options to a subcommand.
 void add_common_options(CLI::App& command, CommonOptions& options);

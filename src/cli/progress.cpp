@@ -1,5 +1,6 @@
 #include "progress.hpp"
 
+#include <cmath>
 #include <cstdlib>
 #include <iostream>
 #include <sstream>
@@ -9,7 +10,7 @@
 namespace stipple::cli {
 
 std::string clock_text(double seconds) {
-  const auto s = static_cast<long>(seconds + 0.5);
+  const long s = std::lround(seconds);
   std::ostringstream out;
   out << s / 60 << ":" << (s % 60 < 10 ? "0" : "") << s % 60;
   return out.str();

@@ -117,6 +117,7 @@ void PlotCounts::append(const PlotCounts& other, const std::string& prefix) {
                  std::back_inserter(merged));
   const auto index_in = [&](const std::vector<std::string>& names) {
     std::vector<std::size_t> index;
+    index.reserve(names.size());
     for (const auto& name : names)
       index.push_back(static_cast<std::size_t>(std::lower_bound(merged.begin(), merged.end(), name) - merged.begin()));
     return index;

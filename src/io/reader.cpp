@@ -4,6 +4,7 @@
 #include <charconv>
 #include <cmath>
 #include <functional>
+#include <locale>
 #include <map>
 #include <set>
 #include <sstream>
@@ -22,7 +23,7 @@ using namespace io_detail;
 
 namespace {
 
-std::string trim(std::string s) {
+std::string trim(const std::string& s) {
   const auto first = s.find_first_not_of(" \t\r\n");
   if (first == std::string::npos) return {};
   const auto last = s.find_last_not_of(" \t\r\n");
@@ -35,6 +36,7 @@ std::string feature_label(const std::string& layer, GIntBig fid) {
 
 std::string id_list(const std::vector<std::int64_t>& ids) {
   std::ostringstream out;
+  out.imbue(std::locale::classic());  // numbers never follow a host's locale
   const std::size_t shown = std::min<std::size_t>(ids.size(), 20);
   for (std::size_t i = 0; i < shown; ++i) out << (i ? ", " : "") << ids[i];
   if (ids.size() > shown) out << ", ... (" << ids.size() - shown << " more)";
@@ -183,7 +185,7 @@ SightingLayer read_sightings(const SurveyReadOptions& options, LoadedSurvey& loa
     if (species_index >= 0 && feature.IsFieldSetAndNotNull(species_index)) {
       std::string written = decode(feature.GetFieldAsString(species_index));
       if (seen_forms.insert(written).second) species_forms[lower_ascii(trim(written))].insert(written);
-      row.species = trim(std::move(written));
+      row.species = trim(written);
     }
     if (row.species.empty())
       throw InputError(feature_label(out.label, fid) + ": species field '" + options.species_field + "' is empty");
@@ -292,6 +294,7 @@ std::vector<Plot> project_plots(const PlotLayer& layer, const OGRSpatialReferenc
     collect_polygons(*shape, shapes[raw.id]);
   }
   std::vector<Plot> plots;
+  plots.reserve(order.size());
   for (const auto& id : order)
     plots.push_back(Plot{id, Window::from_polygons(shapes[id], first_feature[id] + " (plot '" + id + "')")});
   return plots;
@@ -373,6 +376,7 @@ std::vector<Plot> hull_plots(const std::vector<Sighting>& sightings) {
     groups[key].push_back(s.location);
   }
   std::vector<Plot> plots;
+  plots.reserve(order.size());
   for (const auto& key : order) plots.push_back(Plot{key, ripley_rasson_hull(groups[key], "plot '" + key + "'")});
   return plots;
 }

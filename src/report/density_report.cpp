@@ -1,6 +1,7 @@
 #include "stipple/report/density_report.hpp"
 
 #include <cmath>
+#include <locale>
 #include <sstream>
 
 #include <nlohmann/json.hpp>
@@ -301,6 +302,7 @@ void write_notes_warnings_cautions(std::ostream& out, const InputFacts& input, c
 
 std::string density_table(const InputFacts& input, const Survey& plots, const DensityResult& result) {
   std::ostringstream out;
+  out.imbue(std::locale::classic());  // numbers never follow a host's locale
   const std::string unit(unit_name(result.unit));
   const std::string level = level_text(result.confidence);
   out << "stipple density\n";

@@ -1,5 +1,6 @@
 #include "stipple/report/inspect_report.hpp"
 
+#include <locale>
 #include <sstream>
 
 #include <nlohmann/json.hpp>
@@ -11,6 +12,7 @@ namespace stipple {
 
 std::string inspect_table(const SourceSummary& source) {
   std::ostringstream out;
+  out.imbue(std::locale::classic());  // numbers never follow a host's locale
   out << source.path << " (" << source.driver << "), " << source.layers.size() << " layer(s)\n";
   for (const auto& layer : source.layers) {
     out << "\nlayer '" << layer.name << "': " << layer.geometry_type << ", " << layer.feature_count

@@ -257,6 +257,7 @@ std::vector<std::string> table_notes(const InputFacts& input, const RandomnessRe
     }
   }
   std::vector<std::string> notes;
+  notes.reserve(shared.size() + 2 + input.notes.size());
   for (const auto& [note, groups] : shared)
     notes.push_back(groups.size() == 1 ? groups.front() + ": " + note
                                        : std::to_string(groups.size()) + " groups: " + note);
@@ -275,6 +276,7 @@ std::vector<std::string> table_notes(const InputFacts& input, const RandomnessRe
 
 std::string randomness_table(const InputFacts& input, const RandomnessResult& result) {
   std::ostringstream out;
+  out.imbue(std::locale::classic());  // numbers never follow a host's locale
   out << "stipple randomness\n";
   out << "  sightings: " << input.sightings_label << "\n";
   if (!input.plots_label.empty()) out << "  plots:     " << input.plots_label << "\n";

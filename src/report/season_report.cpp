@@ -1,6 +1,7 @@
 #include "stipple/report/season_report.hpp"
 
 #include <cmath>
+#include <locale>
 #include <regex>
 #include <set>
 #include <sstream>
@@ -130,6 +131,7 @@ const std::vector<Reference>& all_references() {
 
 class Page {
  public:
+  Page() { html.imbue(std::locale::classic()); }  // numbers never follow a host's locale
   std::ostringstream html;
   std::set<std::string> cited;
   std::set<std::string> ids;

@@ -107,6 +107,8 @@ Json transect_estimate_record(const TransectResult& result, const TransectEstima
 }  // namespace report_detail
 
 const std::vector<std::string>& transect_cautions() {
+  // Each caution is one sentence, its literal split over lines.
+  // NOLINTBEGIN(bugprone-suspicious-missing-comma)
   static const std::vector<std::string> cautions{
       "Distance sampling assumes certain detection on the line or point (g(0) = 1); animals "
       "missed there bias density low by the share missed.",
@@ -121,6 +123,7 @@ const std::vector<std::string>& transect_cautions() {
       "Estimates that feed management or harvest decisions need a survey design reviewed "
       "under the local agency's protocol and qualified review of the analysis.",
   };
+  // NOLINTEND(bugprone-suspicious-missing-comma)
   return cautions;
 }
 
@@ -160,6 +163,7 @@ std::string transect_json(const InputFacts& input, const TransectResult& result)
 
 std::string transect_table(const InputFacts& input, const TransectSurvey& survey, const TransectResult& result) {
   std::ostringstream out;
+  out.imbue(std::locale::classic());  // numbers never follow a host's locale
   const std::string unit(unit_name(result.unit));
   const bool lines = result.kind == TransectKind::line;
   out << "stipple transect (" << (lines ? "line" : "point") << " transects)\n";

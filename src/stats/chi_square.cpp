@@ -55,6 +55,7 @@ Compacted compact(const std::vector<std::vector<std::uint64_t>>& table) {
     if (col_sums[j] > 0) keep_cols.push_back(j);
   for (const auto i : keep_rows) {
     std::vector<std::uint64_t> row;
+    row.reserve(keep_cols.size());
     for (const auto j : keep_cols) row.push_back(table[i][j]);
     c.rows.push_back(std::accumulate(row.begin(), row.end(), std::uint64_t{0}));
     c.table.push_back(std::move(row));

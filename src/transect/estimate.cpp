@@ -247,11 +247,9 @@ TransectResult analyse_transects(const TransectSurvey& survey, const TransectOpt
   for (const auto& o : survey.observations) species_set.insert(o.species);
   for (const auto& t : survey.transects)
     if (t.stratum) strata_set.insert(*t.stratum);
-  std::vector<Key> species;  // named species first, then all together
-  for (const auto& s : species_set) species.push_back(s);
+  std::vector<Key> species(species_set.begin(), species_set.end());  // named species first, then all together
   species.push_back(std::nullopt);
-  std::vector<Key> strata;
-  for (const auto& s : strata_set) strata.push_back(s);
+  std::vector<Key> strata(strata_set.begin(), strata_set.end());
   strata.push_back(std::nullopt);
 
   // Detection functions: one for all species, and one per species unless pooled.

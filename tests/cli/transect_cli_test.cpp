@@ -4,6 +4,8 @@
 #include <fstream>
 #include <map>
 
+#include <charconv>
+
 #include <gtest/gtest.h>
 #include <nlohmann/json.hpp>
 
@@ -126,9 +128,14 @@ TEST(TransectCli, BinnedPooledBootstrapAndFigures) {
     else
       cells.back() += c;
   }
-  EXPECT_DOUBLE_EQ(std::stod(cells.at(column("bootstrap_ci_low"))), doc["results"][0]["bootstrap_ci"][0].get<double>());
-  EXPECT_DOUBLE_EQ(std::stod(cells.at(column("bootstrap_ci_high"))),
-                   doc["results"][0]["bootstrap_ci"][1].get<double>());
+  // std::stod follows the C locale (a decimal comma in this suite): read as C does.
+  const auto number = [](const std::string& text) {
+    double value = 0.0;
+    std::from_chars(text.data(), text.data() + text.size(), value);
+    return value;
+  };
+  EXPECT_DOUBLE_EQ(number(cells.at(column("bootstrap_ci_low"))), doc["results"][0]["bootstrap_ci"][0].get<double>());
+  EXPECT_DOUBLE_EQ(number(cells.at(column("bootstrap_ci_high"))), doc["results"][0]["bootstrap_ci"][1].get<double>());
   const auto table = run_cli(demo("--bootstrap 49"));
   ASSERT_EQ(table.exit_code, 0) << table.err;
   EXPECT_NE(table.out.find("95% bootstrap"), std::string::npos) << table.out;

@@ -3,6 +3,8 @@
 #include <cmath>
 #include <memory>
 
+#include <locale>
+
 #include <gtest/gtest.h>
 #include <ogr_geometry.h>
 #include <boost/geometry.hpp>
@@ -16,7 +18,11 @@ namespace bg = boost::geometry;
 
 BgMultiPolygon from_wkt(const std::string& wkt) {
   BgMultiPolygon shape;
+  // Boost.Geometry reads WKT numbers through the global locale (the suite runs under a
+  // decimal-comma one): read them in the classic locale.
+  const std::locale previous = std::locale::global(std::locale::classic());
   bg::read_wkt(wkt, shape);
+  std::locale::global(previous);
   return shape;
 }
 

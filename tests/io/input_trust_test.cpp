@@ -10,6 +10,8 @@
 #include <string>
 #include <vector>
 
+#include <locale>
+
 #include <gtest/gtest.h>
 #include <ogr_spatialref.h>
 #include <nlohmann/json.hpp>
@@ -42,6 +44,7 @@ double ellipsoid_cell_area(double lon1, double lat1, double lon2, double lat2) {
 
 std::string lonlat_cell(const std::string& id, double lon1, double lat1, double lon2, double lat2) {
   std::ostringstream ring;
+  ring.imbue(std::locale::classic());
   ring.precision(12);
   ring << "[[" << lon1 << "," << lat1 << "],[" << lon2 << "," << lat1 << "],[" << lon2 << "," << lat2 << "],[" << lon1
        << "," << lat2 << "],[" << lon1 << "," << lat1 << "]]";
@@ -64,6 +67,7 @@ Json density_json_of(const TempDir& dir, const std::vector<Cell>& cells) {
   for (const auto& c : cells) {
     features += (features.empty() ? "" : ",") + lonlat_cell(c.id, c.lon1, c.lat1, c.lon2, c.lat2);
     std::ostringstream row;
+    row.imbue(std::locale::classic());
     row.precision(12);
     const double lon = c.lon1 + 0.5 * (c.lon2 - c.lon1 + (c.lon2 < c.lon1 ? 360.0 : 0.0));
     row << (lon > 180.0 ? lon - 360.0 : lon) << "," << 0.5 * (c.lat1 + c.lat2) << ",heather\n";
@@ -126,6 +130,7 @@ TEST(GeodesicAreas, ProjectedInputThatMisstatesAreasIsReplaced) {
   double ys[5] = {60.0, 60.0, 60.01, 60.01, 60.0};
   ASSERT_TRUE(to_utm->Transform(5, xs, ys));
   std::ostringstream ring;
+  ring.imbue(std::locale::classic());
   ring.precision(12);
   ring << "[";
   for (int i = 0; i < 5; ++i) ring << (i ? "," : "") << "[" << xs[i] << "," << ys[i] << "]";
@@ -136,6 +141,7 @@ TEST(GeodesicAreas, ProjectedInputThatMisstatesAreasIsReplaced) {
                 "\"urn:ogc:def:crs:EPSG::32631\"}},\"features\":[" +
                     plot_feature("far", ring.str()) + "]}");
   std::ostringstream sighting;
+  sighting.imbue(std::locale::classic());
   sighting.precision(12);
   sighting << "x,y,species\n" << 0.5 * (xs[0] + xs[1]) << "," << 0.5 * (ys[0] + ys[2]) << ",heather\n";
   const std::string csv = dir.write("sightings.csv", sighting.str());

@@ -93,8 +93,8 @@ TEST(LoadSurvey, ReprojectionMatchesProjThroughGdal) {
   std::string line;
   std::getline(csv, line);  // header
   std::getline(csv, line);  // feature 1
-  double x = std::stod(line.substr(0, line.find(',')));
-  double y = std::stod(line.substr(line.find(',') + 1));
+  double x = test::number_of(line.substr(0, line.find(',')));
+  double y = test::number_of(line.substr(line.find(',') + 1));
   ASSERT_TRUE(ct->Transform(1, &x, &y));
   bool found = false;
   for (const auto& pattern : s.survey.patterns) {
