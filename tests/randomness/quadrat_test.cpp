@@ -75,7 +75,7 @@ TEST(QuadratTest, ClippedCellsExpectByArea) {
   QuadratOptions o;
   o.nx = 2;
   o.ny = 2;
-  o.simulations = 199;
+  o.simulations = 1999;
   const QuadratResult q = quadrat_test(points, w, o, engine);
   EXPECT_EQ(q.cells_used, 3u);
   const double area = 75.0 - 9.0;
@@ -83,11 +83,13 @@ TEST(QuadratTest, ClippedCellsExpectByArea) {
   EXPECT_NEAR(q.expected[1], 6.0 * 25.0 / area, 1e-9);
   EXPECT_FALSE(q.dispersion_index);  // unequal cells
   ASSERT_TRUE(q.monte_carlo_p_value);
-  // Counts 1, 3, 2 against 6 x (16, 25, 25)/66: X2 = 0.4075 and the exact conditional
-  // p-value, P(X2 >= 0.4075) under the multinomial, is 0.89111 (enumerated in an
-  // independent Python script). 199 draws: within 4 binomial standard errors (0.088).
+  // Counts 1, 3, 2 against 6 x (16, 25, 25)/66: X2 = 0.4075. The quadrat p-value is
+  // two-sided, 2 min(P(X2 >= x), P(X2 <= x)); exactly, under the multinomial, P(X2 >= x) =
+  // 0.89111 and P(X2 <= x) = 0.33574, so p = 0.67147 (all outcomes enumerated in an
+  // independent Python script). 1999 draws: within 4 standard errors (0.084), which
+  // excludes the one-sided 0.891.
   EXPECT_NEAR(q.chi_square.statistic, 0.4075, 1e-9);
-  EXPECT_NEAR(*q.monte_carlo_p_value, 0.89111, 4.0 * std::sqrt(0.89111 * (1 - 0.89111) / 200.0));
+  EXPECT_NEAR(*q.monte_carlo_p_value, 0.67147, 4.0 * 2.0 * std::sqrt(0.33574 * (1 - 0.33574) / 2000.0));
 }
 
 TEST(QuadratTest, RefusesDegenerateGrid) {
