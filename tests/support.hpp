@@ -15,6 +15,14 @@
 
 namespace stipple::test {
 
+/// The bytes of a file ("" when it cannot be read).
+inline std::string read_file(const std::string& path) {
+  std::ifstream in(path, std::ios::binary);
+  std::stringstream text;
+  text << in.rdbuf();
+  return text.str();
+}
+
 /// A number written with a decimal point, read whatever the locale (the suite runs under a
 /// decimal-comma one, which std::stod would follow).
 inline double number_of(const std::string& text) {
