@@ -25,9 +25,16 @@ TEST(GdalScope, AHostHandlerSeesNoneOfStipplesMessagesAndStaysInPlace) {
   register_gdal_drivers();
   const CPLErrorHandler previous = CPLSetErrorHandler(host_handler);
   host_messages = 0;
-  // A file GDAL complains about while stipple opens it (tests/data/bad/junk.gpkg).
-  const std::string junk = std::string(STIPPLE_TEST_DATA_DIR) + "/bad/junk.gpkg";
-  EXPECT_THROW(static_cast<void>(inspect_source(junk, InspectOptions{})), InputError);
+  // Files GDAL complains about while stipple reads them ("ERROR 1: ... Unterminated
+  // string", "fread failed on DBF file" when ogrinfo reads them).
+  for (const char* name : {"truncated.geojson", "truncated-dbf.shp"}) {
+    const std::string path = std::string(STIPPLE_TEST_DATA_DIR) + "/bad/" + name;
+    try {
+      static_cast<void>(inspect_source(path, InspectOptions{}));
+    } catch (const InputError&) {
+      // refused or read with a warning: either way GDAL spoke
+    }
+  }
   EXPECT_EQ(host_messages.load(), 0);
   // Afterwards GDAL's messages reach the host's handler again.
   CPLError(CE_Warning, CPLE_AppDefined, "a message of the host program");
