@@ -500,7 +500,7 @@ class SeasonWriter {
   }
 
   fs::path dir_;
-  const BatchOptions& options_;
+  const BatchOptions options_;  // a copy: the writer never refers to the caller's value
   std::vector<std::string> protect_;
   std::unique_ptr<TableFiles> density_, randomness_, interactions_, transect_;
   std::unique_ptr<StreamedFile> failures_, figures_;

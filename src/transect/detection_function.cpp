@@ -214,6 +214,18 @@ std::vector<std::string> parameter_names(const DetectionModel& model) {
 
 DetectionFunction::DetectionFunction(DetectionModel model, std::vector<double> parameters, double truncation_m)
     : model_(model), parameters_(std::move(parameters)), truncation_m_(truncation_m) {
+  // The invariants every evaluation relies on: one value per named parameter, and a
+  // truncation distance that is positive (infinite for an untruncated key-only model).
+  const std::size_t expected = parameter_names(model_).size();
+  if (parameters_.size() != expected)
+    throw InputError("a " + std::string(key_function_name(model_.key)) + " detection function with " +
+                         std::to_string(model_.terms) + " adjustment term(s) takes " + std::to_string(expected) +
+                         " parameters (got " + std::to_string(parameters_.size()) + ")",
+                     {"parameters"});
+  if (!(truncation_m_ > 0.0))
+    throw InputError("truncation_m must be positive (got " + std::to_string(truncation_m_) + ")", {"truncation_m"});
+  if (!std::isfinite(truncation_m_) && (model_.key == KeyFunction::uniform || model_.terms > 0))
+    throw InputError("a uniform key or adjustment terms need a finite truncation_m", {"truncation_m"});
   normaliser_ = key(0.0) * series(0.0);
 }
 

@@ -229,6 +229,17 @@ TransectResult analyse_transects(const TransectSurvey& survey, const TransectOpt
   if (survey.transects.empty()) throw AnalysisError("no transects");
   for (const auto& t : survey.transects)
     if (!(t.effort > 0.0)) throw InputError("transect '" + t.id + "' has no effort (zero length or no visits)");
+  // A survey built in code (not by the reader) keeps the reader's invariants too.
+  for (std::size_t i = 0; i < survey.observations.size(); ++i) {
+    const TransectObservation& o = survey.observations[i];
+    const std::string which = "observation " + std::to_string(i);
+    if (o.transect >= survey.transects.size())
+      throw InputError(which + ": transect index " + std::to_string(o.transect) + " but the survey has " +
+                       std::to_string(survey.transects.size()) + " transects");
+    if (!(o.distance_m >= 0.0) || !std::isfinite(o.distance_m))
+      throw InputError(which + ": distance must be a finite number of metres >= 0");
+    if (!(o.size > 0.0) || !std::isfinite(o.size)) throw InputError(which + ": cluster size must be positive");
+  }
   if (!options.bin_edges.empty()) {
     for (std::size_t k = 1; k < options.bin_edges.size(); ++k)
       if (!(options.bin_edges[k] > options.bin_edges[k - 1]))

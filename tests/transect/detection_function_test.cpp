@@ -1,6 +1,7 @@
 #include "stipple/transect/detection_function.hpp"
 
 #include <cmath>
+#include <limits>
 
 #include <gtest/gtest.h>
 #include <boost/math/quadrature/gauss_kronrod.hpp>
@@ -158,6 +159,18 @@ TEST(GoodnessOfFit, PerfectUniformFitIsNotRejected) {
   EXPECT_NEAR(*gof.cvm_statistic, 1.0 / 1200.0, 1e-9);
   EXPECT_NEAR(*gof.cvm_p, 1.0, 1e-6);
   EXPECT_NEAR(*gof.ks_p, 1.0, 1e-6);
+}
+
+TEST(DetectionFunction, RefusesParametersThatDoNotFitItsModel) {
+  // A half-normal with one cosine term has sigma and a1: two parameters.
+  EXPECT_THROW(DetectionFunction({KeyFunction::half_normal, Adjustment::cosine, 1}, {15.0}, 50.0), InputError);
+  EXPECT_THROW(DetectionFunction({KeyFunction::hazard_rate, Adjustment::none, 0}, {15.0}, 50.0), InputError);
+  EXPECT_THROW(DetectionFunction({KeyFunction::half_normal, Adjustment::none, 0}, {15.0}, 0.0), InputError);
+  EXPECT_THROW(
+      DetectionFunction({KeyFunction::uniform, Adjustment::none, 0}, {}, std::numeric_limits<double>::infinity()),
+      InputError);
+  EXPECT_NO_THROW(DetectionFunction({KeyFunction::half_normal, Adjustment::none, 0}, {15.0},
+                                    std::numeric_limits<double>::infinity()));
 }
 
 }  // namespace

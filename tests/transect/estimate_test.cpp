@@ -115,5 +115,16 @@ TEST(AnalyseTransects, RefusesZeroEffort) {
   EXPECT_THROW((void)analyse_transects(s, TransectOptions{}), InputError);
 }
 
+TEST(AnalyseTransects, RefusesASurveyBuiltInCodeThatBreaksTheReadersInvariants) {
+  TransectSurvey s;
+  s.transects = {{"T1", std::nullopt, 1.0}};
+  s.observations = {{0, 5.0, 1.0, "hare"}, {3, 5.0, 1.0, "hare"}};  // no transect 3
+  EXPECT_THROW(static_cast<void>(analyse_transects(s, TransectOptions{})), InputError);
+  s.observations = {{0, -1.0, 1.0, "hare"}};
+  EXPECT_THROW(static_cast<void>(analyse_transects(s, TransectOptions{})), InputError);
+  s.observations = {{0, 1.0, 0.0, "hare"}};
+  EXPECT_THROW(static_cast<void>(analyse_transects(s, TransectOptions{})), InputError);
+}
+
 }  // namespace
 }  // namespace stipple
