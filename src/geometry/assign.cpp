@@ -49,6 +49,25 @@ std::size_t Survey::sighting_count() const {
   return n;
 }
 
+void Survey::check() const {
+  if (patterns.size() != plots.size())
+    throw AnalysisError("a survey needs one pattern per plot (" + std::to_string(plots.size()) + " plots, " +
+                        std::to_string(patterns.size()) + " patterns)");
+  for (std::size_t s = 1; s < species.size(); ++s)
+    if (!(species[s - 1] < species[s])) throw AnalysisError("a survey's species must be sorted and distinct");
+  std::set<std::string> ids;
+  for (std::size_t p = 0; p < plots.size(); ++p) {
+    if (!ids.insert(plots[p].id).second) throw AnalysisError("plot id '" + plots[p].id + "' appears twice");
+    const MarkedPattern& pattern = patterns[p];
+    if (pattern.marks.size() != pattern.points.size() || pattern.feature_ids.size() != pattern.points.size())
+      throw AnalysisError("plot '" + plots[p].id + "': a mark and a feature id are needed for every point");
+    for (const auto m : pattern.marks)
+      if (m >= species.size())
+        throw AnalysisError("plot '" + plots[p].id + "': mark " + std::to_string(m) + " names no species (" +
+                            std::to_string(species.size()) + " species)");
+  }
+}
+
 Survey assign_to_plots(const std::vector<Sighting>& sightings, std::vector<Plot> plots) {
   check_plots(plots);
   Survey survey;

@@ -98,6 +98,7 @@ void correct_between_plot(HomogeneityTest& test, const std::vector<std::vector<s
 }  // namespace
 
 PlotCounts PlotCounts::of(const Survey& survey) {
+  survey.check();
   PlotCounts out;
   out.species = survey.species;
   out.plots.reserve(survey.plots.size());
@@ -145,6 +146,7 @@ void PlotCounts::append(const PlotCounts& other, const std::string& prefix) {
 }
 
 DensityResult estimate_density(const Survey& survey, const DensityOptions& options) {
+  survey.check();
   return estimate_density(PlotCounts::of(survey), options);
 }
 

@@ -150,6 +150,7 @@ double add_kernel_intensity(IntensityRaster& raster, const std::vector<Point>& p
 IntensityRaster intensity_surface(const Survey& survey, std::optional<std::size_t> species, double per_unit,
                                   std::optional<double> pixel_m, std::optional<double> bandwidth_m,
                                   const std::function<void(std::size_t, std::size_t)>& progress) {
+  survey.check();
   if (survey.plots.empty()) throw AnalysisError("an intensity surface needs at least one plot");
   Bounds all = survey.plots.front().window.bounds();
   for (const auto& plot : survey.plots) {

@@ -271,6 +271,7 @@ std::size_t minimum_simulations(double alpha, bool two_sided) {
 }
 
 RandomnessResult analyse_randomness(const Survey& survey, const RandomnessOptions& options) {
+  survey.check();
   RandomnessResult result;
   result.simulations = options.simulations;
   result.seed = options.seed;

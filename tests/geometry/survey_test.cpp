@@ -3,6 +3,7 @@
 #include <gtest/gtest.h>
 
 #include "stipple/error.hpp"
+#include "stipple/intensity/density.hpp"
 
 namespace stipple {
 namespace {
@@ -52,6 +53,25 @@ TEST(AssignToPlots, RefusesOverlappingPlots) {
   // Shared edges are fine.
   EXPECT_NO_THROW((void)assign_to_plots(
       {}, {Plot{"A", Window::rectangle(0, 0, 10, 10)}, Plot{"B", Window::rectangle(10, 0, 20, 10)}}));
+}
+
+TEST(Survey, AnalysesRefuseASurveyPutTogetherHalfFormed) {
+  std::vector<Sighting> sightings{{{1, 1}, 1, "oak", std::nullopt}, {{25, 5}, 2, "ash", std::nullopt}};
+  const Survey whole = assign_to_plots(sightings, two_plots());
+  EXPECT_NO_THROW(whole.check());
+  Survey missing_pattern = whole;
+  missing_pattern.patterns.pop_back();
+  EXPECT_THROW(missing_pattern.check(), AnalysisError);
+  Survey bad_mark = whole;
+  bad_mark.patterns[0].marks[0] = 7;  // only two species
+  EXPECT_THROW(bad_mark.check(), AnalysisError);
+  EXPECT_THROW(static_cast<void>(estimate_density(bad_mark, DensityOptions{})), AnalysisError);
+  Survey unsorted = whole;
+  std::swap(unsorted.species[0], unsorted.species[1]);
+  EXPECT_THROW(unsorted.check(), AnalysisError);
+  Survey twice = whole;
+  twice.plots[1].id = twice.plots[0].id;
+  EXPECT_THROW(twice.check(), AnalysisError);
 }
 
 }  // namespace

@@ -36,6 +36,12 @@ struct Survey {
   bool assigned_by_attribute = false;                  ///< true when the plot attribute decided
 
   [[nodiscard]] std::size_t sighting_count() const;
+
+  /// Throws AnalysisError unless the survey is whole: one pattern per plot, one mark and one
+  /// feature id per point, every mark naming a species, species sorted and distinct, plot
+  /// ids distinct. assign_to_plots always builds such a survey; every analysis checks it,
+  /// so a survey put together in code cannot be analysed half-formed.
+  void check() const;
 };
 
 /// Assigns each sighting to a plot: by its plot attribute when it carries one (then a
