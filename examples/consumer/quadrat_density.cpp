@@ -22,6 +22,6 @@ int main() {
   std::printf("stipple %s\n", std::string(version()).c_str());
   for (const auto& p : result.pooled)
     std::printf("%s: %llu in %.4f ha, %.3f per ha [%.3f, %.3f]\n", p.species ? p.species->c_str() : "all",
-                static_cast<unsigned long long>(p.count), p.area, p.intensity, p.ci.lower, p.ci.upper);
+                static_cast<unsigned long long>(p.count), p.area_in_unit, p.intensity, p.ci.lower, p.ci.upper);
   return result.pooled.empty() ? 1 : 0;
 }

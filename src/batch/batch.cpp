@@ -271,7 +271,7 @@ std::vector<PlotResultFeature> gis_features(const FileResults& r, const std::str
     f.file = r.source.name;
     f.species = e.species;
     f.count = static_cast<long long>(e.count);
-    f.area = e.area;
+    f.area_in_unit = e.area_in_unit;
     f.unit = unit;
     f.intensity = e.intensity;
     f.ci_low = e.ci.lower;

@@ -123,7 +123,7 @@ DensityEstimate density_estimate_of(const Json& e) {
   d.plot = e.value("plot", "");
   d.species = opt_text(e["species"]);
   d.count = e.value("count", std::uint64_t{0});
-  d.area = e.value("area", 0.0);
+  d.area_in_unit = e.value("area", 0.0);
   d.area_m2 = e.value("area_m2", 0.0);
   d.intensity = e.value("intensity", 0.0);
   d.ci = interval_of(e["ci"]);
@@ -139,7 +139,7 @@ PooledEstimate pooled_of(const Json& p) {
   out.species = opt_text(p["species"]);
   out.plots = p.value("plots", std::size_t{0});
   out.count = p.value("count", std::uint64_t{0});
-  out.area = p.value("area", 0.0);
+  out.area_in_unit = p.value("area", 0.0);
   out.intensity = p.value("intensity", 0.0);
   out.ci = interval_of(p["ci"]);
   out.corrected.detection_probability = p.value("detection_probability", 1.0);

@@ -175,7 +175,7 @@ DensityResult estimate_density(const PlotCounts& table, const DensityOptions& op
                                  double area) {
     DensityEstimate e;
     e.count = std::accumulate(by_species.begin(), by_species.end(), std::uint64_t{0});
-    e.area = area;
+    e.area_in_unit = area;
     e.intensity = static_cast<double>(e.count) / area;
     const Interval exact = garwood_interval(e.count, options.confidence);
     e.ci = {exact.lower / area, exact.upper / area};
@@ -227,7 +227,7 @@ DensityResult estimate_density(const PlotCounts& table, const DensityOptions& op
     if (species) pooled.species = table.species[*species];
     pooled.plots = n_plots;
     pooled.count = e.count;
-    pooled.area = e.area;
+    pooled.area_in_unit = e.area_in_unit;
     pooled.intensity = e.intensity;
     pooled.ci = e.ci;
     pooled.corrected = e.corrected;

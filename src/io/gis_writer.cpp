@@ -163,7 +163,7 @@ void PlotResultsWriter::add(const std::vector<PlotResultFeature>& features, cons
     out.SetField("plot", f.plot.c_str());
     if (f.species) out.SetField("species", f.species->c_str());
     out.SetField("count", static_cast<GIntBig>(f.count));
-    out.SetField("area", f.area);
+    out.SetField("area", f.area_in_unit);
     out.SetField("unit", f.unit.c_str());
     out.SetField("intensity", f.intensity);
     out.SetField("ci_low", f.ci_low);
@@ -189,7 +189,7 @@ void PlotResultsWriter::add(const std::vector<PlotResultFeature>& features, cons
       w = std::make_unique<OGRFeature>(st.wide_layer->GetLayerDefn());
       w->SetField("file", f.file.c_str());
       w->SetField("plot", f.plot.c_str());
-      w->SetField("area", f.area);
+      w->SetField("area", f.area_in_unit);
       w->SetField("unit", f.unit.c_str());
       w->SetGeometry(&geometry);
     }
@@ -246,7 +246,7 @@ void merge_plot_results(const std::vector<std::string>& inputs, const std::strin
       r.plot = text(f, "plot").value_or("");
       r.species = text(f, "species");
       r.count = f.GetFieldAsInteger64("count");
-      r.area = f.GetFieldAsDouble("area");
+      r.area_in_unit = f.GetFieldAsDouble("area");
       r.unit = text(f, "unit").value_or("");
       r.intensity = f.GetFieldAsDouble("intensity");
       r.ci_low = f.GetFieldAsDouble("ci_low");

@@ -82,7 +82,7 @@ Json density_estimate_record(const DensityEstimate& e) {
   j["plot"] = e.plot;
   j["species"] = species_json(e.species);
   j["count"] = e.count;
-  j["area"] = e.area;
+  j["area"] = e.area_in_unit;
   j["area_m2"] = e.area_m2;
   j["intensity"] = e.intensity;
   j["ci"] = interval_json(e.ci);
@@ -98,7 +98,7 @@ Json pooled_record(const PooledEstimate& p) {
   j["species"] = species_json(p.species);
   j["plots"] = p.plots;
   j["count"] = p.count;
-  j["area"] = p.area;
+  j["area"] = p.area_in_unit;
   j["intensity"] = p.intensity;
   j["ci"] = interval_json(p.ci);
   j["detection_probability"] = p.corrected.detection_probability;
@@ -239,8 +239,8 @@ void write_plot_section(std::ostream& out, const DensityResult& result, const st
                    "corrected " + level + " CI"},
                   2);
   for (const auto& e : result.estimates) {
-    plots.add_row({e.plot, species_text(e.species), std::to_string(e.count), number(e.area), number(e.intensity),
-                   interval_text(e.ci), format_significant(e.corrected.detection_probability, 3),
+    plots.add_row({e.plot, species_text(e.species), std::to_string(e.count), number(e.area_in_unit),
+                   number(e.intensity), interval_text(e.ci), format_significant(e.corrected.detection_probability, 3),
                    number(e.corrected.intensity), interval_text(e.corrected.ci)});
   }
   out << plots.render();
@@ -256,9 +256,9 @@ void write_pooled_section(std::ostream& out, const DensityResult& result, const 
                     "corrected " + level + " CI", "homogeneity X2", "df", "homogeneity p", "dispersion"},
                    1);
   for (const auto& p : result.pooled) {
-    std::vector<std::string> row{
-        species_text(p.species), std::to_string(p.plots), std::to_string(p.count),       number(p.area),
-        number(p.intensity),     interval_text(p.ci),     number(p.corrected.intensity), interval_text(p.corrected.ci)};
+    std::vector<std::string> row{species_text(p.species),       std::to_string(p.plots),      std::to_string(p.count),
+                                 number(p.area_in_unit),        number(p.intensity),          interval_text(p.ci),
+                                 number(p.corrected.intensity), interval_text(p.corrected.ci)};
     if (p.homogeneity) {
       const auto& h = *p.homogeneity;
       row.push_back(format_fixed(h.chi_square.statistic, 2));

@@ -251,7 +251,7 @@ void write_pooled(Page& page, const SeasonReport& r) {
                            "between-plot " + level + " interval, corrected (per " + unit + ")"});
   for (const auto& p : d.pooled) {
     page.html << "<tr>" << tdt(species_cell(p.species)) << td(std::to_string(p.plots)) << td(std::to_string(p.count))
-              << td(num(p.area)) << td(num(p.intensity)) << td(interval(p.ci)) << td(num(p.corrected.intensity))
+              << td(num(p.area_in_unit)) << td(num(p.intensity)) << td(interval(p.ci)) << td(num(p.corrected.intensity))
               << td(interval(p.corrected.ci));
     if (p.homogeneity) {
       const HomogeneityTest& t = *p.homogeneity;
@@ -290,7 +290,7 @@ void write_densities(Page& page, const SeasonReport& r) {
   for (const auto& row : r.densities) {
     const DensityEstimate& e = row.estimate;
     page.html << "<tr>" << tdt(escape(row.file)) << tdt(escape(e.plot)) << tdt(species_cell(e.species))
-              << td(std::to_string(e.count)) << td(num(e.area)) << td(num(e.intensity)) << td(interval(e.ci))
+              << td(std::to_string(e.count)) << td(num(e.area_in_unit)) << td(num(e.intensity)) << td(interval(e.ci))
               << td(num(e.corrected.detection_probability, 3)) << td(num(e.corrected.intensity))
               << td(interval(e.corrected.ci)) << "</tr>\n";
   }

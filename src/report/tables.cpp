@@ -82,9 +82,9 @@ Table density_rows(const DensityResult& result) {
                "homogeneity_p_value"};
   const std::string unit(unit_name(result.unit));
   for (const auto& e : result.estimates) {
-    t.rows.push_back({"plot", e.plot, e.species.value_or(""), std::to_string(e.count), v(e.area), unit, v(e.intensity),
-                      v(e.ci.lower), v(e.ci.upper), v(e.corrected.detection_probability), v(e.corrected.intensity),
-                      v(e.corrected.ci.lower), v(e.corrected.ci.upper),
+    t.rows.push_back({"plot", e.plot, e.species.value_or(""), std::to_string(e.count), v(e.area_in_unit), unit,
+                      v(e.intensity), v(e.ci.lower), v(e.ci.upper), v(e.corrected.detection_probability),
+                      v(e.corrected.intensity), v(e.corrected.ci.lower), v(e.corrected.ci.upper),
                       std::string(correction_method_name(e.corrected.method)), "", "", ""});
   }
   for (const auto& p : result.pooled) {
@@ -92,7 +92,7 @@ Table density_rows(const DensityResult& result) {
                                  "",
                                  p.species.value_or(""),
                                  std::to_string(p.count),
-                                 v(p.area),
+                                 v(p.area_in_unit),
                                  unit,
                                  v(p.intensity),
                                  v(p.ci.lower),
@@ -142,7 +142,7 @@ Table pooled_rows(const DensityResult& result) {
     std::vector<std::string> row{p.species.value_or(""),
                                  std::to_string(p.plots),
                                  std::to_string(p.count),
-                                 v(p.area),
+                                 v(p.area_in_unit),
                                  unit,
                                  v(p.intensity),
                                  v(p.ci.lower),

@@ -54,7 +54,7 @@ TEST(EstimateDensity, CountsAloneAndAppendedSurveysGiveTheSameResult) {
       EXPECT_EQ(r->pooled[i].count, direct.pooled[i].count);
       // Relative 1e-12: a plot drawn at another x offset has its area rounded differently.
       const auto near = [](double a, double b) { return std::abs(a - b) <= 1e-12 * std::abs(b); };
-      EXPECT_TRUE(near(r->pooled[i].area, direct.pooled[i].area));
+      EXPECT_TRUE(near(r->pooled[i].area_in_unit, direct.pooled[i].area_in_unit));
       EXPECT_TRUE(near(r->pooled[i].ci.upper, direct.pooled[i].ci.upper));
       EXPECT_TRUE(
           near(r->pooled[i].homogeneity->chi_square.statistic, direct.pooled[i].homogeneity->chi_square.statistic));
@@ -89,7 +89,7 @@ TEST(EstimateDensity, PooledIntervalIsExactOnSummedCounts) {
   const DensityResult r = estimate_density(survey, DensityOptions{});
   const auto& pooled = r.pooled.front();
   EXPECT_EQ(pooled.count, 80u);
-  EXPECT_NEAR(pooled.area, 3.0, 1e-9);
+  EXPECT_NEAR(pooled.area_in_unit, 3.0, 1e-9);
   EXPECT_NEAR(pooled.intensity, 80.0 / 3.0, 1e-9);
   EXPECT_NEAR(pooled.ci.lower, 21.145008, 1e-6);
   EXPECT_NEAR(pooled.ci.upper, 33.188975, 1e-6);
@@ -194,7 +194,7 @@ TEST(EstimateDensity, UnitsScaleIntensities) {
   DensityOptions options;
   options.unit = AreaUnit::square_kilometre;
   const DensityResult r = estimate_density(survey, options);
-  EXPECT_NEAR(r.estimates.front().area, 0.01, 1e-12);
+  EXPECT_NEAR(r.estimates.front().area_in_unit, 0.01, 1e-12);
   EXPECT_NEAR(r.estimates.front().intensity, 3100.0, 1e-9);
 }
 

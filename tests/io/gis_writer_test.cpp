@@ -46,7 +46,7 @@ PlotResultFeature feature(const std::string& plot, std::optional<std::string> sp
   f.plot = plot;
   f.species = std::move(species);
   f.count = count;
-  f.area = 1.0;
+  f.area_in_unit = 1.0;
   f.unit = "ha";
   f.intensity = static_cast<double>(count);
   f.ci_low = 0.5 * static_cast<double>(count);

@@ -25,7 +25,7 @@ SeasonReport density_only() {
   e.plot = "north";
   e.species = "birch";
   e.count = 81;
-  e.area = 1.0;
+  e.area_in_unit = 1.0;
   e.intensity = 81.0;
   e.ci = {66.3, 97.6};
   r.densities.push_back({"north.gpkg", e});

@@ -33,7 +33,7 @@ TEST(Tables, DensityRowsHaveOneRowPerEstimateAndPooledSpecies) {
   e.plot = "north";
   e.species = "birch";
   e.count = 10;
-  e.area = 1.0;
+  e.area_in_unit = 1.0;
   e.intensity = 10.0;
   r.estimates = {e};
   PooledEstimate p;

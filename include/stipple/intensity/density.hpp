@@ -29,10 +29,10 @@ struct DensityEstimate {
   std::string plot;
   std::optional<std::string> species;
   std::uint64_t count = 0;
-  double area = 0.0;       ///< in the reporting unit
-  double area_m2 = 0.0;    ///< the same in square metres, as measured
-  double intensity = 0.0;  ///< count / area, per unit
-  Interval ci;             ///< exact Garwood interval, per unit
+  double area_in_unit = 0.0;  ///< in the reporting unit (DensityResult::unit)
+  double area_m2 = 0.0;       ///< the same in square metres, as measured
+  double intensity = 0.0;     ///< count / area, per unit
+  Interval ci;                ///< exact Garwood interval, per unit
   CorrectedIntensity corrected;
 };
 
@@ -66,7 +66,7 @@ struct PooledEstimate {
   std::optional<std::string> species;
   std::size_t plots = 0;
   std::uint64_t count = 0;
-  double area = 0.0;
+  double area_in_unit = 0.0;  ///< summed over the plots, in the reporting unit
   double intensity = 0.0;
   Interval ci;
   CorrectedIntensity corrected;

@@ -19,8 +19,8 @@ struct PlotResultFeature {
   std::string plot;
   std::optional<std::string> species;
   long long count = 0;
-  double area = 0.0;  ///< in `unit`
-  std::string unit;   ///< m2, ha or km2: area and intensities (per unit)
+  double area_in_unit = 0.0;  ///< in `unit`
+  std::string unit;           ///< m2, ha or km2: area and intensities (per unit)
   double intensity = 0.0;
   double ci_low = 0.0;
   double ci_high = 0.0;
