@@ -72,22 +72,34 @@ TEST(PearsonContingency, DropsEmptyRowsAndColumns) {
   EXPECT_EQ(t.df, 2.0);
 }
 
-TEST(MonteCarloPValue, AgreesWithChiSquareForLargeCounts) {
-  // Common practice: with large expected counts the Monte Carlo p approaches the
-  // chi-square p. 4999 draws: Monte Carlo SE about 0.007 at p = 0.32.
+TEST(MonteCarloPValue, EstimatesTheExactMultinomialPValue) {
+  // Counts 108, 55, 137 against 100, 50, 150: X2 = 0.64 + 0.5 + 1.1267 = 2.2667, df 2,
+  // chi-square p = exp(-X2 / 2) = 0.3220 (closed form for df 2). The Monte Carlo p estimates
+  // the exact multinomial P(X2 >= 2.2667) = 0.32735 (every outcome of n = 300 enumerated in
+  // an independent Python script); 4999 draws: within 4 standard errors (0.027).
   Engine engine(1);
-  const std::vector<std::uint64_t> counts{120, 70, 110};
+  const std::vector<std::uint64_t> counts{108, 55, 137};
   const std::vector<double> expected{100.0, 50.0, 150.0};
   const ChiSquareTest t = pearson_goodness_of_fit(counts, expected);
+  EXPECT_NEAR(t.p_upper, std::exp(-2.266667 / 2.0), 1e-6);
   const double mc = multinomial_monte_carlo(counts, expected, 4999, engine).upper;
-  EXPECT_NEAR(mc, t.p_upper, 0.03);
+  EXPECT_NEAR(mc, 0.32735, 4.0 * std::sqrt(0.32735 * (1 - 0.32735) / 5000.0));
 }
 
-TEST(MonteCarloPValue, ContingencyAgreesWithChiSquare) {
+TEST(MonteCarloPValue, ContingencyEstimatesTheExactConditionalPValue) {
+  // Rows of 150 over columns of 100: every expected count is 50; deviations 2, -5, 3 give
+  // X2 = 2 (4 + 25 + 9) / 50 = 1.52, df 2, chi-square p = exp(-0.76) = 0.4677 (closed form).
+  // The permutation p estimates the exact conditional P(X2 >= 1.52) given both margins,
+  // 0.51161 (every table with these margins enumerated with hypergeometric weights in an
+  // independent Python script; the lattice of X2 values puts much mass on ties); 4999
+  // permutations: within 4 standard errors (0.028).
   Engine engine(2);
-  const std::vector<std::vector<std::uint64_t>> table{{60, 35, 55}, {40, 65, 45}};
+  const std::vector<std::vector<std::uint64_t>> table{{52, 45, 53}, {48, 55, 47}};
   const ChiSquareTest t = pearson_contingency(table);
-  EXPECT_NEAR(contingency_monte_carlo_p(table, 4999, engine), t.p_upper, 0.02);
+  EXPECT_NEAR(t.statistic, 1.52, 1e-12);
+  EXPECT_NEAR(t.p_upper, std::exp(-0.76), 1e-12);
+  EXPECT_NEAR(contingency_monte_carlo_p(table, 4999, engine), 0.51161,
+              4.0 * std::sqrt(0.51161 * (1 - 0.51161) / 5000.0));
 }
 
 TEST(MonteCarloPValue, NeverZero) {
