@@ -410,14 +410,18 @@ std::string chart_png(const Chart& chart) {
 }
 
 std::string plot_map_svg(const Plot& plot, const MarkedPattern& pattern, const std::vector<std::string>& species) {
-  std::string out;
-  cairo_surface_t* surface = cairo_svg_surface_create_for_stream(append_to_string, &out, 760.0, 620.0);
-  cairo_t* cr = cairo_create(surface);
-  cairo_set_source_rgb(cr, 1, 1, 1);
-  cairo_paint(cr);
+  // The plot fills a 520 px square at most; the canvas ends below its scale bar (or its
+  // legend), so a wide plot leaves no empty band above or below it.
   MapFrame m;
   m.bounds = plot.window.bounds();
   m.scale = std::min(m.map_w / m.bounds.width(), m.map_h / m.bounds.height());
+  m.map_h = m.bounds.height() * m.scale;
+  const double height = std::max(m.top + m.map_h + 60.0, m.top + 40.0 + 24.0 * static_cast<double>(species.size()));
+  std::string out;
+  cairo_surface_t* surface = cairo_svg_surface_create_for_stream(append_to_string, &out, 760.0, height);
+  cairo_t* cr = cairo_create(surface);
+  cairo_set_source_rgb(cr, 1, 1, 1);
+  cairo_paint(cr);
   draw_window(cr, m, plot.window);
   for (std::size_t i = 0; i < pattern.points.size(); ++i)
     draw_marker(cr, pattern.marks[i], m.X(pattern.points[i].x), m.Y(pattern.points[i].y), 3.5);

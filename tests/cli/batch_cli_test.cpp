@@ -3,6 +3,7 @@
 #include <cairo.h>
 
 #include <algorithm>
+#include <cmath>
 #include <filesystem>
 #include <fstream>
 #include <map>
@@ -422,7 +423,15 @@ TEST(BatchCli, ReportFigureTitlesRenderAsTheirOwnFiles) {
       file_of[line.substr(c + 1)] = line.substr(b + 1, c - b - 1);
     }
   }
-  constexpr int cell_w = 450, cell_h = 300, columns = 4;
+  // Cells 450 px wide; each figure at its own aspect (maps are shorter than charts) from
+  // the top of its cell.
+  constexpr int cell_w = 450, cell_h = 400, columns = 4;
+  std::vector<int> heights;      // each figure's height in its cell
+  std::vector<int> title_bands;  // its top 50 figure pixels (where the title is), in cell pixels
+  const auto attribute = [](const std::string& svg, const std::string& name) {
+    const auto at = svg.find(name + "=\"");
+    return at == std::string::npos ? 0.0 : test::number_of(svg.substr(at + name.size() + 2, 20));
+  };
   std::string reference = "<!doctype html><html><body style=\"margin:0;background:#fff\">";
   std::string placed;
   std::size_t k = 0;
@@ -440,8 +449,14 @@ TEST(BatchCli, ReportFigureTitlesRenderAsTheirOwnFiles) {
     ASSERT_TRUE(file_of.count(title)) << "figure '" << title << "' is not in figures.csv";
     const std::string at = "left:" + std::to_string(static_cast<int>(k % columns) * cell_w) +
                            "px;top:" + std::to_string(static_cast<int>(k / columns) * cell_h) + "px;";
+    const double w = attribute(svg, "width");
+    const double h = attribute(svg, "height");
+    ASSERT_GT(w, 0.0) << title;
+    heights.push_back(static_cast<int>(std::lround(cell_w * h / w)));
+    title_bands.push_back(static_cast<int>(std::lround(50.0 * cell_w / w)));
+    ASSERT_LE(heights.back(), cell_h) << title;
     const std::string box = "position:absolute;" + at + "width:" + std::to_string(cell_w) +
-                            "px;height:" + std::to_string(cell_h) + "px;margin:0;display:block;";
+                            "px;height:" + std::to_string(heights.back()) + "px;margin:0;display:block;";
     reference += "<img style=\"" + box + "\" src=\"" + out.file("o/" + file_of[title]) + "\">";
     placed += "<div style=\"" + box + "background:#fff;z-index:" + std::to_string(100 + k) + "\">" + svg + "</div>";
   }
@@ -452,9 +467,7 @@ TEST(BatchCli, ReportFigureTitlesRenderAsTheirOwnFiles) {
   // The report itself, with every inlined figure moved onto its cell above the page.
   const std::string style =
       "<style>html,body{margin:0!important;padding:0!important;background:#fff}"
-      ".cell svg{width:" +
-      std::to_string(cell_w) + "px!important;height:" + std::to_string(cell_h) +
-      "px!important;border:0!important;display:block}</style>";
+      ".cell svg{width:100%!important;height:100%!important;border:0!important;display:block}</style>";
   html.insert(html.find("</head>"), style);
   html.insert(html.find("</body>"), "<div class=cell>" + placed + "</div>");
   const std::string report_page = out.write("report-test.html", html);
@@ -468,7 +481,7 @@ TEST(BatchCli, ReportFigureTitlesRenderAsTheirOwnFiles) {
     const int y0 = static_cast<int>(f / columns) * cell_h;
     // Pixels that are ink in either image and differ between them, as a share of the ink:
     // none in a faithful rendering; most of the text when letters take other shapes. First
-    // in the title band (the top 1/12 of the figure, where charts and maps put the title),
+    // in the title band (the top 50 pixels of the figure, where charts and maps put it),
     // then over the whole figure (axis labels, legend, caption).
     const auto compare = [&](int height) {
       std::size_t ink = 0, differ = 0;
@@ -480,8 +493,8 @@ TEST(BatchCli, ReportFigureTitlesRenderAsTheirOwnFiles) {
         }
       return std::pair{ink, static_cast<double>(differ) / static_cast<double>(std::max<std::size_t>(ink, 1))};
     };
-    const auto [title_ink, title_differ] = compare(cell_h / 12);
-    const auto [ink, differ] = compare(cell_h);
+    const auto [title_ink, title_differ] = compare(title_bands[f]);
+    const auto [ink, differ] = compare(heights[f]);
     EXPECT_GT(title_ink, 50u) << "figure " << f << ": no title drawn";
     EXPECT_LT(title_differ, 0.05) << "figure " << f << ": title differs";
     EXPECT_LT(differ, 0.02) << "figure " << f << " differs";
