@@ -118,6 +118,16 @@ CorrectionMethod correction_method_of(const std::string& name) {
   return CorrectionMethod::none;
 }
 
+// The detection-corrected intensity of an estimate or pooled record.
+CorrectedIntensity corrected_of(const Json& j) {
+  CorrectedIntensity c;
+  c.detection_probability = j.value("detection_probability", 1.0);
+  c.intensity = j.value("corrected_intensity", 0.0);
+  c.ci = interval_of(j["corrected_ci"]);
+  c.method = correction_method_of(j.value("correction_method", ""));
+  return c;
+}
+
 DensityEstimate density_estimate_of(const Json& e) {
   DensityEstimate d;
   d.plot = e.value("plot", "");
@@ -127,10 +137,7 @@ DensityEstimate density_estimate_of(const Json& e) {
   d.area_m2 = e.value("area_m2", 0.0);
   d.intensity = e.value("intensity", 0.0);
   d.ci = interval_of(e["ci"]);
-  d.corrected.detection_probability = e.value("detection_probability", 1.0);
-  d.corrected.intensity = e.value("corrected_intensity", 0.0);
-  d.corrected.ci = interval_of(e["corrected_ci"]);
-  d.corrected.method = correction_method_of(e.value("correction_method", ""));
+  d.corrected = corrected_of(e);
   return d;
 }
 
@@ -142,10 +149,7 @@ PooledEstimate pooled_of(const Json& p) {
   out.area_in_unit = p.value("area", 0.0);
   out.intensity = p.value("intensity", 0.0);
   out.ci = interval_of(p["ci"]);
-  out.corrected.detection_probability = p.value("detection_probability", 1.0);
-  out.corrected.intensity = p.value("corrected_intensity", 0.0);
-  out.corrected.ci = interval_of(p["corrected_ci"]);
-  out.corrected.method = correction_method_of(p.value("correction_method", ""));
+  out.corrected = corrected_of(p);
   if (p["homogeneity"].is_object()) {
     const Json& h = p["homogeneity"];
     HomogeneityTest t;

@@ -77,6 +77,18 @@ std::string method_line(const DensityResult& result) {
 
 namespace report_detail {
 
+namespace {
+
+// The detection-corrected intensity's fields of an estimate or pooled record.
+void add_corrected(Json& j, const CorrectedIntensity& c) {
+  j["detection_probability"] = c.detection_probability;
+  j["corrected_intensity"] = c.intensity;
+  j["corrected_ci"] = interval_json(c.ci);
+  j["correction_method"] = std::string(correction_method_name(c.method));
+}
+
+}  // namespace
+
 Json density_estimate_record(const DensityEstimate& e) {
   Json j;
   j["plot"] = e.plot;
@@ -86,10 +98,7 @@ Json density_estimate_record(const DensityEstimate& e) {
   j["area_m2"] = e.area_m2;
   j["intensity"] = e.intensity;
   j["ci"] = interval_json(e.ci);
-  j["detection_probability"] = e.corrected.detection_probability;
-  j["corrected_intensity"] = e.corrected.intensity;
-  j["corrected_ci"] = interval_json(e.corrected.ci);
-  j["correction_method"] = std::string(correction_method_name(e.corrected.method));
+  add_corrected(j, e.corrected);
   return j;
 }
 
@@ -101,10 +110,7 @@ Json pooled_record(const PooledEstimate& p) {
   j["area"] = p.area_in_unit;
   j["intensity"] = p.intensity;
   j["ci"] = interval_json(p.ci);
-  j["detection_probability"] = p.corrected.detection_probability;
-  j["corrected_intensity"] = p.corrected.intensity;
-  j["corrected_ci"] = interval_json(p.corrected.ci);
-  j["correction_method"] = std::string(correction_method_name(p.corrected.method));
+  add_corrected(j, p.corrected);
   if (p.homogeneity) {
     const auto& h = *p.homogeneity;
     Json t = chi_square_json(h.chi_square, h.p_value, h.monte_carlo);

@@ -61,47 +61,46 @@ std::string departure_text(const std::vector<Departure>& departures, const char*
   return text;
 }
 
+namespace {
+
+// The columns of an intensity with its interval and its detection-corrected twin, shared by
+// the per-plot and pooled tables.
+const std::vector<std::string> intensity_columns{
+    "intensity",           "ci_low",           "ci_high",          "detection_probability",
+    "corrected_intensity", "corrected_ci_low", "corrected_ci_high"};
+
+void append_intensity(std::vector<std::string>& row, double intensity, const Interval& ci,
+                      const CorrectedIntensity& corrected) {
+  row.insert(row.end(), {v(intensity), v(ci.lower), v(ci.upper), v(corrected.detection_probability),
+                         v(corrected.intensity), v(corrected.ci.lower), v(corrected.ci.upper)});
+}
+
+std::vector<std::string> joined(std::vector<std::string> first, const std::vector<std::string>& middle,
+                                const std::vector<std::string>& last) {
+  first.insert(first.end(), middle.begin(), middle.end());
+  first.insert(first.end(), last.begin(), last.end());
+  return first;
+}
+
+}  // namespace
+
 Table density_rows(const DensityResult& result) {
   Table t;
-  t.columns = {"scope",
-               "plot",
-               "species",
-               "count",
-               "area",
-               "unit",
-               "intensity",
-               "ci_low",
-               "ci_high",
-               "detection_probability",
-               "corrected_intensity",
-               "corrected_ci_low",
-               "corrected_ci_high",
-               "correction_method",
-               "homogeneity_statistic",
-               "homogeneity_df",
-               "homogeneity_p_value"};
+  t.columns = joined({"scope", "plot", "species", "count", "area", "unit"}, intensity_columns,
+                     {"correction_method", "homogeneity_statistic", "homogeneity_df", "homogeneity_p_value"});
   const std::string unit(unit_name(result.unit));
   for (const auto& e : result.estimates) {
-    t.rows.push_back({"plot", e.plot, e.species.value_or(""), std::to_string(e.count), v(e.area_in_unit), unit,
-                      v(e.intensity), v(e.ci.lower), v(e.ci.upper), v(e.corrected.detection_probability),
-                      v(e.corrected.intensity), v(e.corrected.ci.lower), v(e.corrected.ci.upper),
-                      std::string(correction_method_name(e.corrected.method)), "", "", ""});
+    std::vector<std::string> row{"plot", e.plot, e.species.value_or(""), std::to_string(e.count), v(e.area_in_unit),
+                                 unit};
+    append_intensity(row, e.intensity, e.ci, e.corrected);
+    row.insert(row.end(), {std::string(correction_method_name(e.corrected.method)), "", "", ""});
+    t.rows.push_back(std::move(row));
   }
   for (const auto& p : result.pooled) {
-    std::vector<std::string> row{"pooled",
-                                 "",
-                                 p.species.value_or(""),
-                                 std::to_string(p.count),
-                                 v(p.area_in_unit),
-                                 unit,
-                                 v(p.intensity),
-                                 v(p.ci.lower),
-                                 v(p.ci.upper),
-                                 v(p.corrected.detection_probability),
-                                 v(p.corrected.intensity),
-                                 v(p.corrected.ci.lower),
-                                 v(p.corrected.ci.upper),
-                                 std::string(correction_method_name(p.corrected.method))};
+    std::vector<std::string> row{"pooled",          "",  p.species.value_or(""), std::to_string(p.count),
+                                 v(p.area_in_unit), unit};
+    append_intensity(row, p.intensity, p.ci, p.corrected);
+    row.push_back(std::string(correction_method_name(p.corrected.method)));
     if (p.homogeneity) {
       row.push_back(v(p.homogeneity->chi_square.statistic));
       row.push_back(v(p.homogeneity->chi_square.df));
@@ -116,41 +115,15 @@ Table density_rows(const DensityResult& result) {
 
 Table pooled_rows(const DensityResult& result) {
   Table t;
-  t.columns = {"species",
-               "plots",
-               "count",
-               "area",
-               "unit",
-               "intensity",
-               "ci_low",
-               "ci_high",
-               "detection_probability",
-               "corrected_intensity",
-               "corrected_ci_low",
-               "corrected_ci_high",
-               "homogeneity_statistic",
-               "homogeneity_df",
-               "homogeneity_p",
-               "homogeneity_p_method",
-               "dispersion_ratio",
-               "between_plot_ci_low",
-               "between_plot_ci_high",
-               "corrected_between_plot_ci_low",
-               "corrected_between_plot_ci_high"};
+  t.columns = joined({"species", "plots", "count", "area", "unit"}, intensity_columns,
+                     {"homogeneity_statistic", "homogeneity_df", "homogeneity_p", "homogeneity_p_method",
+                      "dispersion_ratio", "between_plot_ci_low", "between_plot_ci_high",
+                      "corrected_between_plot_ci_low", "corrected_between_plot_ci_high"});
   const std::string unit(unit_name(result.unit));
   for (const auto& p : result.pooled) {
-    std::vector<std::string> row{p.species.value_or(""),
-                                 std::to_string(p.plots),
-                                 std::to_string(p.count),
-                                 v(p.area_in_unit),
-                                 unit,
-                                 v(p.intensity),
-                                 v(p.ci.lower),
-                                 v(p.ci.upper),
-                                 v(p.corrected.detection_probability),
-                                 v(p.corrected.intensity),
-                                 v(p.corrected.ci.lower),
-                                 v(p.corrected.ci.upper)};
+    std::vector<std::string> row{p.species.value_or(""), std::to_string(p.plots), std::to_string(p.count),
+                                 v(p.area_in_unit), unit};
+    append_intensity(row, p.intensity, p.ci, p.corrected);
     if (p.homogeneity) {
       const HomogeneityTest& h = *p.homogeneity;
       row.insert(row.end(), {v(h.chi_square.statistic), v(h.chi_square.df), v(h.p_value),
