@@ -89,22 +89,17 @@ InputKind judge_kind(const BatchInput& input, const BatchOptions& options, std::
 // sightings fall in; the others belong to other files (their areas must not be pooled once
 // per file).
 void keep_plots_with_sightings(LoadedSurvey& loaded) {
-  Survey& s = loaded.survey;
-  std::vector<Plot> plots;
-  std::vector<MarkedPattern> patterns;
-  for (std::size_t i = 0; i < s.plots.size(); ++i) {
-    if (s.patterns[i].points.empty()) continue;
-    plots.push_back(std::move(s.plots[i]));
-    patterns.push_back(std::move(s.patterns[i]));
-  }
-  const std::size_t left_out = s.plots.size() - plots.size();
+  const auto& patterns = loaded.survey.patterns();
+  std::vector<std::size_t> kept;
+  for (std::size_t i = 0; i < patterns.size(); ++i)
+    if (!patterns[i].points.empty()) kept.push_back(i);
+  const std::size_t left_out = patterns.size() - kept.size();
   if (left_out > 0)
-    loaded.notes.push_back(std::to_string(plots.size()) +
+    loaded.notes.push_back(std::to_string(kept.size()) +
                            " plot(s) of the shared plots layer hold this file's sightings; "
                            "the other " +
                            std::to_string(left_out) + " are left to the files that cover them");
-  s.plots = std::move(plots);
-  s.patterns = std::move(patterns);
+  loaded.survey = std::move(loaded.survey).with_plots(kept);
 }
 
 void analyse_plots(FileResults& r, const BatchOptions& options) {
@@ -138,19 +133,19 @@ void analyse_plots(FileResults& r, const BatchOptions& options) {
   }
   if (options.surfaces) {
     const double per_unit = square_metres_per(options.density.unit);
-    for (std::size_t k = 0; k <= s.species.size(); ++k) {
-      const std::optional<std::size_t> species = k < s.species.size() ? std::optional<std::size_t>(k) : std::nullopt;
-      const std::string name = species ? file_name_safe(s.species[k]) : std::string("all-species");
+    for (std::size_t k = 0; k <= s.species().size(); ++k) {
+      const std::optional<std::size_t> species = k < s.species().size() ? std::optional<std::size_t>(k) : std::nullopt;
+      const std::string name = species ? file_name_safe(s.species()[k]) : std::string("all-species");
       IntensityRaster raster = intensity_surface(s, species, per_unit, options.pixel_m, options.bandwidth_m);
       for (const auto& w : raster.warnings) r.input.warnings.push_back("surface of " + name + ": " + w);
       r.surfaces.emplace_back("surfaces/" + stem + "/" + name + ".tif", std::move(raster));
     }
   }
   if (options.figures)
-    for (std::size_t p = 0; p < s.plots.size(); ++p)
-      r.figures.push_back({{"map", "maps/" + stem + "/" + file_name_safe(s.plots[p].id) + ".svg",
-                            r.source.name + ": plot " + s.plots[p].id},
-                           plot_map_svg(s.plots[p], s.patterns[p], s.species)});
+    for (std::size_t p = 0; p < s.plots().size(); ++p)
+      r.figures.push_back({{"map", "maps/" + stem + "/" + file_name_safe(s.plots()[p].id) + ".svg",
+                            r.source.name + ": plot " + s.plots()[p].id},
+                           plot_map_svg(s.plots()[p], s.patterns()[p], s.species())});
 }
 
 void analyse_transect_file(FileResults& r, const BatchOptions& options) {
@@ -263,11 +258,11 @@ std::vector<PlotResultFeature> gis_features(const FileResults& r, const std::str
   if (r.randomness)
     for (const auto& g : r.randomness->results) tests[{g.plot, g.species.value_or("")}] = &g;
   std::map<std::string, std::size_t> plot_index;
-  for (std::size_t p = 0; p < s.plots.size(); ++p) plot_index[s.plots[p].id] = p;
+  for (std::size_t p = 0; p < s.plots().size(); ++p) plot_index[s.plots()[p].id] = p;
   for (const auto& e : r.density->estimates) {
     PlotResultFeature f;
     f.plot = e.plot;
-    f.shape = s.plots[plot_index.at(e.plot)].window.shape();
+    f.shape = s.plots()[plot_index.at(e.plot)].window.shape();
     f.file = r.source.name;
     f.species = e.species;
     f.count = static_cast<long long>(e.count);
@@ -336,7 +331,7 @@ class SeasonWriter {
       const auto rows = season_density_rows(name, *r.density);
       summary_.report.densities.insert(summary_.report.densities.end(), rows.begin(), rows.end());
       season_counts_.append(PlotCounts::of(r.survey->survey), name + ":");
-      plots_pooled_ += r.survey->survey.plots.size();
+      plots_pooled_ += r.survey->survey.plots().size();
     }
     if (r.randomness) {
       randomness_->csv.write(csv_rows_with_file(randomness_rows(*r.randomness), name));

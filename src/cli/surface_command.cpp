@@ -50,8 +50,8 @@ Action add_surface_command(CLI::App& app) {
     const auto draw = bar.callback();
     const std::size_t all_work = 2 * s.sighting_count();
     std::size_t finished = 0;
-    for (std::size_t k = 0; k <= s.species.size(); ++k) {
-      const std::optional<std::size_t> species = k < s.species.size() ? std::optional<std::size_t>(k) : std::nullopt;
+    for (std::size_t k = 0; k <= s.species().size(); ++k) {
+      const std::optional<std::size_t> species = k < s.species().size() ? std::optional<std::size_t>(k) : std::nullopt;
       std::function<void(std::size_t, std::size_t)> progress;
       std::size_t smoothed = 0;  // sightings of this surface
       if (draw)
@@ -63,7 +63,7 @@ Action add_surface_command(CLI::App& app) {
           intensity_surface(s, species, per_unit, o->pixel > 0.0 ? std::optional<double>(o->pixel) : std::nullopt,
                             o->bandwidth > 0.0 ? std::optional<double>(o->bandwidth) : std::nullopt, progress);
       finished += smoothed;
-      rasters.emplace_back(species ? file_name_safe(s.species[k]) : "all-species", std::move(raster));
+      rasters.emplace_back(species ? file_name_safe(s.species()[k]) : "all-species", std::move(raster));
     }
     make_folder(o->out);
     for (const auto& [name, raster] : rasters) {

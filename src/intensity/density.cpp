@@ -98,15 +98,14 @@ void correct_between_plot(HomogeneityTest& test, const std::vector<std::vector<s
 }  // namespace
 
 PlotCounts PlotCounts::of(const Survey& survey) {
-  survey.check();
   PlotCounts out;
-  out.species = survey.species;
-  out.plots.reserve(survey.plots.size());
-  for (std::size_t i = 0; i < survey.plots.size(); ++i) {
-    out.plots.push_back(survey.plots[i].id);
-    out.areas_m2.push_back(survey.plots[i].window.area_m2());
-    std::vector<std::uint64_t> row(survey.species.size(), 0);
-    for (const auto mark : survey.patterns[i].marks) ++row[mark];
+  out.species = survey.species();
+  out.plots.reserve(survey.plots().size());
+  for (std::size_t i = 0; i < survey.plots().size(); ++i) {
+    out.plots.push_back(survey.plots()[i].id);
+    out.areas_m2.push_back(survey.plots()[i].window.area_m2());
+    std::vector<std::uint64_t> row(survey.species().size(), 0);
+    for (const auto mark : survey.patterns()[i].marks) ++row[mark];
     out.counts.push_back(std::move(row));
   }
   return out;
@@ -146,7 +145,6 @@ void PlotCounts::append(const PlotCounts& other, const std::string& prefix) {
 }
 
 DensityResult estimate_density(const Survey& survey, const DensityOptions& options) {
-  survey.check();
   return estimate_density(PlotCounts::of(survey), options);
 }
 

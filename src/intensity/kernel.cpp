@@ -150,25 +150,24 @@ double add_kernel_intensity(IntensityRaster& raster, const std::vector<Point>& p
 IntensityRaster intensity_surface(const Survey& survey, std::optional<std::size_t> species, double per_unit,
                                   std::optional<double> pixel_m, std::optional<double> bandwidth_m,
                                   const std::function<void(std::size_t, std::size_t)>& progress) {
-  survey.check();
-  if (survey.plots.empty()) throw AnalysisError("an intensity surface needs at least one plot");
-  Bounds all = survey.plots.front().window.bounds();
-  for (const auto& plot : survey.plots) {
+  if (survey.plots().empty()) throw AnalysisError("an intensity surface needs at least one plot");
+  Bounds all = survey.plots().front().window.bounds();
+  for (const auto& plot : survey.plots()) {
     const Bounds& b = plot.window.bounds();
     all = {std::min(all.xmin, b.xmin), std::min(all.ymin, b.ymin), std::max(all.xmax, b.xmax),
            std::max(all.ymax, b.ymax)};
   }
   // Each plot's points and bandwidth first: the pixel must be finer than every kernel.
-  std::vector<std::vector<Point>> points(survey.plots.size());
-  std::vector<double> bandwidths(survey.plots.size());
+  std::vector<std::vector<Point>> points(survey.plots().size());
+  std::vector<double> bandwidths(survey.plots().size());
   double finest = std::numeric_limits<double>::infinity();
-  for (std::size_t p = 0; p < survey.plots.size(); ++p) {
-    const MarkedPattern& pattern = survey.patterns[p];
+  for (std::size_t p = 0; p < survey.plots().size(); ++p) {
+    const MarkedPattern& pattern = survey.patterns()[p];
     for (std::size_t i = 0; i < pattern.points.size(); ++i)
       if (!species || pattern.marks[i] == *species) points[p].push_back(pattern.points[i]);
     double h = bandwidth_m.value_or(scott_bandwidth(points[p]));
     if (!(h > 0.0)) h = scott_bandwidth(pattern.points);
-    if (!(h > 0.0)) h = std::sqrt(survey.plots[p].window.area_m2()) / 4.0;
+    if (!(h > 0.0)) h = std::sqrt(survey.plots()[p].window.area_m2()) / 4.0;
     bandwidths[p] = h;
     if (!points[p].empty()) finest = std::min(finest, h);
   }
@@ -185,15 +184,15 @@ IntensityRaster intensity_surface(const Survey& survey, std::optional<std::size_
   std::size_t total = 0;
   for (const auto& plot_points : points) total += plot_points.size();
   std::size_t done = 0;
-  for (std::size_t p = 0; p < survey.plots.size(); ++p) {
+  for (std::size_t p = 0; p < survey.plots().size(); ++p) {
     std::function<void(std::size_t, std::size_t)> plot_progress;
     if (progress) plot_progress = [&](std::size_t i, std::size_t) { progress(done + i, total); };
     const double integral =
-        add_kernel_intensity(raster, points[p], survey.plots[p].window, bandwidths[p], per_unit, plot_progress);
+        add_kernel_intensity(raster, points[p], survey.plots()[p].window, bandwidths[p], per_unit, plot_progress);
     done += points[p].size();
     const auto n = static_cast<double>(points[p].size());
     if (n > 0.0 && std::abs(integral - n) > 0.02 * n) {
-      raster.warnings.push_back("plot '" + survey.plots[p].id + "': the surface integrates to " +
+      raster.warnings.push_back("plot '" + survey.plots()[p].id + "': the surface integrates to " +
                                 format_significant(integral, 4) + " against " + std::to_string(points[p].size()) +
                                 " sightings (more than 2% off: a plot narrower than a few pixels, or a kernel "
                                 "mostly outside the plot)");

@@ -428,14 +428,14 @@ void check_assignment(const Survey& survey, const SightingLayer& sightings, cons
   const std::size_t total = sightings.rows.size();
   const std::size_t assigned = survey.sighting_count();
   if (total == 0 || 2 * assigned >= total) return;
-  const std::size_t unknown = survey.unknown_plot_feature_ids.size();
-  const std::size_t outside = survey.outside_feature_ids.size();
+  const std::size_t unknown = survey.exclusions().unknown_plot_feature_ids.size();
+  const std::size_t outside = survey.exclusions().outside_feature_ids.size();
   std::string message = sightings.label + ": only " + std::to_string(assigned) + " of " + std::to_string(total) +
                         " sightings fall in a plot of " + plots_label + " (" + std::to_string(outside) +
                         " outside every plot, " + std::to_string(unknown) + " naming a plot id that is not there)";
   if (unknown > 0) {
     std::set<std::string> ids;
-    for (const auto& plot : survey.plots) ids.insert(plot.id);
+    for (const auto& plot : survey.plots()) ids.insert(plot.id);
     std::set<std::string> values;
     for (const auto& row : sightings.rows)
       if (row.plot && !ids.count(*row.plot)) values.insert(*row.plot);
@@ -511,22 +511,22 @@ LoadedSurvey load_survey(const SurveyReadOptions& options) {
   loaded.duplicate_locations = duplicate_locations(sightings, located);
   if (!loaded.duplicate_locations.empty()) loaded.warnings.push_back(duplicate_warning(loaded.duplicate_locations));
   const Survey& s = loaded.survey;
-  if (!s.outside_feature_ids.empty())
-    loaded.warnings.push_back(std::to_string(s.outside_feature_ids.size()) +
+  if (!s.exclusions().outside_feature_ids.empty())
+    loaded.warnings.push_back(std::to_string(s.exclusions().outside_feature_ids.size()) +
                               " sighting(s) lie outside every plot and were excluded "
                               "(feature ids: " +
-                              id_list(s.outside_feature_ids) + ")");
-  if (!s.unknown_plot_feature_ids.empty())
-    loaded.warnings.push_back(std::to_string(s.unknown_plot_feature_ids.size()) +
+                              id_list(s.exclusions().outside_feature_ids) + ")");
+  if (!s.exclusions().unknown_plot_feature_ids.empty())
+    loaded.warnings.push_back(std::to_string(s.exclusions().unknown_plot_feature_ids.size()) +
                               " sighting(s) name a plot that is not among the plots and were "
                               "excluded (feature ids: " +
-                              id_list(s.unknown_plot_feature_ids) + ")");
-  if (!s.off_window_feature_ids.empty())
-    loaded.warnings.push_back(std::to_string(s.off_window_feature_ids.size()) +
+                              id_list(s.exclusions().unknown_plot_feature_ids) + ")");
+  if (!s.exclusions().off_window_feature_ids.empty())
+    loaded.warnings.push_back(std::to_string(s.exclusions().off_window_feature_ids.size()) +
                               " sighting(s) lie outside the polygon of the plot their '" + sightings.plot_attribute +
                               "' attribute names; kept by attribute "
                               "(feature ids: " +
-                              id_list(s.off_window_feature_ids) + ")");
+                              id_list(s.exclusions().off_window_feature_ids) + ")");
   return loaded;
 }
 

@@ -500,20 +500,21 @@ LoadedTransects load_transects(const TransectReadOptions& options) {
     throw InputError("give the transects with exactly one of lines PATH or stations PATH", {"lines", "stations"});
   const bool is_line = options.lines.has_value();
   LoadedTransects loaded;
-  loaded.survey.kind = is_line ? TransectKind::line : TransectKind::point;
   const OpenedSources sources = open_sources(options, is_line, loaded);
 
   TextDecoder decode(options.encoding);
   const TransectTable table = read_transects(options, is_line, sources, loaded.transects_label, decode);
-  loaded.survey.transects = transect_units(table, is_line, loaded.transects_label);
+  std::vector<TransectUnit> units = transect_units(table, is_line, loaded.transects_label);
+  std::vector<TransectObservation> observations;
 
   const std::string& sl = loaded.sightings_label;
   const SightingReader reader(options, is_line, sources, table, sighting_fields(options, sources, table, sl),
                               loaded.transects_label, sl, decode);
-  const LayerScan scan =
-      scan_layer(*sources.sightings_layer, sl, is_csv_path(options.sightings.path), [&](OGRFeature& feature) {
-        loaded.survey.observations.push_back(reader.read(feature, where(sl, feature.GetFID())));
-      });
+  const LayerScan scan = scan_layer(
+      *sources.sightings_layer, sl, is_csv_path(options.sightings.path),
+      [&](OGRFeature& feature) { observations.push_back(reader.read(feature, where(sl, feature.GetFID()))); });
+  loaded.survey =
+      TransectSurvey(is_line ? TransectKind::line : TransectKind::point, std::move(units), std::move(observations));
   if (scan.blank_rows > 0)
     loaded.notes.push_back(sl + ": " + std::to_string(scan.blank_rows) + " blank row(s) (every field empty) skipped");
   if (const std::string w = decode.warning(sl); !w.empty()) loaded.warnings.push_back(w);

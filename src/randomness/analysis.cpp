@@ -271,7 +271,6 @@ std::size_t minimum_simulations(double alpha, bool two_sided) {
 }
 
 RandomnessResult analyse_randomness(const Survey& survey, const RandomnessOptions& options) {
-  survey.check();
   RandomnessResult result;
   result.simulations = options.simulations;
   result.seed = options.seed;
@@ -280,8 +279,8 @@ RandomnessResult analyse_randomness(const Survey& survey, const RandomnessOption
   std::size_t total = 0;
   std::size_t done = 0;
   const bool pairs = options.run_interactions && options.simulations > 0;
-  for (const auto& pattern : survey.patterns) {
-    std::vector<std::size_t> present(survey.species.size(), 0);
+  for (const auto& pattern : survey.patterns()) {
+    std::vector<std::size_t> present(survey.species().size(), 0);
     for (const auto m : pattern.marks) ++present[m];
     std::size_t groups = 1, paired = 0;
     for (const auto n : present) {
@@ -293,10 +292,10 @@ RandomnessResult analyse_randomness(const Survey& survey, const RandomnessOption
   const auto step = [&] {
     if (options.progress) options.progress(++done, total);
   };
-  for (std::size_t p = 0; p < survey.plots.size(); ++p) {
-    const Plot& plot = survey.plots[p];
-    const MarkedPattern& pattern = survey.patterns[p];
-    std::vector<std::vector<Point>> by_species(survey.species.size());
+  for (std::size_t p = 0; p < survey.plots().size(); ++p) {
+    const Plot& plot = survey.plots()[p];
+    const MarkedPattern& pattern = survey.patterns()[p];
+    std::vector<std::vector<Point>> by_species(survey.species().size());
     for (std::size_t i = 0; i < pattern.points.size(); ++i) by_species[pattern.marks[i]].push_back(pattern.points[i]);
     const auto run = [&](const std::vector<Point>& points, const std::optional<std::string>& species) {
       if (points.size() < options.min_points) {
@@ -325,20 +324,21 @@ RandomnessResult analyse_randomness(const Survey& survey, const RandomnessOption
       result.results.push_back(std::move(g));
       step();
     };
-    for (std::size_t s = 0; s < survey.species.size(); ++s) {
+    for (std::size_t s = 0; s < survey.species().size(); ++s) {
       if (by_species[s].empty()) continue;
-      run(by_species[s], survey.species[s]);
+      run(by_species[s], survey.species()[s]);
     }
     run(pattern.points, std::nullopt);
     if (!options.run_interactions || options.simulations == 0) continue;
-    for (std::size_t s = 0; s < survey.species.size(); ++s) {
-      for (std::size_t t = s + 1; t < survey.species.size(); ++t) {
+    for (std::size_t s = 0; s < survey.species().size(); ++s) {
+      for (std::size_t t = s + 1; t < survey.species().size(); ++t) {
         if (by_species[s].size() < 2 || by_species[t].size() < 2) continue;
-        InteractionResult ir = random_labelling_test(by_species[s], by_species[t], plot.window, options,
-                                                     seed_key({"pair", plot.id, survey.species[s], survey.species[t]}));
+        InteractionResult ir =
+            random_labelling_test(by_species[s], by_species[t], plot.window, options,
+                                  seed_key({"pair", plot.id, survey.species()[s], survey.species()[t]}));
         ir.plot = plot.id;
-        ir.species_a = survey.species[s];
-        ir.species_b = survey.species[t];
+        ir.species_a = survey.species()[s];
+        ir.species_b = survey.species()[t];
         result.interactions.push_back(std::move(ir));
         step();
       }

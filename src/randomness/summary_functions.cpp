@@ -92,7 +92,7 @@ double default_rmax(const Window& window, std::size_t n) {
   return std::min(quarter, 4.0 / std::sqrt(lambda));
 }
 
-SummaryContext::SummaryContext(const Window& window, SummaryOptions options) : window_(&window), options_(options) {
+SummaryContext::SummaryContext(const Window& window, SummaryOptions options) : window_(window), options_(options) {
   if (!(options_.rmax_m > 0.0) || options_.steps < 2)
     throw AnalysisError("summary functions need rmax > 0 and at least 2 distance steps");
   const double dr = options_.rmax_m / static_cast<double>(options_.steps);

@@ -211,14 +211,14 @@ std::string density_json(const InputFacts& input, const Survey& plots, const Den
 
   const Survey& s = plots;
   Json excluded;
-  excluded["outside_plots"] = s.outside_feature_ids.size();
-  excluded["outside_plots_feature_ids"] = ids_json(s.outside_feature_ids);
-  excluded["unknown_plot"] = s.unknown_plot_feature_ids.size();
-  excluded["unknown_plot_feature_ids"] = ids_json(s.unknown_plot_feature_ids);
+  excluded["outside_plots"] = s.exclusions().outside_feature_ids.size();
+  excluded["outside_plots_feature_ids"] = ids_json(s.exclusions().outside_feature_ids);
+  excluded["unknown_plot"] = s.exclusions().unknown_plot_feature_ids.size();
+  excluded["unknown_plot_feature_ids"] = ids_json(s.exclusions().unknown_plot_feature_ids);
   doc["excluded"] = std::move(excluded);
   Json assignment;
-  assignment["by"] = s.assigned_by_attribute ? "attribute" : "point-in-polygon";
-  assignment["outside_own_plot_feature_ids"] = ids_json(s.off_window_feature_ids);
+  assignment["by"] = s.exclusions().assigned_by_attribute ? "attribute" : "point-in-polygon";
+  assignment["outside_own_plot_feature_ids"] = ids_json(s.exclusions().off_window_feature_ids);
   doc["assignment"] = std::move(assignment);
   doc["detection_method"] = method_line(result);
   doc["duplicate_locations"] = duplicate_locations_json(input);
@@ -323,8 +323,8 @@ std::string density_table(const InputFacts& input, const Survey& plots, const De
   if (result.composition) write_composition_line(out, *result.composition);
   const Survey& s = plots;
   out << "Sightings: " << s.sighting_count() << " analysed, "
-      << s.outside_feature_ids.size() + s.unknown_plot_feature_ids.size() << " excluded; "
-      << "assigned by " << (s.assigned_by_attribute ? "plot attribute" : "point-in-polygon") << "\n";
+      << s.exclusions().outside_feature_ids.size() + s.exclusions().unknown_plot_feature_ids.size() << " excluded; "
+      << "assigned by " << (s.exclusions().assigned_by_attribute ? "plot attribute" : "point-in-polygon") << "\n";
   write_notes_warnings_cautions(out, input, result);
   return out.str();
 }

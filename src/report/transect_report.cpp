@@ -168,7 +168,7 @@ std::string transect_table(const InputFacts& input, const TransectSurvey& survey
   const bool lines = result.kind == TransectKind::line;
   out << "stipple transect (" << (lines ? "line" : "point") << " transects)\n";
   out << "  sightings: " << input.sightings_label << "\n";
-  out << "  transects: " << input.transects_label << " (" << survey.transects.size() << ")\n";
+  out << "  transects: " << input.transects_label << " (" << survey.transects().size() << ")\n";
   out << "  CRS:       " << input.crs.code << " (" << input.crs.name << "), " << input.crs.reason << "\n";
   out << "  truncation " << format_significant(result.truncation_m, 4) << " m (" << result.truncated
       << " detections beyond it); density per " << unit << "; " << format_general(100.0 * result.confidence)
@@ -328,7 +328,7 @@ std::vector<FigureFile> transect_figures(const TransectSurvey& survey, const Tra
 
     // Q-Q plot of exact distances within the truncation distance.
     std::vector<double> x;
-    for (const auto& o : survey.observations)
+    for (const auto& o : survey.observations())
       if ((!e.species || o.species == *e.species) && o.distance_m <= result.truncation_m) x.push_back(o.distance_m);
     if (x.size() < 3) continue;
     std::sort(x.begin(), x.end());

@@ -26,13 +26,13 @@ using Key = std::optional<std::string>;
 // Distances (within truncation) for one species, or all when `species` is empty.
 DistanceData distances_of(const TransectSurvey& survey, const Key& species, double w, const std::vector<double>& bins) {
   DistanceData d;
-  d.kind = survey.kind;
+  d.kind = survey.kind();
   d.truncation_m = w;
   if (!bins.empty()) {
     d.bin_edges = bins;
     d.bin_counts.assign(bins.size() - 1, 0);
   }
-  for (const auto& o : survey.observations) {
+  for (const auto& o : survey.observations()) {
     if (species && o.species != *species) continue;
     if (o.distance_m > w) continue;
     if (bins.empty()) {
@@ -62,17 +62,17 @@ struct RowNumbers {
 };
 
 RowNumbers row_numbers(const TransectSurvey& survey, const Row& row, const DetectionFit& fit, double w) {
-  std::vector<std::size_t> index(survey.transects.size(), survey.transects.size());
+  std::vector<std::size_t> index(survey.transects().size(), survey.transects().size());
   std::vector<double> effort;
-  for (std::size_t t = 0; t < survey.transects.size(); ++t) {
-    if (row.stratum && survey.transects[t].stratum != row.stratum) continue;
+  for (std::size_t t = 0; t < survey.transects().size(); ++t) {
+    if (row.stratum && survey.transects()[t].stratum != row.stratum) continue;
     index[t] = effort.size();
-    effort.push_back(survey.transects[t].effort);
+    effort.push_back(survey.transects()[t].effort);
   }
   std::vector<double> counts(effort.size(), 0.0);
   std::vector<double> sizes;
-  for (const auto& o : survey.observations) {
-    if (index[o.transect] == survey.transects.size()) continue;
+  for (const auto& o : survey.observations()) {
+    if (index[o.transect] == survey.transects().size()) continue;
     if (row.species && o.species != *row.species) continue;
     if (o.distance_m > w) continue;
     counts[index[o.transect]] += 1.0;
@@ -92,7 +92,7 @@ RowNumbers row_numbers(const TransectSurvey& survey, const Row& row, const Detec
     }
   }
   const double n_for_density = static_cast<double>(r.n);
-  if (survey.kind == TransectKind::line) {
+  if (survey.kind() == TransectKind::line) {
     r.density = n_for_density * r.mean_size / (2.0 * fit.effective_strip_width_m * r.effort * 1000.0);
   } else {
     r.density = n_for_density * r.mean_size / (r.effort * fit.effective_area_m2);
@@ -104,7 +104,7 @@ double choose_truncation(const TransectSurvey& survey, const TransectOptions& op
   if (!options.bin_edges.empty()) return options.bin_edges.back();
   if (options.truncation.distance_m) return *options.truncation.distance_m;
   std::vector<double> all;
-  for (const auto& o : survey.observations) all.push_back(o.distance_m);
+  for (const auto& o : survey.observations()) all.push_back(o.distance_m);
   if (all.empty()) throw AnalysisError("no detections to fit a detection function to");
   std::sort(all.begin(), all.end());
   if (options.truncation.largest_share) {
@@ -225,38 +225,43 @@ double effort_for_target_cv(double pilot_detections, double pilot_effort, double
   return dispersion / (target_cv * target_cv) * pilot_effort / pilot_detections;
 }
 
-TransectResult analyse_transects(const TransectSurvey& survey, const TransectOptions& options) {
-  if (survey.transects.empty()) throw AnalysisError("no transects");
-  for (const auto& t : survey.transects)
-    if (!(t.effort > 0.0)) throw InputError("transect '" + t.id + "' has no effort (zero length or no visits)");
-  // A survey built in code (not by the reader) keeps the reader's invariants too.
-  for (std::size_t i = 0; i < survey.observations.size(); ++i) {
-    const TransectObservation& o = survey.observations[i];
+TransectSurvey::TransectSurvey(TransectKind kind, std::vector<TransectUnit> transects,
+                               std::vector<TransectObservation> observations)
+    : kind_(kind), transects_(std::move(transects)), observations_(std::move(observations)) {
+  for (const auto& t : transects_)
+    if (!(t.effort > 0.0) || !std::isfinite(t.effort))
+      throw InputError("transect '" + t.id + "' has no effort (zero length or no visits)");
+  for (std::size_t i = 0; i < observations_.size(); ++i) {
+    const TransectObservation& o = observations_[i];
     const std::string which = "observation " + std::to_string(i);
-    if (o.transect >= survey.transects.size())
+    if (o.transect >= transects_.size())
       throw InputError(which + ": transect index " + std::to_string(o.transect) + " but the survey has " +
-                       std::to_string(survey.transects.size()) + " transects");
+                       std::to_string(transects_.size()) + " transects");
     if (!(o.distance_m >= 0.0) || !std::isfinite(o.distance_m))
       throw InputError(which + ": distance must be a finite number of metres >= 0");
     if (!(o.size > 0.0) || !std::isfinite(o.size)) throw InputError(which + ": cluster size must be positive");
   }
+}
+
+TransectResult analyse_transects(const TransectSurvey& survey, const TransectOptions& options) {
+  if (survey.transects().empty()) throw AnalysisError("no transects");
   if (!options.bin_edges.empty()) {
     for (std::size_t k = 1; k < options.bin_edges.size(); ++k)
       if (!(options.bin_edges[k] > options.bin_edges[k - 1]))
         throw InputError("bin_edges must increase strictly", {"bin_edges"});
   }
   TransectResult result;
-  result.kind = survey.kind;
+  result.kind = survey.kind();
   result.unit = options.unit;
   result.confidence = options.confidence;
   const double w = choose_truncation(survey, options);
   result.truncation_m = w;
-  for (const auto& o : survey.observations) result.truncated += o.distance_m > w ? 1u : 0u;
+  for (const auto& o : survey.observations()) result.truncated += o.distance_m > w ? 1u : 0u;
 
   std::set<std::string> species_set;
   std::set<std::string> strata_set;
-  for (const auto& o : survey.observations) species_set.insert(o.species);
-  for (const auto& t : survey.transects)
+  for (const auto& o : survey.observations()) species_set.insert(o.species);
+  for (const auto& t : survey.transects())
     if (t.stratum) strata_set.insert(*t.stratum);
   std::vector<Key> species(species_set.begin(), species_set.end());  // named species first, then all together
   species.push_back(std::nullopt);
@@ -326,11 +331,11 @@ TransectResult analyse_transects(const TransectSurvey& survey, const TransectOpt
     } else {
       // No detections (or one transect): an exact Poisson upper limit on n (Garwood 1936).
       const double upper_n = garwood_interval(numbers.n, options.confidence).upper;
-      const double per_detection =
-          numbers.n > 0
-              ? e.density / static_cast<double>(numbers.n)
-              : (survey.kind == TransectKind::line ? per_unit / (2.0 * fit.effective_strip_width_m * e.effort * 1000.0)
-                                                   : per_unit / (e.effort * fit.effective_area_m2));
+      const double per_detection = numbers.n > 0
+                                       ? e.density / static_cast<double>(numbers.n)
+                                       : (survey.kind() == TransectKind::line
+                                              ? per_unit / (2.0 * fit.effective_strip_width_m * e.effort * 1000.0)
+                                              : per_unit / (e.effort * fit.effective_area_m2));
       e.density_ci = {0.0, upper_n * per_detection};
       e.density_cv = nan_value;
     }
@@ -354,31 +359,32 @@ TransectResult analyse_transects(const TransectSurvey& survey, const TransectOpt
   if (options.bootstrap > 0) {
     // Resample transects with replacement within strata; refit each row's selected model.
     std::map<std::string, std::vector<std::size_t>> by_stratum;
-    for (std::size_t t = 0; t < survey.transects.size(); ++t)
-      by_stratum[survey.transects[t].stratum.value_or("")].push_back(t);
+    for (std::size_t t = 0; t < survey.transects().size(); ++t)
+      by_stratum[survey.transects()[t].stratum.value_or("")].push_back(t);
     std::vector<std::vector<double>> replicates(options.bootstrap, std::vector<double>(rows.size(), nan_value));
     std::mutex progress_mutex;
     std::size_t replicates_done = 0;
     parallel_for(options.bootstrap, options.threads, [&](std::size_t b) {
       Engine engine(derive_seed(options.seed, seed_key({"transect-bootstrap", std::to_string(b)})));
-      TransectSurvey replicate;
-      replicate.kind = survey.kind;
-      std::vector<std::vector<std::size_t>> new_index(survey.transects.size());
+      std::vector<TransectUnit> units;
+      std::vector<TransectObservation> observations;
+      std::vector<std::vector<std::size_t>> new_index(survey.transects().size());
       for (const auto& [stratum, members] : by_stratum) {
         boost::random::uniform_int_distribution<std::size_t> pick(0, members.size() - 1);
         for (std::size_t m = 0; m < members.size(); ++m) {
           const std::size_t t = members[pick(engine)];
-          new_index[t].push_back(replicate.transects.size());
-          replicate.transects.push_back(survey.transects[t]);
+          new_index[t].push_back(units.size());
+          units.push_back(survey.transects()[t]);
         }
       }
-      for (const auto& o : survey.observations) {
+      for (const auto& o : survey.observations()) {
         for (const std::size_t t : new_index[o.transect]) {
           TransectObservation copy = o;
           copy.transect = t;
-          replicate.observations.push_back(copy);
+          observations.push_back(copy);
         }
       }
+      const TransectSurvey replicate(survey.kind(), std::move(units), std::move(observations));
       std::map<Key, std::optional<DetectionFit>> refits;
       for (std::size_t r = 0; r < rows.size(); ++r) {
         const Key fit_key = options.pool_detection ? Key{} : rows[r].species;

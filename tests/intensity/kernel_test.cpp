@@ -130,14 +130,14 @@ TEST(IntensitySurface, EachPlotKeepsItsOwnSpeciesCount) {
   // within the 2% the pixel grid allows; per hectare the same mass divided by 1e4.
   const Survey s = two_plot_survey();
   const std::size_t oak = 1;  // species are sorted: ash, oak
-  ASSERT_EQ(s.species[oak], "oak");
+  ASSERT_EQ(s.species()[oak], "oak");
   const IntensityRaster per_m2 = intensity_surface(s, oak, 1.0, std::nullopt, 4.0);
-  EXPECT_NEAR(mass_in(per_m2, s.plots[0].window), 6.0, 0.12);
-  EXPECT_NEAR(mass_in(per_m2, s.plots[1].window), 3.0, 0.06);
+  EXPECT_NEAR(mass_in(per_m2, s.plots()[0].window), 6.0, 0.12);
+  EXPECT_NEAR(mass_in(per_m2, s.plots()[1].window), 3.0, 0.06);
   const IntensityRaster all = intensity_surface(s, std::nullopt, 1.0, std::nullopt, 4.0);
-  EXPECT_NEAR(mass_in(all, s.plots[0].window), 8.0, 0.16);
+  EXPECT_NEAR(mass_in(all, s.plots()[0].window), 8.0, 0.16);
   const IntensityRaster per_ha = intensity_surface(s, oak, 1e4, std::nullopt, 4.0);
-  EXPECT_NEAR(mass_in(per_ha, s.plots[0].window) / 1e4, 6.0, 0.12);
+  EXPECT_NEAR(mass_in(per_ha, s.plots()[0].window) / 1e4, 6.0, 0.12);
   EXPECT_TRUE(per_m2.warnings.empty());
   // Between the plots there is no window: no value.
   const auto col = static_cast<std::size_t>((50.0 - per_m2.x_min) / per_m2.pixel_m);

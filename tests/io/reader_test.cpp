@@ -66,12 +66,12 @@ TEST(LoadSurvey, ReadsTheDemoGeoPackage) {
   std::ifstream truth_file(sample("generating-values.json"));
   const auto truth = nlohmann::json::parse(truth_file);
   EXPECT_EQ(s.crs.code, "EPSG:32630");
-  EXPECT_EQ(s.survey.plots.size(), 4u);
+  EXPECT_EQ(s.survey.plots().size(), 4u);
   EXPECT_EQ(s.survey.sighting_count(), truth["recorded_sightings"].get<std::size_t>());
-  EXPECT_TRUE(s.survey.assigned_by_attribute);
-  EXPECT_EQ(s.survey.species, (std::vector<std::string>{"birch", "hazel", "juniper", "wood-ant"}));
+  EXPECT_TRUE(s.survey.exclusions().assigned_by_attribute);
+  EXPECT_EQ(s.survey.species(), (std::vector<std::string>{"birch", "hazel", "juniper", "wood-ant"}));
   // Plot areas from the generator's stated geometry (sample-plots/generating-values.json).
-  for (const auto& plot : s.survey.plots)
+  for (const auto& plot : s.survey.plots())
     EXPECT_NEAR(plot.window.area_m2() / 1e4, truth["plot_areas_ha"][plot.id].get<double>(), 1e-9) << plot.id;
 }
 
@@ -97,7 +97,7 @@ TEST(LoadSurvey, ReprojectionMatchesProjThroughGdal) {
   double y = test::number_of(line.substr(line.find(',') + 1));
   ASSERT_TRUE(ct->Transform(1, &x, &y));
   bool found = false;
-  for (const auto& pattern : s.survey.patterns) {
+  for (const auto& pattern : s.survey.patterns()) {
     for (std::size_t i = 0; i < pattern.points.size(); ++i) {
       if (pattern.feature_ids[i] != 1) continue;
       EXPECT_NEAR(pattern.points[i].x, x, 1e-6);
@@ -106,7 +106,7 @@ TEST(LoadSurvey, ReprojectionMatchesProjThroughGdal) {
     }
   }
   EXPECT_TRUE(found);
-  EXPECT_EQ(s.survey.outside_feature_ids.size(), 3u);
+  EXPECT_EQ(s.survey.exclusions().outside_feature_ids.size(), 3u);
 }
 
 TEST(LoadSurvey, ReadsGeoJsonGpxAndKml) {
@@ -119,8 +119,8 @@ TEST(LoadSurvey, ReadsGeoJsonGpxAndKml) {
     o.species_field = field;
     const LoadedSurvey s = load_survey(o);
     EXPECT_EQ(s.survey.sighting_count(), 3u) << driver;
-    EXPECT_EQ(s.survey.patterns[0].points.size(), 3u) << driver << ": all in plot 'north'";
-    EXPECT_EQ(s.survey.species, (std::vector<std::string>{"ash", "oak"})) << driver;
+    EXPECT_EQ(s.survey.patterns()[0].points.size(), 3u) << driver << ": all in plot 'north'";
+    EXPECT_EQ(s.survey.species(), (std::vector<std::string>{"ash", "oak"})) << driver;
   }
 }
 
@@ -156,9 +156,9 @@ TEST(LoadSurvey, ReconcilesPlotsInAnotherCrs) {
   const LoadedSurvey s = load_survey(o);
   EXPECT_EQ(s.crs.code, "EPSG:32630");
   const LoadedSurvey original = load_survey(demo_options(sample("reserve.gpkg")));
-  for (std::size_t i = 0; i < s.survey.plots.size(); ++i) {
-    EXPECT_NEAR(s.survey.plots[i].window.area_m2(), original.survey.plots[i].window.area_m2(), 0.5);
-    EXPECT_EQ(s.survey.patterns[i].points.size(), original.survey.patterns[i].points.size());
+  for (std::size_t i = 0; i < s.survey.plots().size(); ++i) {
+    EXPECT_NEAR(s.survey.plots()[i].window.area_m2(), original.survey.plots()[i].window.area_m2(), 0.5);
+    EXPECT_EQ(s.survey.patterns()[i].points.size(), original.survey.patterns()[i].points.size());
   }
 }
 

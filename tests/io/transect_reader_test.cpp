@@ -40,17 +40,17 @@ TEST(TransectReader, TransectsEffortAndSightingsMatchOgr) {
   lines->ResetReading();
   for (auto& f : *lines)
     km[f->GetFieldAsString("transect")] += f->GetGeometryRef()->toLineString()->get_Length() / 1000.0;
-  ASSERT_EQ(t.survey.transects.size(), km.size());
-  for (const auto& unit : t.survey.transects) {
+  ASSERT_EQ(t.survey.transects().size(), km.size());
+  for (const auto& unit : t.survey.transects()) {
     ASSERT_TRUE(km.count(unit.id)) << unit.id;
     EXPECT_NEAR(unit.effort, km[unit.id], 1e-9) << unit.id;  // one visit each
   }
-  EXPECT_EQ(static_cast<std::int64_t>(t.survey.observations.size()),
+  EXPECT_EQ(static_cast<std::int64_t>(t.survey.observations().size()),
             ds->GetLayerByName("sightings")->GetFeatureCount(TRUE));
-  for (const auto& o : t.survey.observations) {
+  for (const auto& o : t.survey.observations()) {
     EXPECT_GE(o.distance_m, 0.0);
     EXPECT_GE(o.size, 1.0);
-    EXPECT_LT(o.transect, t.survey.transects.size());
+    EXPECT_LT(o.transect, t.survey.transects().size());
   }
   EXPECT_EQ(t.crs.code, "EPSG:32630");
   EXPECT_FALSE(t.transects_label.empty());

@@ -190,6 +190,20 @@ TEST(SummaryFunctions, ThomasProcessMatchesItsKFunction) {
   EXPECT_NEAR(k10, 946.27982, 0.05 * 946.27982);
 }
 
+TEST(SummaryContext, OutlivesTheWindowItWasMadeFrom) {
+  // A context made from a temporary window keeps its own copy (ASan would flag a dangling
+  // one); the curves equal those of a context over a window that is still alive.
+  SummaryOptions o;
+  o.rmax_m = 10.0;
+  o.steps = 4;
+  const SummaryContext from_temporary(Window::rectangle(0, 0, 50, 40), o);
+  const Window alive = Window::rectangle(0, 0, 50, 40);
+  const SummaryContext from_alive(alive, o);
+  const std::vector<Point> points{{5, 5}, {9, 7}, {30, 20}, {44, 33}, {12, 30}};
+  EXPECT_DOUBLE_EQ(from_temporary.window().area_m2(), 2000.0);
+  EXPECT_EQ(summary_functions(points, from_temporary).k, summary_functions(points, from_alive).k);
+}
+
 TEST(SummaryFunctions, CsrCurvesAreTheory) {
   const SummaryCurves c = csr_curves({5.0}, 0.01);
   EXPECT_NEAR(c.nn[0], 0.5440619, 1e-7);  // Source: REFERENCES.md section 6

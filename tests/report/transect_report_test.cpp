@@ -27,12 +27,14 @@ Case simulated() {
   c.input.crs = AnalysisCrs{"EPSG:32630", "WGS 84 / UTM zone 30N", "given by the user", "", 0.0};
   c.input.sightings_label = "hares.gpkg: layer 'sightings'";
   c.input.transects_label = "hares.gpkg: layer 'lines'";
-  c.survey.kind = TransectKind::line;
-  for (int t = 0; t < 8; ++t) c.survey.transects.push_back({"L" + std::to_string(t), std::nullopt, 2.0});
+  std::vector<TransectUnit> lines;
+  std::vector<TransectObservation> observations;
+  for (int t = 0; t < 8; ++t) lines.push_back({"L" + std::to_string(t), std::nullopt, 2.0});
   Engine engine(derive_seed(3, seed_key({"transect-report-test"})));
   boost::random::normal_distribution<double> distance(0.0, 40.0);  // half-normal, sigma 40 m
   for (int i = 0; i < 160; ++i)
-    c.survey.observations.push_back({static_cast<std::size_t>(i % 8), std::abs(distance(engine)), 1.0, "hare"});
+    observations.push_back({static_cast<std::size_t>(i % 8), std::abs(distance(engine)), 1.0, "hare"});
+  c.survey = TransectSurvey(TransectKind::line, std::move(lines), std::move(observations));
   TransectOptions o;
   o.keys = {KeyFunction::half_normal};
   o.adjustments = {Adjustment::none};

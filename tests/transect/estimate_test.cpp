@@ -44,13 +44,13 @@ TEST(EffortPlanning, RuleOfThumb) {
 }
 
 TransectSurvey line_survey(const std::vector<double>& lengths_km, const std::vector<std::vector<double>>& distances) {
-  TransectSurvey s;
-  s.kind = TransectKind::line;
+  std::vector<TransectUnit> transects;
+  std::vector<TransectObservation> observations;
   for (std::size_t t = 0; t < lengths_km.size(); ++t) {
-    s.transects.push_back({"T" + std::to_string(t), std::nullopt, lengths_km[t]});
-    for (const double d : distances[t]) s.observations.push_back({t, d, 1.0, "hare"});
+    transects.push_back({"T" + std::to_string(t), std::nullopt, lengths_km[t]});
+    for (const double d : distances[t]) observations.push_back({t, d, 1.0, "hare"});
   }
-  return s;
+  return {TransectKind::line, std::move(transects), std::move(observations)};
 }
 
 TEST(AnalyseTransects, LineDensityFormula) {
@@ -82,11 +82,12 @@ TEST(AnalyseTransects, PointDensityFormula) {
   // Source: REFERENCES.md §8: D = n E(s) / (k nu); n = 45, k = 30, nu = 2402.8486 m2
   // -> 6.242591 per ha.
   EXPECT_NEAR(45.0 / (30.0 * 2402.8486) * 1e4, 6.242591, 1e-6);
-  TransectSurvey s;
-  s.kind = TransectKind::point;
-  for (int t = 0; t < 30; ++t) s.transects.push_back({"S" + std::to_string(t), std::nullopt, 1.0});
+  std::vector<TransectUnit> stations;
+  std::vector<TransectObservation> observations;
+  for (int t = 0; t < 30; ++t) stations.push_back({"S" + std::to_string(t), std::nullopt, 1.0});
   for (int i = 0; i < 45; ++i)
-    s.observations.push_back({static_cast<std::size_t>(i % 30), 5.0 + std::fmod(i * 7.9, 40.0), 1.0, "wren"});
+    observations.push_back({static_cast<std::size_t>(i % 30), 5.0 + std::fmod(i * 7.9, 40.0), 1.0, "wren"});
+  const TransectSurvey s(TransectKind::point, std::move(stations), std::move(observations));
   TransectOptions o;
   o.keys = {KeyFunction::half_normal};
   o.adjustments = {};
@@ -110,20 +111,20 @@ TEST(AnalyseTransects, PercentTruncationDropsLargestDistances) {
   EXPECT_EQ(r.results.front().n, 90u);
 }
 
-TEST(AnalyseTransects, RefusesZeroEffort) {
-  TransectSurvey s = line_survey({1, 0}, {{1, 2, 3}, {4}});
-  EXPECT_THROW((void)analyse_transects(s, TransectOptions{}), InputError);
+TEST(TransectSurvey, RefusesZeroEffort) {
+  EXPECT_THROW(static_cast<void>(line_survey({1, 0}, {{1, 2, 3}, {4}})), InputError);
+  EXPECT_THROW(static_cast<void>(line_survey({1, std::numeric_limits<double>::infinity()}, {{1}, {4}})), InputError);
 }
 
-TEST(AnalyseTransects, RefusesASurveyBuiltInCodeThatBreaksTheReadersInvariants) {
-  TransectSurvey s;
-  s.transects = {{"T1", std::nullopt, 1.0}};
-  s.observations = {{0, 5.0, 1.0, "hare"}, {3, 5.0, 1.0, "hare"}};  // no transect 3
-  EXPECT_THROW(static_cast<void>(analyse_transects(s, TransectOptions{})), InputError);
-  s.observations = {{0, -1.0, 1.0, "hare"}};
-  EXPECT_THROW(static_cast<void>(analyse_transects(s, TransectOptions{})), InputError);
-  s.observations = {{0, 1.0, 0.0, "hare"}};
-  EXPECT_THROW(static_cast<void>(analyse_transects(s, TransectOptions{})), InputError);
+TEST(TransectSurvey, CanOnlyBeBuiltWhole) {
+  const std::vector<TransectUnit> one{{"T1", std::nullopt, 1.0}};
+  EXPECT_NO_THROW((TransectSurvey{TransectKind::line, one, {{0, 5.0, 1.0, "hare"}}}));
+  // No transect 3.
+  EXPECT_THROW((TransectSurvey{TransectKind::line, one, {{0, 5.0, 1.0, "hare"}, {3, 5.0, 1.0, "hare"}}}), InputError);
+  EXPECT_THROW((TransectSurvey{TransectKind::line, one, {{0, -1.0, 1.0, "hare"}}}), InputError);
+  EXPECT_THROW((TransectSurvey{TransectKind::line, one, {{0, std::nan(""), 1.0, "hare"}}}), InputError);
+  EXPECT_THROW((TransectSurvey{TransectKind::line, one, {{0, 1.0, 0.0, "hare"}}}), InputError);
+  EXPECT_THROW(static_cast<void>(analyse_transects(TransectSurvey{}, TransectOptions{})), AnalysisError);
 }
 
 }  // namespace

@@ -23,22 +23,22 @@ struct Scenario {
 
 // 16 lines of 1.5 km; animals Poisson at `density_km2` within w = 60 m either side.
 TransectSurvey simulate(const DetectionFunction& g, double density_km2, Engine& engine) {
-  TransectSurvey s;
-  s.kind = TransectKind::line;
+  std::vector<TransectUnit> transects;
+  std::vector<TransectObservation> observations;
   const double w = 60.0;
   const double length_km = 1.5;
   boost::random::uniform_real_distribution<double> where(0.0, w);
   boost::random::uniform_real_distribution<double> coin(0.0, 1.0);
   for (std::size_t t = 0; t < 16; ++t) {
-    s.transects.push_back({"L" + std::to_string(t), std::nullopt, length_km});
+    transects.push_back({"L" + std::to_string(t), std::nullopt, length_km});
     boost::random::poisson_distribution<int, double> animals(density_km2 * 2.0 * w * length_km * 1000.0 / 1e6);
     const int n = animals(engine);
     for (int i = 0; i < n; ++i) {
       const double x = where(engine);
-      if (coin(engine) < g.g(x)) s.observations.push_back({t, x, 1.0, "deer"});
+      if (coin(engine) < g.g(x)) observations.push_back({t, x, 1.0, "deer"});
     }
   }
-  return s;
+  return {TransectKind::line, std::move(transects), std::move(observations)};
 }
 
 TEST(TransectRecovery, UnbiasedWithNominalCoverage) {

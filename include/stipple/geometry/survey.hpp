@@ -24,24 +24,44 @@ struct MarkedPattern {
   std::vector<std::int64_t> feature_ids;
 };
 
-/// Sightings assigned to plots. Every sighting read is either in exactly one pattern
-/// or listed among the exclusions: nothing is dropped silently.
-struct Survey {
-  std::vector<std::string> species;                    ///< sorted species names
-  std::vector<Plot> plots;                             ///< in input order
-  std::vector<MarkedPattern> patterns;                 ///< parallel to `plots`
+/// The sightings read but kept out of every pattern, and how plots were decided.
+struct SurveyExclusions {
   std::vector<std::int64_t> outside_feature_ids;       ///< in no plot: excluded
   std::vector<std::int64_t> unknown_plot_feature_ids;  ///< plot attribute names no plot: excluded
   std::vector<std::int64_t> off_window_feature_ids;    ///< kept by attribute, but outside its polygon
   bool assigned_by_attribute = false;                  ///< true when the plot attribute decided
+};
 
+/// Sightings assigned to plots. Every sighting read is either in exactly one pattern
+/// or listed among the exclusions: nothing is dropped silently.
+///
+/// A Survey can only be built whole: one pattern per plot, one mark and one feature id
+/// per point, every mark naming a species, species sorted and distinct, plot ids distinct.
+/// The constructor throws AnalysisError otherwise, and the members cannot be changed
+/// afterwards, so every analysis can rely on them.
+class Survey {
+ public:
+  /// An empty survey: no species, no plots.
+  Survey() = default;
+  Survey(std::vector<std::string> species, std::vector<Plot> plots, std::vector<MarkedPattern> patterns,
+         SurveyExclusions exclusions = {});
+
+  [[nodiscard]] const std::vector<std::string>& species() const noexcept { return species_; }  ///< sorted
+  [[nodiscard]] const std::vector<Plot>& plots() const noexcept { return plots_; }             ///< in input order
+  /// Parallel to plots().
+  [[nodiscard]] const std::vector<MarkedPattern>& patterns() const noexcept { return patterns_; }
+  [[nodiscard]] const SurveyExclusions& exclusions() const noexcept { return exclusions_; }
   [[nodiscard]] std::size_t sighting_count() const;
 
-  /// Throws AnalysisError unless the survey is whole: one pattern per plot, one mark and one
-  /// feature id per point, every mark naming a species, species sorted and distinct, plot
-  /// ids distinct. assign_to_plots always builds such a survey; every analysis checks it,
-  /// so a survey put together in code cannot be analysed half-formed.
-  void check() const;
+  /// The same survey restricted to the plots at `indices` (in that order, each at most
+  /// once); species and exclusions are kept.
+  [[nodiscard]] Survey with_plots(const std::vector<std::size_t>& indices) &&;
+
+ private:
+  std::vector<std::string> species_;
+  std::vector<Plot> plots_;
+  std::vector<MarkedPattern> patterns_;
+  SurveyExclusions exclusions_;
 };
 
 /// Assigns each sighting to a plot: by its plot attribute when it carries one (then a

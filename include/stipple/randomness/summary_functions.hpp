@@ -54,18 +54,19 @@ struct SummaryCurves {
 [[nodiscard]] double default_rmax(const Window& window, std::size_t n);
 
 /// Precomputed, pattern-independent parts (F's test locations and their boundary
-/// distances), so simulations in the same window reuse them.
+/// distances), so simulations in the same window reuse them. Holds its own copy of the
+/// window, so it may outlive the one it was made from.
 class SummaryContext {
  public:
   SummaryContext(const Window& window, SummaryOptions options);
-  [[nodiscard]] const Window& window() const { return *window_; }
+  [[nodiscard]] const Window& window() const { return window_; }
   [[nodiscard]] const SummaryOptions& options() const { return options_; }
   [[nodiscard]] const std::vector<double>& r() const { return r_; }
   [[nodiscard]] const std::vector<Point>& test_locations() const { return test_locations_; }
   [[nodiscard]] const std::vector<double>& test_boundary() const { return test_boundary_; }
 
  private:
-  const Window* window_;
+  Window window_;
   SummaryOptions options_;
   std::vector<double> r_;
   std::vector<Point> test_locations_;

@@ -31,10 +31,24 @@ struct TransectObservation {
   std::string species;
 };
 
-struct TransectSurvey {
-  TransectKind kind = TransectKind::line;
-  std::vector<TransectUnit> transects;
-  std::vector<TransectObservation> observations;
+/// Transects and their detections. Built only whole: every transect has positive finite
+/// effort, every observation names a transect of the survey and has a finite distance
+/// >= 0 and a positive finite cluster size; the constructor throws InputError naming the
+/// transect or observation otherwise, and the members cannot be changed afterwards.
+class TransectSurvey {
+ public:
+  /// An empty survey of line transects (analyse_transects refuses it: no transects).
+  TransectSurvey() = default;
+  TransectSurvey(TransectKind kind, std::vector<TransectUnit> transects, std::vector<TransectObservation> observations);
+
+  [[nodiscard]] TransectKind kind() const noexcept { return kind_; }
+  [[nodiscard]] const std::vector<TransectUnit>& transects() const noexcept { return transects_; }
+  [[nodiscard]] const std::vector<TransectObservation>& observations() const noexcept { return observations_; }
+
+ private:
+  TransectKind kind_ = TransectKind::line;
+  std::vector<TransectUnit> transects_;
+  std::vector<TransectObservation> observations_;
 };
 
 /// Encounter rate n / L with the between-transect variance estimator R2 of Fewster et al.
