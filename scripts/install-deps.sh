@@ -18,6 +18,7 @@ packages=(
   libgtest-dev libgmock-dev        # GoogleTest
   libbenchmark-dev                 # Google Benchmark (bench/)
   python3                          # demo-data generator
+  python3-gdal python3-scipy python3-numpy  # bench/whole_process.py: the GDAL-Python + SciPy reference
   time                             # GNU time: whole-process peak memory in bench/batch_memory.sh
   clang-format clang-tidy          # style and static checks enforced by scripts/lint.sh
   locales                          # localedef: the decimal-comma locale the tests run under

@@ -44,19 +44,140 @@ Window::Window(BgMultiPolygon shape) : shape_(std::move(shape)) {
     add_ring(polygon.outer());
     for (const auto& inner : polygon.inners()) add_ring(inner);
   }
+  build_edge_index();
+}
+
+namespace {
+
+// Windows of this many edges or fewer are scanned edge by edge: an index would not pay.
+constexpr std::size_t indexed_from_edges = 16;
+
+double segment_distance2(const Point& p, const Window::Segment& e) {
+  const double ex = e.b.x - e.a.x;
+  const double ey = e.b.y - e.a.y;
+  const double length2 = ex * ex + ey * ey;
+  double t = length2 > 0.0 ? ((p.x - e.a.x) * ex + (p.y - e.a.y) * ey) / length2 : 0.0;
+  t = std::clamp(t, 0.0, 1.0);
+  const double dx = e.a.x + t * ex - p.x;
+  const double dy = e.a.y + t * ey - p.y;
+  return dx * dx + dy * dy;
+}
+
+std::size_t clamped_cell(double v, double origin, double size, std::size_t count) {
+  const double c = std::floor((v - origin) / size);
+  if (!(c > 0.0)) return 0;
+  return std::min(static_cast<std::size_t>(c), count - 1);
+}
+
+// Compressed lists: for each key (cell or band) the values, from (key, value) pairs given
+// as a count pass and a fill pass over the same generator.
+template <typename ForEachPair>
+void build_lists(std::size_t keys, ForEachPair&& for_each_pair, std::vector<std::uint32_t>& start,
+                 std::vector<std::uint32_t>& values) {
+  start.assign(keys + 1, 0);
+  for_each_pair([&](std::size_t key, std::uint32_t) { ++start[key + 1]; });
+  for (std::size_t k = 0; k < keys; ++k) start[k + 1] += start[k];
+  values.resize(start[keys]);
+  std::vector<std::uint32_t> next(start.begin(), start.end() - 1);
+  for_each_pair([&](std::size_t key, std::uint32_t value) { values[next[key]++] = value; });
+}
+
+}  // namespace
+
+void Window::build_edge_index() {
+  if (edges_.size() <= indexed_from_edges) return;
+  // About two cells per edge, shaped like the bounds; at most 1024 a side.
+  const double w = bounds_.width();
+  const double h = bounds_.height();
+  const double cells = 2.0 * static_cast<double>(edges_.size());
+  grid_nx_ = static_cast<std::size_t>(std::clamp(std::ceil(std::sqrt(cells * w / h)), 1.0, 1024.0));
+  grid_ny_ = static_cast<std::size_t>(std::clamp(std::ceil(cells / static_cast<double>(grid_nx_)), 1.0, 1024.0));
+  cell_w_ = w / static_cast<double>(grid_nx_);
+  cell_h_ = h / static_cast<double>(grid_ny_);
+  const auto cells_of = [this](const Segment& e, auto&& visit) {
+    const std::size_t x0 = clamped_cell(std::min(e.a.x, e.b.x), bounds_.xmin, cell_w_, grid_nx_);
+    const std::size_t x1 = clamped_cell(std::max(e.a.x, e.b.x), bounds_.xmin, cell_w_, grid_nx_);
+    const std::size_t y0 = clamped_cell(std::min(e.a.y, e.b.y), bounds_.ymin, cell_h_, grid_ny_);
+    const std::size_t y1 = clamped_cell(std::max(e.a.y, e.b.y), bounds_.ymin, cell_h_, grid_ny_);
+    for (std::size_t y = y0; y <= y1; ++y) visit(y, x0, x1);
+  };
+  build_lists(
+      grid_nx_ * grid_ny_,
+      [&](auto&& add) {
+        for (std::size_t i = 0; i < edges_.size(); ++i)
+          cells_of(edges_[i], [&](std::size_t y, std::size_t x0, std::size_t x1) {
+            for (std::size_t x = x0; x <= x1; ++x) add(y * grid_nx_ + x, static_cast<std::uint32_t>(i));
+          });
+      },
+      cell_start_, cell_edges_);
+  build_lists(
+      grid_ny_,
+      [&](auto&& add) {
+        for (std::size_t i = 0; i < edges_.size(); ++i)
+          cells_of(edges_[i], [&](std::size_t y, std::size_t, std::size_t) { add(y, static_cast<std::uint32_t>(i)); });
+      },
+      band_start_, band_edges_);
+}
+
+std::size_t Window::band_of(double y) const {
+  return clamped_cell(y, bounds_.ymin, cell_h_, grid_ny_);
+}
+
+template <typename Visit>
+void Window::for_each_edge_near(double xmin, double ymin, double xmax, double ymax, Visit&& visit) const {
+  if (cell_start_.empty()) {
+    for (std::size_t i = 0; i < edges_.size(); ++i) visit(i);
+    return;
+  }
+  const std::size_t x0 = clamped_cell(xmin, bounds_.xmin, cell_w_, grid_nx_);
+  const std::size_t x1 = clamped_cell(xmax, bounds_.xmin, cell_w_, grid_nx_);
+  const std::size_t y0 = clamped_cell(ymin, bounds_.ymin, cell_h_, grid_ny_);
+  const std::size_t y1 = clamped_cell(ymax, bounds_.ymin, cell_h_, grid_ny_);
+  if (xmax < bounds_.xmin || xmin > bounds_.xmax || ymax < bounds_.ymin || ymin > bounds_.ymax) return;
+  std::vector<std::uint32_t> near;
+  for (std::size_t y = y0; y <= y1; ++y)
+    for (std::size_t x = x0; x <= x1; ++x) {
+      const std::size_t c = y * grid_nx_ + x;
+      near.insert(near.end(), cell_edges_.begin() + cell_start_[c], cell_edges_.begin() + cell_start_[c + 1]);
+    }
+  std::sort(near.begin(), near.end());
+  near.erase(std::unique(near.begin(), near.end()), near.end());
+  for (const auto i : near) visit(static_cast<std::size_t>(i));
 }
 
 double Window::boundary_distance(const Point& p) const {
   double best2 = std::numeric_limits<double>::infinity();
-  for (const auto& e : edges_) {
-    const double ex = e.b.x - e.a.x;
-    const double ey = e.b.y - e.a.y;
-    const double length2 = ex * ex + ey * ey;
-    double t = length2 > 0.0 ? ((p.x - e.a.x) * ex + (p.y - e.a.y) * ey) / length2 : 0.0;
-    t = std::clamp(t, 0.0, 1.0);
-    const double dx = e.a.x + t * ex - p.x;
-    const double dy = e.a.y + t * ey - p.y;
-    best2 = std::min(best2, dx * dx + dy * dy);
+  if (cell_start_.empty()) {
+    for (const auto& e : edges_) best2 = std::min(best2, segment_distance2(p, e));
+    return std::sqrt(best2);
+  }
+  // Rings of cells around the point's cell, until no unvisited cell can hold a nearer edge.
+  const auto cx = static_cast<std::ptrdiff_t>(clamped_cell(p.x, bounds_.xmin, cell_w_, grid_nx_));
+  const auto cy = static_cast<std::ptrdiff_t>(clamped_cell(p.y, bounds_.ymin, cell_h_, grid_ny_));
+  const auto nx = static_cast<std::ptrdiff_t>(grid_nx_);
+  const auto ny = static_cast<std::ptrdiff_t>(grid_ny_);
+  const std::ptrdiff_t rings = std::max(nx, ny);
+  for (std::ptrdiff_t k = 0; k <= rings; ++k) {
+    for (std::ptrdiff_t y = cy - k; y <= cy + k; ++y) {
+      if (y < 0 || y >= ny) continue;
+      const bool edge_row = y == cy - k || y == cy + k;
+      for (std::ptrdiff_t x = cx - k; x <= cx + k; x += edge_row ? 1 : 2 * k) {
+        if (x >= 0 && x < nx) {
+          const auto c = static_cast<std::size_t>(y * nx + x);
+          for (std::uint32_t j = cell_start_[c]; j < cell_start_[c + 1]; ++j)
+            best2 = std::min(best2, segment_distance2(p, edges_[cell_edges_[j]]));
+        }
+        if (k == 0) break;
+      }
+    }
+    // Every edge not seen lies in cells outside the visited square (sides beyond the grid
+    // hold none): its distance is at least the point's distance to that square's sides.
+    double reach = std::numeric_limits<double>::infinity();
+    if (cx - k > 0) reach = std::min(reach, p.x - (bounds_.xmin + static_cast<double>(cx - k) * cell_w_));
+    if (cx + k < nx - 1) reach = std::min(reach, bounds_.xmin + static_cast<double>(cx + k + 1) * cell_w_ - p.x);
+    if (cy - k > 0) reach = std::min(reach, p.y - (bounds_.ymin + static_cast<double>(cy - k) * cell_h_));
+    if (cy + k < ny - 1) reach = std::min(reach, bounds_.ymin + static_cast<double>(cy + k + 1) * cell_h_ - p.y);
+    if (reach == std::numeric_limits<double>::infinity() || (reach > 0.0 && best2 <= reach * reach)) break;
   }
   return std::sqrt(best2);
 }
@@ -73,18 +194,21 @@ double Window::circle_fraction_inside(const Point& c, double r) const {
   };
   std::vector<Crossing> crossings;
   crossings.reserve(8);
-  for (const auto& e : edges_) {
+  // Edges whose boxes miss the circle's (with a margin for rounding) cannot cross it.
+  const double margin = 1e-9 * (r + std::abs(c.x) + std::abs(c.y));
+  for_each_edge_near(c.x - r - margin, c.y - r - margin, c.x + r + margin, c.y + r + margin, [&](std::size_t i) {
+    const Segment& e = edges_[i];
     // |a + t (b - a) - c|^2 = r^2, t in [0, 1]
     const double dx = e.b.x - e.a.x;
     const double dy = e.b.y - e.a.y;
     const double fx = e.a.x - c.x;
     const double fy = e.a.y - c.y;
     const double qa = dx * dx + dy * dy;
-    if (qa == 0.0) continue;
+    if (qa == 0.0) return;
     const double qb = 2.0 * (fx * dx + fy * dy);
     const double qc = fx * fx + fy * fy - r * r;
     const double disc = qb * qb - 4.0 * qa * qc;
-    if (disc < 0.0) continue;
+    if (disc < 0.0) return;
     const double root = std::sqrt(disc);
     for (const double t : {(-qb - root) / (2.0 * qa), (-qb + root) / (2.0 * qa)}) {
       if (t < 0.0 || t > 1.0) continue;
@@ -94,7 +218,7 @@ double Window::circle_fraction_inside(const Point& c, double r) const {
       if (angle < 0.0) angle += two_pi;
       crossings.push_back({angle, ux, uy});
     }
-  }
+  });
   if (crossings.empty()) return contains_almost_surely({c.x + r, c.y}) ? 1.0 : 0.0;
   std::sort(crossings.begin(), crossings.end(), [](const Crossing& a, const Crossing& b) { return a.angle < b.angle; });
   double inside = 0.0;
@@ -154,16 +278,37 @@ Window Window::rectangle(double xmin, double ymin, double xmax, double ymax) {
 
 bool Window::contains(const Point& p) const {
   if (p.x < bounds_.xmin || p.x > bounds_.xmax || p.y < bounds_.ymin || p.y > bounds_.ymax) return false;
-  return bg::covered_by(BgPoint(p.x, p.y), shape_);
+  if (band_start_.empty()) return bg::covered_by(BgPoint(p.x, p.y), shape_);
+  // The crossing rule is exact for a point clear of every edge it could cross (those of
+  // its band); one within a micrometre of an edge is decided by covered_by.
+  const double tolerance = 1e-6;
+  const std::size_t band = band_of(p.y);
+  bool inside = false;
+  for (std::uint32_t j = band_start_[band]; j < band_start_[band + 1]; ++j) {
+    const Segment& e = edges_[band_edges_[j]];
+    if (p.x >= std::min(e.a.x, e.b.x) - tolerance && p.x <= std::max(e.a.x, e.b.x) + tolerance &&
+        p.y >= std::min(e.a.y, e.b.y) - tolerance && p.y <= std::max(e.a.y, e.b.y) + tolerance &&
+        segment_distance2(p, e) <= tolerance * tolerance)
+      return bg::covered_by(BgPoint(p.x, p.y), shape_);
+    if ((e.a.y > p.y) != (e.b.y > p.y) && p.x < e.a.x + (p.y - e.a.y) * (e.b.x - e.a.x) / (e.b.y - e.a.y))
+      inside = !inside;
+  }
+  return inside;
 }
 
 bool Window::contains_almost_surely(const Point& p) const {
   if (p.x < bounds_.xmin || p.x > bounds_.xmax || p.y < bounds_.ymin || p.y > bounds_.ymax) return false;
   bool inside = false;
-  for (const auto& e : edges_) {
+  const auto cross = [&](const Segment& e) {
     if ((e.a.y > p.y) != (e.b.y > p.y) && p.x < e.a.x + (p.y - e.a.y) * (e.b.x - e.a.x) / (e.b.y - e.a.y))
       inside = !inside;
+  };
+  if (band_start_.empty()) {
+    for (const auto& e : edges_) cross(e);
+    return inside;
   }
+  const std::size_t band = band_of(p.y);
+  for (std::uint32_t j = band_start_[band]; j < band_start_[band + 1]; ++j) cross(edges_[band_edges_[j]]);
   return inside;
 }
 

@@ -2,6 +2,7 @@
 /// Survey windows: the polygons (with holes, possibly in several parts) inside which
 /// every sighting of a plot was searched for.
 
+#include <cstdint>
 #include <string>
 #include <string_view>
 #include <vector>
@@ -46,7 +47,9 @@ class Window {
   /// Length of all ring boundaries, metres.
   [[nodiscard]] double perimeter_m() const { return perimeter_m_; }
   [[nodiscard]] const Bounds& bounds() const { return bounds_; }
-  /// True when the point lies inside or on the boundary.
+  /// True when the point lies inside or on the boundary. Decided by the crossing rule over
+  /// the edges of the point's band; a point within a micrometre of an edge is left to
+  /// Boost.Geometry's covered_by, so the boundary counts as inside exactly.
   [[nodiscard]] bool contains(const Point& p) const;
   /// True when the point is inside by the even-odd crossing rule over all rings; a point
   /// exactly on the boundary may go either way. Several times faster than contains(): for
@@ -76,12 +79,29 @@ class Window {
 
  private:
   explicit Window(BgMultiPolygon shape);
+  void build_edge_index();
+  // Calls visit(edge index) for the edges whose bounding boxes may meet the box, in
+  // ascending edge order (so sums and crossings come out as over all edges).
+  template <typename Visit>
+  void for_each_edge_near(double xmin, double ymin, double xmax, double ymax, Visit&& visit) const;
+  [[nodiscard]] std::size_t band_of(double y) const;
   BgMultiPolygon shape_;
   double area_m2_ = 0.0;
   double perimeter_m_ = 0.0;
   Bounds bounds_;
   bool is_rectangle_ = false;
   std::vector<Segment> edges_;
+  // Edge index (built for windows of many edges; empty otherwise): a grid of cells over
+  // the bounds, each listing the edges whose bounding box overlaps it, and horizontal
+  // bands (the grid's rows) listing the edges whose y-range overlaps them.
+  std::size_t grid_nx_ = 0;
+  std::size_t grid_ny_ = 0;
+  double cell_w_ = 1.0;
+  double cell_h_ = 1.0;
+  std::vector<std::uint32_t> cell_start_;
+  std::vector<std::uint32_t> cell_edges_;
+  std::vector<std::uint32_t> band_start_;
+  std::vector<std::uint32_t> band_edges_;
 };
 
 /// The Ripley–Rasson estimate of an unknown convex window from the points inside it:
