@@ -21,6 +21,7 @@ struct RandomnessCommandOptions {
   CommonOptions common;
   std::string quadrats = "4x4";
   bool quadrat_monte_carlo = false;
+  bool clark_evans_monte_carlo = false;
   std::string edge_correction;
   std::size_t simulations = 999;
   std::uint64_t seed = default_seed;
@@ -37,6 +38,7 @@ int run_randomness(const RandomnessCommandOptions& o) {
   RandomnessOptions options;
   std::tie(options.quadrat.nx, options.quadrat.ny) = parse_quadrat_grid(o.quadrats);
   options.quadrat.force_monte_carlo = o.quadrat_monte_carlo;
+  options.clark_evans_monte_carlo = o.clark_evans_monte_carlo;
   if (!o.edge_correction.empty()) options.edge_correction = parse_edge_correction(o.edge_correction);
   options.pair_correction = o.pair_correction == "border" ? PairCorrection::border : PairCorrection::isotropic;
   options.distance_correction =
@@ -108,6 +110,9 @@ Action add_randomness_command(CLI::App& app) {
       ->capture_default_str();
   command->add_flag("--quadrat-monte-carlo", o->quadrat_monte_carlo,
                     "Monte Carlo quadrat p-value even when every expected count is 5 or more");
+  command->add_flag("--clark-evans-monte-carlo", o->clark_evans_monte_carlo,
+                    "Monte Carlo Clark-Evans p-value even where its normal law holds (Donnelly n >= 10, border "
+                    "n >= 1000); it comes with the envelopes whenever they run");
   command
       ->add_option("--edge-correction", o->edge_correction,
                    "Clark-Evans edge correction: none, donnelly (rectangles) or border "

@@ -83,7 +83,6 @@ GroupResult analyse_pattern(const std::vector<Point>& points, const Window& wind
   GroupResult g;
   g.n = points.size();
   const std::size_t n = points.size();
-  const double lambda = static_cast<double>(n) / window.area_m2();
 
   if (options.run_quadrat) {
     QuadratOptions q = options.quadrat;
@@ -101,21 +100,31 @@ GroupResult analyse_pattern(const std::vector<Point>& points, const Window& wind
     }
   }
 
+  if (g.quadrat && g.quadrat->monte_carlo_p_value) g.simulations_run = options.simulations;
   if (!options.run_clark_evans && !options.run_envelope) {  // quadrat only
     decide_verdict(g, options.alpha, options.simulations);
     return g;
   }
-  const bool need_simulations = options.simulations > 0;
   const double rmax = options.rmax_m.value_or(default_rmax(window, n));
-  SummaryOptions so;
-  so.rmax_m = rmax;
-  so.steps = options.steps;
-  so.pair_correction = options.pair_correction;
-  so.distance_correction = options.distance_correction;
   g.pair_correction = options.pair_correction;
   g.distance_correction = options.distance_correction;
-  const SummaryContext context(window, so);
-  const SummaryCurves observed = summary_functions(points, context);
+  // Without envelopes only nearest-neighbour and boundary distances are needed: one grid
+  // index per pattern, no summary functions.
+  std::optional<SummaryContext> context;
+  SummaryCurves observed;
+  if (options.run_envelope) {
+    SummaryOptions so;
+    so.rmax_m = rmax;
+    so.steps = options.steps;
+    so.pair_correction = options.pair_correction;
+    so.distance_correction = options.distance_correction;
+    context.emplace(window, so);
+    observed = summary_functions(points, *context);
+  } else {
+    observed.nearest = PointGrid(points).nearest_neighbour_distances();
+    observed.boundary.resize(n);
+    for (std::size_t i = 0; i < n; ++i) observed.boundary[i] = window.boundary_distance(points[i]);
+  }
 
   if (options.run_clark_evans) {
     try {
@@ -125,23 +134,49 @@ GroupResult analyse_pattern(const std::vector<Point>& points, const Window& wind
       g.notes.push_back(std::string("Clark-Evans test not run: ") + e.what());
     }
   }
-  if (g.clark_evans && g.clark_evans->edge_correction == NeighbourEdgeCorrection::border && !need_simulations)
+  // Clark-Evans simulates only where its normal law is doubtful or when asked; when the
+  // envelopes simulate, its Monte Carlo p-value comes with them.
+  const bool clark_evans_simulates =
+      g.clark_evans &&
+      (options.clark_evans_monte_carlo || !clark_evans_normal_holds(g.clark_evans->edge_correction, g.clark_evans->n));
+  const bool need_simulations = options.simulations > 0 && (options.run_envelope || clark_evans_simulates);
+  if (g.clark_evans && g.clark_evans->edge_correction == NeighbourEdgeCorrection::border &&
+      std::isnan(g.clark_evans->p_value) && options.simulations == 0)
     g.notes.push_back(
-        "Clark-Evans with the border method has no p-value without simulations: its normal "
-        "approximation rejects too often (6-11% at nominal 5%); run simulations");
+        "Clark-Evans with the border method has no p-value without simulations below 1000 points: its normal "
+        "approximation rejects too often (8-10% at nominal 5% for n <= 200); run simulations");
+  if (g.clark_evans && !options.run_envelope && !clark_evans_simulates && options.simulations > 0)
+    g.notes.push_back(
+        "Clark-Evans p-value from the normal approximation, which holds its level at this n with the " +
+        std::string(edge_correction_name(g.clark_evans->edge_correction)) +
+        " correction (size at nominal 5% in simulation: " +
+        (g.clark_evans->edge_correction == NeighbourEdgeCorrection::border ? "5.8-6.8% for n >= 1000" : "4.3-5.3%") +
+        "); no simulations were run for it; a Monte Carlo p-value can be requested");
   if (need_simulations) {
-    std::vector<SummaryCurves> simulated(options.simulations);
+    g.simulations_run = options.simulations;
+    std::vector<SummaryCurves> simulated(options.run_envelope ? options.simulations : 0);
     std::vector<double> simulated_ce(options.simulations, std::nan(""));
     const NeighbourEdgeCorrection ce_correction =
         g.clark_evans ? g.clark_evans->edge_correction : NeighbourEdgeCorrection::none;
+    const bool ce_needs_boundary = ce_correction == NeighbourEdgeCorrection::border;
     parallel_for(options.simulations, options.threads, [&](std::size_t s) {
       Engine engine(derive_seed(options.seed, key + seed_key({"csr", std::to_string(s)})));
       const std::vector<Point> pattern = simulate_binomial(window, n, engine);
-      simulated[s] = summary_functions(pattern, context);
-      simulated_ce[s] = clark_evans_mean(simulated[s].nearest, simulated[s].boundary, window, ce_correction);
-      // Release the per-point vectors (clear() would keep their memory): only the curves stay.
-      std::vector<double>().swap(simulated[s].nearest);
-      std::vector<double>().swap(simulated[s].boundary);
+      if (options.run_envelope) {
+        simulated[s] = summary_functions(pattern, *context);
+        simulated_ce[s] = clark_evans_mean(simulated[s].nearest, simulated[s].boundary, window, ce_correction);
+        // Release the per-point vectors (clear() would keep their memory): only the curves stay.
+        std::vector<double>().swap(simulated[s].nearest);
+        std::vector<double>().swap(simulated[s].boundary);
+        return;
+      }
+      const std::vector<double> nearest = PointGrid(pattern).nearest_neighbour_distances();
+      std::vector<double> boundary;
+      if (ce_needs_boundary) {
+        boundary.resize(n);
+        for (std::size_t i = 0; i < n; ++i) boundary[i] = window.boundary_distance(pattern[i]);
+      }
+      simulated_ce[s] = clark_evans_mean(nearest, boundary, window, ce_correction);
     });
     if (g.clark_evans) {
       g.clark_evans->monte_carlo_p_value = monte_carlo_tails(g.clark_evans->mean_distance, simulated_ce).two_sided;
@@ -152,17 +187,23 @@ GroupResult analyse_pattern(const std::vector<Point>& points, const Window& wind
     }
     if (options.run_envelope) {
       g.rmax_m = rmax;
-      const SummaryCurves theory = csr_curves(context.r(), lambda);
+      const double lambda = static_cast<double>(n) / window.area_m2();
+      const SummaryCurves theory = csr_curves(context->r(), lambda);
       for (std::size_t f = 0; f < 6; ++f) {
         std::vector<std::vector<double>> curves;
         curves.reserve(simulated.size());
         for (const auto& sim : simulated) curves.push_back(curve_of(sim, f));
         g.functions.push_back(FunctionEnvelope{
             function_names[f],
-            envelope_test(context.r(), curve_of(observed, f), curve_of(theory, f), curves, options.alpha)});
+            envelope_test(context->r(), curve_of(observed, f), curve_of(theory, f), curves, options.alpha)});
       }
     }
   }
+  if (g.clark_evans && g.clark_evans->edge_correction == NeighbourEdgeCorrection::border &&
+      g.clark_evans->p_value_method == "normal" && (options.run_envelope || options.simulations == 0))
+    g.notes.push_back(
+        "Clark-Evans border method with the normal p-value (n >= 1000): in simulation its size runs about one "
+        "point above nominal (5.8-6.8% at 5%)");
 
   decide_verdict(g, options.alpha, options.simulations);
   return g;
@@ -324,11 +365,29 @@ RandomnessResult analyse_randomness(const Survey& survey, const RandomnessOption
       result.results.push_back(std::move(g));
       step();
     };
+    std::size_t present = 0;
     for (std::size_t s = 0; s < survey.species().size(); ++s) {
       if (by_species[s].empty()) continue;
+      ++present;
       run(by_species[s], survey.species()[s]);
     }
-    run(pattern.points, std::nullopt);
+    if (present == 1 && !pattern.points.empty()) {
+      // All species together are the one species here: repeat its results, computed once.
+      GroupResult all = result.results.back();
+      all.species = std::nullopt;
+      all.notes.push_back("all species together are the one species " + *result.results.back().species +
+                          " in this plot: its results are repeated, not computed again");
+      if (!result.skipped.empty() && result.skipped.back().plot == plot.id &&
+          result.skipped.back().species == result.results.back().species) {
+        SkippedGroup skipped = result.skipped.back();
+        skipped.species = std::nullopt;
+        result.skipped.push_back(std::move(skipped));
+      }
+      result.results.push_back(std::move(all));
+      step();
+    } else {
+      run(pattern.points, std::nullopt);
+    }
     if (!options.run_interactions || options.simulations == 0) continue;
     for (std::size_t s = 0; s < survey.species().size(); ++s) {
       for (std::size_t t = s + 1; t < survey.species().size(); ++t) {

@@ -49,6 +49,15 @@ NeighbourEdgeCorrection default_edge_correction(const Window& window) {
   return window.is_rectangle() ? NeighbourEdgeCorrection::donnelly : NeighbourEdgeCorrection::border;
 }
 
+bool clark_evans_normal_holds(NeighbourEdgeCorrection correction, std::size_t n) {
+  switch (correction) {
+    case NeighbourEdgeCorrection::donnelly: return n >= 10;
+    case NeighbourEdgeCorrection::border: return n >= 1000;
+    case NeighbourEdgeCorrection::none: return false;
+  }
+  return false;
+}
+
 double clark_evans_mean(const std::vector<double>& nearest, const std::vector<double>& boundary, const Window& window,
                         NeighbourEdgeCorrection correction) {
   const double w =
@@ -107,8 +116,10 @@ ClarkEvansResult clark_evans(const std::vector<double>& nearest, const std::vect
   r.normal_p_value = 2.0 * boost::math::cdf(boost::math::complement(standard, std::abs(r.z)));
   r.p_value = r.normal_p_value;
   if (r.edge_correction == NeighbourEdgeCorrection::border) {
-    r.p_value = std::numeric_limits<double>::quiet_NaN();
-    r.p_value_method = "none";
+    if (!clark_evans_normal_holds(r.edge_correction, n)) {
+      r.p_value = std::numeric_limits<double>::quiet_NaN();
+      r.p_value_method = "none";
+    }
   }
   return r;
 }

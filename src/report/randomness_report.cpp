@@ -109,6 +109,7 @@ Json randomness_group_record(const GroupResult& g) {
   } else {
     j["envelope"] = nullptr;
   }
+  j["simulations_run"] = g.simulations_run;
   j["verdict"] = g.verdict;
   j["verdict_basis"] = g.verdict_basis;
   j["notes"] = g.notes;
@@ -281,8 +282,15 @@ std::string randomness_table(const InputFacts& input, const RandomnessResult& re
   out << "  sightings: " << input.sightings_label << "\n";
   if (!input.plots_label.empty()) out << "  plots:     " << input.plots_label << "\n";
   out << "  CRS:       " << input.crs.code << " (" << input.crs.name << "); " << crs_area_note(input.crs) << "\n";
-  out << "  " << result.simulations << " CSR simulations (binomial process, same n and window), seed " << result.seed
-      << ", alpha " << format_general(result.alpha) << "\n\n";
+  const bool simulated =
+      !result.interactions.empty() || std::any_of(result.results.begin(), result.results.end(),
+                                                  [](const GroupResult& g) { return g.simulations_run > 0; });
+  if (simulated)
+    out << "  " << result.simulations << " CSR simulations (binomial process, same n and window), seed " << result.seed
+        << ", alpha " << format_general(result.alpha) << "\n\n";
+  else
+    out << "  no CSR simulations were needed (the tests run used their normal or chi-square laws; see notes), alpha "
+        << format_general(result.alpha) << "\n\n";
   write_groups_table(out, result);
   write_departures(out, result);
   if (!result.interactions.empty()) write_interactions(out, result);

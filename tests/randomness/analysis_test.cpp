@@ -9,6 +9,7 @@
 #include <boost/random/uniform_real_distribution.hpp>
 
 #include "stipple/simulate/engine.hpp"
+#include "stipple/simulate/point_process.hpp"
 
 namespace stipple {
 namespace {
@@ -70,6 +71,88 @@ TEST(AnalyseRandomness, OnlyRunsWhatWasAskedFor) {
     EXPECT_TRUE(g.clark_evans);
   }
   EXPECT_TRUE(r.interactions.empty());
+}
+
+// An L-shaped 1 ha window: not a rectangle, so Clark-Evans uses the border method.
+Window l_window() {
+  BgMultiPolygon shape;
+  BgPolygon p;
+  for (const auto& [x, y] :
+       std::vector<std::pair<double, double>>{{0, 0}, {0, 120}, {60, 120}, {60, 60}, {110, 60}, {110, 0}, {0, 0}})
+    p.outer().push_back(BgPoint(x, y));
+  shape.push_back(p);
+  return Window::from_polygons(shape, "L");
+}
+
+RandomnessOptions clark_evans_only() {
+  RandomnessOptions o;
+  o.simulations = 99;
+  o.run_envelope = false;
+  o.run_interactions = false;
+  o.run_quadrat = false;
+  return o;
+}
+
+TEST(AnalysePattern, ClarkEvansAloneSimulatesOnlyWhereItsNormalLawIsDoubtful) {
+  Engine engine(derive_seed(3, seed_key({"ce-only"})));
+  const Window rectangle = Window::rectangle(0, 0, 100, 100);
+  // Donnelly, n = 50: the normal law holds (clark_evans_normal_holds), no simulation.
+  const auto fifty = simulate_binomial(rectangle, 50, engine);
+  const GroupResult donnelly = analyse_pattern(fifty, rectangle, clark_evans_only(), "k");
+  ASSERT_TRUE(donnelly.clark_evans);
+  EXPECT_EQ(donnelly.simulations_run, 0U);
+  EXPECT_FALSE(donnelly.clark_evans->monte_carlo_p_value);
+  EXPECT_EQ(donnelly.clark_evans->p_value, donnelly.clark_evans->normal_p_value);
+  EXPECT_EQ(donnelly.verdict_basis, "Clark-Evans test");
+  EXPECT_FALSE(donnelly.notes.empty());  // says the normal law was used
+  // Asked for: the Monte Carlo p-value, from the same simulations the envelopes would run.
+  RandomnessOptions asked = clark_evans_only();
+  asked.clark_evans_monte_carlo = true;
+  const GroupResult monte_carlo = analyse_pattern(fifty, rectangle, asked, "k");
+  EXPECT_EQ(monte_carlo.simulations_run, 99U);
+  ASSERT_TRUE(monte_carlo.clark_evans->monte_carlo_p_value);
+  RandomnessOptions full;
+  full.simulations = 99;
+  full.run_interactions = false;
+  const GroupResult with_envelopes = analyse_pattern(fifty, rectangle, full, "k");
+  EXPECT_EQ(*monte_carlo.clark_evans->monte_carlo_p_value, *with_envelopes.clark_evans->monte_carlo_p_value);
+  EXPECT_EQ(monte_carlo.clark_evans->mean_distance, with_envelopes.clark_evans->mean_distance);
+
+  // Border, n = 50: doubtful, so it simulates by default and reports the Monte Carlo p-value.
+  const Window l = l_window();
+  const auto few = simulate_binomial(l, 50, engine);
+  const GroupResult border_few = analyse_pattern(few, l, clark_evans_only(), "k");
+  EXPECT_EQ(border_few.clark_evans->edge_correction, NeighbourEdgeCorrection::border);
+  EXPECT_EQ(border_few.simulations_run, 99U);
+  EXPECT_EQ(border_few.clark_evans->p_value_method, "monte-carlo");
+  // Border, n = 1500: the normal p-value, with its caveat.
+  const auto many = simulate_binomial(l, 1500, engine);
+  const GroupResult border_many = analyse_pattern(many, l, clark_evans_only(), "k");
+  EXPECT_EQ(border_many.simulations_run, 0U);
+  EXPECT_EQ(border_many.clark_evans->p_value_method, "normal");
+  EXPECT_EQ(border_many.clark_evans->p_value, border_many.clark_evans->normal_p_value);
+}
+
+TEST(AnalyseRandomness, APlotOfOneSpeciesComputesItsGroupOnceAndRepeatsItForAllSpecies) {
+  Engine engine(derive_seed(4, seed_key({"one-species"})));
+  const Window w = Window::rectangle(0, 0, 80, 80);
+  std::vector<Sighting> s;
+  std::int64_t id = 0;
+  for (const auto& p : simulate_binomial(w, 60, engine)) s.push_back({p, ++id, "sedge", std::nullopt});
+  RandomnessOptions o;
+  o.simulations = 39;
+  const RandomnessResult r = analyse_randomness(assign_to_plots(s, {Plot{"fen", w}}), o);
+  ASSERT_EQ(r.results.size(), 2U);
+  const GroupResult& sedge = r.results[0];
+  const GroupResult& all = r.results[1];
+  EXPECT_EQ(sedge.species, "sedge");
+  EXPECT_FALSE(all.species);
+  EXPECT_EQ(all.n, sedge.n);
+  EXPECT_EQ(all.l_envelope()->dclf_p_value, sedge.l_envelope()->dclf_p_value);
+  EXPECT_EQ(all.clark_evans->ratio, sedge.clark_evans->ratio);
+  EXPECT_EQ(all.verdict, sedge.verdict);
+  ASSERT_FALSE(all.notes.empty());
+  EXPECT_NE(all.notes.back().find("repeated"), std::string::npos);
 }
 
 }  // namespace

@@ -115,6 +115,30 @@ TEST(Calibration, ClarkEvansBorderReportsACalibratedPValue) {
   EXPECT_EQ(g.verdict, "undetermined");
 }
 
+TEST(Calibration, ClarkEvansBorderNormalLawHoldsBradleysLiberalBoundsFromAThousandPoints) {
+  // clark_evans_normal_holds: from n = 1000 the border method reports its normal p-value,
+  // whose size must lie within Bradley's (1978) liberal bounds, 0.5 alpha to 1.5 alpha
+  // (2.5% to 7.5% at 5%). bench/clark_evans_size.cpp measured 5.8-6.8%; 2000 patterns at
+  // 6.1% give 122 +- 11 rejections, so the bounds [50, 150] fail by chance with
+  // probability about 0.005 (binomial, common practice).
+  const Window w = Window::rectangle(0, 0, 300, 200);
+  RandomnessOptions o = quick_options();
+  o.run_quadrat = false;
+  o.run_envelope = false;
+  o.run_interactions = false;
+  o.edge_correction = NeighbourEdgeCorrection::border;
+  int rejected = 0;
+  for (int p = 0; p < 2000; ++p) {
+    Engine engine(derive_seed(2026, "ce-border-normal/" + std::to_string(p)));
+    const GroupResult g = analyse_pattern(simulate_binomial(w, 1000, engine), w, o, "unused");
+    ASSERT_EQ(g.clark_evans->p_value_method, "normal");
+    ASSERT_EQ(g.simulations_run, 0U);
+    rejected += g.clark_evans->p_value < 0.05 ? 1 : 0;
+  }
+  EXPECT_GE(rejected, 50);
+  EXPECT_LE(rejected, 150);
+}
+
 TEST(MonteCarlo, TooFewSimulationsLeaveTheVerdictUndetermined) {
   // Hope (1968): the smallest Monte Carlo p-value is 1 / (N + 1) one-sided, 2 / (N + 1)
   // two-sided; rejecting at p < alpha needs N >= 20 (one-sided) or 40 (two-sided) at 0.05.

@@ -96,5 +96,14 @@ TEST(ClarkEvans, DefaultsPerWindowShape) {
   EXPECT_THROW((void)parse_edge_correction("toroidal"), InputError);
 }
 
+TEST(ClarkEvans, NormalLawRuleFollowsTheSizeStudy) {
+  // The rule of clark_evans_normal_holds, from bench/clark_evans_size.cpp (see its doc).
+  EXPECT_FALSE(clark_evans_normal_holds(NeighbourEdgeCorrection::donnelly, 9));
+  EXPECT_TRUE(clark_evans_normal_holds(NeighbourEdgeCorrection::donnelly, 10));
+  EXPECT_FALSE(clark_evans_normal_holds(NeighbourEdgeCorrection::border, 999));
+  EXPECT_TRUE(clark_evans_normal_holds(NeighbourEdgeCorrection::border, 1000));
+  EXPECT_FALSE(clark_evans_normal_holds(NeighbourEdgeCorrection::none, 1000000));
+}
+
 }  // namespace
 }  // namespace stipple

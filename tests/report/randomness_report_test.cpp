@@ -30,6 +30,7 @@ Case by_hand() {
   g.plot = "east paddock";
   g.species = "meadow ant";
   g.n = 48;
+  g.simulations_run = 199;
   QuadratResult q;
   q.nx = q.ny = 4;
   q.cells_used = 16;
@@ -86,6 +87,15 @@ TEST(RandomnessReport, TableAndCsvShowTheValuesAndExplainTheirAbbreviations) {
   EXPECT_EQ(header.rfind("plot,species,n,", 0), 0u) << header;
   EXPECT_NE(csv.find("east paddock,meadow ant,48,"), std::string::npos) << csv;
   EXPECT_NE(csv.find("1.3127"), std::string::npos) << csv;
+}
+
+TEST(RandomnessReport, TheHeaderSaysWhenNoTestNeededSimulations) {
+  Case c = by_hand();
+  c.result.results[0].simulations_run = 0;
+  const std::string table = randomness_table(c.input, c.result);
+  EXPECT_EQ(table.find("199 CSR simulations"), std::string::npos) << table;
+  EXPECT_NE(table.find("no CSR simulations were needed"), std::string::npos) << table;
+  EXPECT_EQ(nlohmann::json::parse(randomness_json(c.input, c.result))["results"][0]["simulations_run"], 0);
 }
 
 }  // namespace

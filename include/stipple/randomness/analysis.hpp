@@ -33,6 +33,9 @@ struct RandomnessOptions {
   bool run_clark_evans = true;
   bool run_envelope = true;
   bool run_interactions = true;
+  /// Monte Carlo Clark-Evans p-value even where its normal law holds
+  /// (clark_evans_normal_holds); it is computed anyway whenever the envelopes simulate.
+  bool clark_evans_monte_carlo = false;
   std::size_t min_points = 3;  ///< smaller groups get no test (listed as skipped)
   /// Below this many sightings a test that does not reject says `too few to tell`, not
   /// `random`: no CSR test has useful power there (README "Randomness", power table).
@@ -51,6 +54,9 @@ struct GroupResult {
   std::string plot;
   std::optional<std::string> species;  ///< empty = all species together
   std::size_t n = 0;
+  /// CSR simulations this group ran: the requested number, or 0 where no test needed them
+  /// (Clark-Evans alone where its normal law holds, quadrat test by chi-square).
+  std::size_t simulations_run = 0;
   std::optional<QuadratResult> quadrat;
   std::optional<ClarkEvansResult> clark_evans;
   std::optional<double> rmax_m;

@@ -35,10 +35,8 @@ struct ClarkEvansResult {
   double ratio = 0.0;  ///< R = r-bar / expected
   double z = 0.0;
   double normal_p_value = 1.0;  ///< two-sided, from the normal law of z
-  /// The p-value to report. Normal (= normal_p_value) for none and Donnelly. For the border
-  /// method the normal law is anti-conservative (size 6-11% at nominal 5% in simulation:
-  /// the reference points' distances are correlated and n is small), so p_value is NaN here
-  /// and the analysis fills it with the Monte Carlo p-value when simulations run.
+  /// The p-value to report: normal (= normal_p_value) where clark_evans_normal_holds(),
+  /// else NaN, and the analysis fills it with the Monte Carlo p-value when simulations run.
   double p_value = 1.0;
   std::string p_value_method = "normal";  ///< normal | monte-carlo | none
   NeighbourEdgeCorrection edge_correction = NeighbourEdgeCorrection::none;
@@ -58,6 +56,18 @@ struct ClarkEvansResult {
 /// note. Throws AnalysisError with fewer than 2 points or no reference point.
 [[nodiscard]] ClarkEvansResult clark_evans(const std::vector<double>& nearest, const std::vector<double>& boundary,
                                            const Window& window, std::optional<NeighbourEdgeCorrection> requested);
+
+/// Whether the normal law of z holds the test's level well enough to report its p-value
+/// without simulations. The rule, from the size of the normal test under CSR
+/// (bench/clark_evans_size.cpp, 4,000 binomial patterns per n, rejection rate at nominal 5%):
+/// - Donnelly (rectangles): 4.3-5.3% for every n from 10 to 10,000: holds for n >= 10.
+/// - border: 8-10% for n <= 200, 6.7% at 500, 5.8-6.8% from 1,000 to 10,000 (z has SD
+///   about 1.05: the reference points' distances are positively correlated, which the
+///   Clark-Evans standard error ignores): holds for n >= 1,000 by Bradley's (1978) liberal
+///   criterion (size within 0.5 alpha to 1.5 alpha), and the note says it runs about one
+///   point above nominal.
+/// - none: never (edge effects bias the mean distance upward, more so as n grows).
+[[nodiscard]] bool clark_evans_normal_holds(NeighbourEdgeCorrection correction, std::size_t n);
 
 /// The statistic the Monte Carlo test compares: the mean nearest-neighbour distance over
 /// the reference points of the chosen correction (NaN when there is none).
