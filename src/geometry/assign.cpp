@@ -1,5 +1,7 @@
 #include <algorithm>
+#include <limits>
 #include <map>
+#include <numeric>
 #include <set>
 
 #include <boost/geometry.hpp>
@@ -87,45 +89,172 @@ Survey Survey::with_plots(const std::vector<std::size_t>& indices) && {
   return {std::move(species_), std::move(plots), std::move(patterns), std::move(exclusions_)};
 }
 
+void SightingTable::add(const Sighting& sighting) {
+  const auto code_of = [](std::vector<std::string>& names, const std::string& name) {
+    const auto found = std::find(names.begin(), names.end(), name);
+    if (found != names.end()) return static_cast<std::uint32_t>(found - names.begin());
+    names.push_back(name);
+    return static_cast<std::uint32_t>(names.size() - 1);
+  };
+  locations.push_back(sighting.location);
+  feature_ids.push_back(sighting.feature_id);
+  species.push_back(code_of(species_names, sighting.species));
+  if (sighting.plot && !sighting.plot->empty()) {
+    if (plots.size() < locations.size() - 1) plots.resize(locations.size() - 1, 0);
+    plots.push_back(code_of(plot_names, *sighting.plot) + 1);
+  } else if (!plots.empty()) {
+    plots.push_back(0);
+  }
+}
+
+void SightingTable::check() const {
+  const std::size_t n = locations.size();
+  if (feature_ids.size() != n || species.size() != n || (!plots.empty() && plots.size() != n))
+    throw AnalysisError("a sighting table needs a feature id, a species and (when any) a plot code for every sighting");
+  for (const auto c : species)
+    if (c >= species_names.size()) throw AnalysisError("a sighting table's species code names no species");
+  for (const auto c : plots)
+    if (c > plot_names.size()) throw AnalysisError("a sighting table's plot code names no plot");
+  for (const auto& name : plot_names)
+    if (name.empty()) throw AnalysisError("a sighting table's plot names must not be empty");
+}
+
+namespace {
+
+// Candidate plots of a location: a grid over the plots' bounding boxes, each cell listing,
+// in input order, the plots whose boxes overlap it.
+class PlotLocator {
+ public:
+  explicit PlotLocator(const std::vector<Plot>& plots) : plots_(plots) {
+    if (plots.empty()) return;
+    bounds_ = plots.front().window.bounds();
+    for (const auto& p : plots) {
+      const Bounds& b = p.window.bounds();
+      bounds_ = {std::min(bounds_.xmin, b.xmin), std::min(bounds_.ymin, b.ymin), std::max(bounds_.xmax, b.xmax),
+                 std::max(bounds_.ymax, b.ymax)};
+    }
+    const double cells = 4.0 * static_cast<double>(plots.size());
+    const double w = std::max(bounds_.width(), 1e-9);
+    const double h = std::max(bounds_.height(), 1e-9);
+    nx_ = static_cast<std::size_t>(std::clamp(std::ceil(std::sqrt(cells * w / h)), 1.0, 2048.0));
+    ny_ = static_cast<std::size_t>(std::clamp(std::ceil(cells / static_cast<double>(nx_)), 1.0, 2048.0));
+    cell_w_ = w / static_cast<double>(nx_);
+    cell_h_ = h / static_cast<double>(ny_);
+    std::vector<std::vector<std::uint32_t>> lists(nx_ * ny_);
+    for (std::size_t i = 0; i < plots.size(); ++i) {
+      const Bounds& b = plots[i].window.bounds();
+      for (std::size_t y = cell(b.ymin, bounds_.ymin, cell_h_, ny_); y <= cell(b.ymax, bounds_.ymin, cell_h_, ny_); ++y)
+        for (std::size_t x = cell(b.xmin, bounds_.xmin, cell_w_, nx_); x <= cell(b.xmax, bounds_.xmin, cell_w_, nx_);
+             ++x)
+          lists[y * nx_ + x].push_back(static_cast<std::uint32_t>(i));
+    }
+    start_.push_back(0);
+    for (const auto& l : lists) {
+      entries_.insert(entries_.end(), l.begin(), l.end());
+      start_.push_back(static_cast<std::uint32_t>(entries_.size()));
+    }
+  }
+
+  // The first plot, in input order, whose window contains the point (boundary inclusive);
+  // plots.size() when none does.
+  [[nodiscard]] std::size_t find(const Point& p) const {
+    if (start_.empty() || p.x < bounds_.xmin || p.x > bounds_.xmax || p.y < bounds_.ymin || p.y > bounds_.ymax)
+      return plots_.size();
+    const std::size_t c = cell(p.y, bounds_.ymin, cell_h_, ny_) * nx_ + cell(p.x, bounds_.xmin, cell_w_, nx_);
+    for (std::uint32_t k = start_[c]; k < start_[c + 1]; ++k)
+      if (plots_[entries_[k]].window.contains(p)) return entries_[k];
+    return plots_.size();
+  }
+
+ private:
+  static std::size_t cell(double v, double origin, double size, std::size_t count) {
+    const double c = std::floor((v - origin) / size);
+    if (!(c > 0.0)) return 0;
+    return std::min(static_cast<std::size_t>(c), count - 1);
+  }
+  const std::vector<Plot>& plots_;
+  Bounds bounds_;
+  std::size_t nx_ = 1;
+  std::size_t ny_ = 1;
+  double cell_w_ = 1.0;
+  double cell_h_ = 1.0;
+  std::vector<std::uint32_t> start_;
+  std::vector<std::uint32_t> entries_;
+};
+
+}  // namespace
+
 Survey assign_to_plots(const std::vector<Sighting>& sightings, std::vector<Plot> plots) {
+  SightingTable table;
+  for (const auto& s : sightings) table.add(s);
+  return assign_to_plots(table, std::move(plots));
+}
+
+Survey assign_to_plots(const SightingTable& sightings, std::vector<Plot> plots) {
+  sightings.check();
   check_plots(plots);
-  std::set<std::string> names;
-  for (const auto& s : sightings) names.insert(s.species);
-  std::vector<std::string> species(names.begin(), names.end());
-  std::map<std::string, std::size_t> species_index;
-  for (std::size_t i = 0; i < species.size(); ++i) species_index[species[i]] = i;
+  // Species sorted by name; codes remapped to their sorted positions.
+  std::vector<std::uint32_t> by_name(sightings.species_names.size());
+  std::iota(by_name.begin(), by_name.end(), 0U);
+  std::sort(by_name.begin(), by_name.end(),
+            [&](std::uint32_t a, std::uint32_t b) { return sightings.species_names[a] < sightings.species_names[b]; });
+  std::vector<std::string> species;
+  std::vector<std::size_t> sorted_index(by_name.size());
+  for (const auto code : by_name) {
+    if (!species.empty() && species.back() == sightings.species_names[code])
+      throw AnalysisError("a sighting table's species names must be distinct");
+    sorted_index[code] = species.size();
+    species.push_back(sightings.species_names[code]);
+  }
+  // Plot attribute codes -> plot index (plots.size() when the id names no plot).
   std::map<std::string, std::size_t> plot_index;
   for (std::size_t i = 0; i < plots.size(); ++i) plot_index[plots[i].id] = i;
+  std::vector<std::size_t> attribute_plot(sightings.plot_names.size(), plots.size());
+  for (std::size_t k = 0; k < sightings.plot_names.size(); ++k)
+    if (const auto found = plot_index.find(sightings.plot_names[k]); found != plot_index.end())
+      attribute_plot[k] = found->second;
 
-  std::vector<MarkedPattern> patterns(plots.size());
+  // Pass 1: each sighting's plot (or its exclusion), and the size of every pattern.
+  constexpr auto excluded_mark = std::numeric_limits<std::uint32_t>::max();
+  const PlotLocator locator(plots);
   SurveyExclusions excluded;
-  for (const auto& s : sightings) {
-    std::size_t target = plots.size();
-    if (s.plot && !s.plot->empty()) {
+  std::vector<std::uint32_t> target(sightings.size(), excluded_mark);
+  std::vector<std::size_t> sizes(plots.size(), 0);
+  for (std::size_t i = 0; i < sightings.size(); ++i) {
+    const Point& p = sightings.locations[i];
+    std::size_t t = plots.size();
+    const std::uint32_t code = sightings.plots.empty() ? 0 : sightings.plots[i];
+    if (code != 0) {
       excluded.assigned_by_attribute = true;
-      const auto found = plot_index.find(*s.plot);
-      if (found == plot_index.end()) {
-        excluded.unknown_plot_feature_ids.push_back(s.feature_id);
+      t = attribute_plot[code - 1];
+      if (t == plots.size()) {
+        excluded.unknown_plot_feature_ids.push_back(sightings.feature_ids[i]);
         continue;
       }
-      target = found->second;
-      if (!plots[target].window.contains(s.location)) excluded.off_window_feature_ids.push_back(s.feature_id);
+      if (!plots[t].window.contains(p)) excluded.off_window_feature_ids.push_back(sightings.feature_ids[i]);
     } else {
-      for (std::size_t i = 0; i < plots.size(); ++i) {
-        if (plots[i].window.contains(s.location)) {
-          target = i;
-          break;
-        }
-      }
-      if (target == plots.size()) {
-        excluded.outside_feature_ids.push_back(s.feature_id);
+      t = locator.find(p);
+      if (t == plots.size()) {
+        excluded.outside_feature_ids.push_back(sightings.feature_ids[i]);
         continue;
       }
     }
-    auto& pattern = patterns[target];
-    pattern.points.push_back(s.location);
-    pattern.marks.push_back(species_index.at(s.species));
-    pattern.feature_ids.push_back(s.feature_id);
+    target[i] = static_cast<std::uint32_t>(t);
+    ++sizes[t];
+  }
+  // Pass 2: fill the patterns, each in sighting order.
+  std::vector<MarkedPattern> patterns(plots.size());
+  for (std::size_t t = 0; t < plots.size(); ++t) {
+    patterns[t].points.reserve(sizes[t]);
+    patterns[t].marks.reserve(sizes[t]);
+    patterns[t].feature_ids.reserve(sizes[t]);
+  }
+  for (std::size_t i = 0; i < sightings.size(); ++i) {
+    if (target[i] == excluded_mark) continue;
+    MarkedPattern& pattern = patterns[target[i]];
+    pattern.points.push_back(sightings.locations[i]);
+    pattern.marks.push_back(sorted_index[sightings.species[i]]);
+    pattern.feature_ids.push_back(sightings.feature_ids[i]);
   }
   return {std::move(species), std::move(plots), std::move(patterns), std::move(excluded)};
 }

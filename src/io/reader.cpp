@@ -6,9 +6,11 @@
 #include <functional>
 #include <locale>
 #include <map>
+#include <numeric>
 #include <set>
 #include <sstream>
 #include <tuple>
+#include <unordered_map>
 
 #include <cpl_error.h>
 #include <cpl_string.h>
@@ -81,19 +83,27 @@ std::string csv_coordinate_text(OGRFeature& feature, const SurveyReadOptions& op
   return ": coordinates must be finite numbers (" + text + ")";
 }
 
-struct RawSighting {
-  double x = 0.0;
-  double y = 0.0;
-  GIntBig fid = 0;
-  std::string species;
-  std::optional<std::string> plot;
-};
-
+// The sightings as read: columns in the layer's own CRS until projected in place.
 struct SightingLayer {
   std::string label;
   OGRSpatialReference crs;
-  std::vector<RawSighting> rows;
+  SightingTable table;
   std::string plot_attribute;  // the sightings' plot field, when assignment may use it
+};
+
+// Codes names in order of first appearance.
+class NameCoder {
+ public:
+  explicit NameCoder(std::vector<std::string>& names) : names_(names) {}
+  std::uint32_t operator()(const std::string& name) {
+    const auto [where, added] = codes_.try_emplace(name, static_cast<std::uint32_t>(names_.size()));
+    if (added) names_.push_back(name);
+    return where->second;
+  }
+
+ private:
+  std::vector<std::string>& names_;
+  std::unordered_map<std::string, std::uint32_t> codes_;
 };
 
 std::string quoted_list(const std::set<std::string>& names, std::size_t shown = 5) {
@@ -159,6 +169,16 @@ SightingLayer read_sightings(const SurveyReadOptions& options, LoadedSurvey& loa
   TextDecoder decode(options.encoding);
   std::map<std::string, std::set<std::string>> species_forms;  // lower-case trimmed -> as written
   std::set<std::string> seen_forms;
+  SightingTable& table = out.table;
+  if (const GIntBig count = layer.GetFeatureCount(FALSE); count > 0) {
+    const auto n = static_cast<std::size_t>(count);
+    table.locations.reserve(n);
+    table.feature_ids.reserve(n);
+    table.species.reserve(n);
+  }
+  NameCoder species_code(table.species_names);
+  NameCoder plot_code(table.plot_names);
+  std::string written;
   const LayerScan scan = scan_layer(layer, out.label, csv, [&](OGRFeature& feature) {
     const GIntBig fid = feature.GetFID();
     const OGRGeometry* geometry = feature.GetGeometryRef();
@@ -175,22 +195,28 @@ SightingLayer read_sightings(const SurveyReadOptions& options, LoadedSurvey& loa
       throw InputError(feature_label(out.label, fid) + ": geometry is " +
                        OGRGeometryTypeToName(geometry->getGeometryType()) + "; sightings must be single points");
     }
-    RawSighting row;
-    row.x = point->getX();
-    row.y = point->getY();
-    row.fid = fid;
-    if (!std::isfinite(row.x) || !std::isfinite(row.y))
+    const double x = point->getX();
+    const double y = point->getY();
+    if (!std::isfinite(x) || !std::isfinite(y))
       throw InputError(feature_label(out.label, fid) + ": coordinate is NaN or infinite");
-    check_coordinate(row.x, row.y, out.crs, feature_label(out.label, fid));
+    check_coordinate(x, y, out.crs, feature_label(out.label, fid));
+    std::string species;
     if (species_index >= 0 && feature.IsFieldSetAndNotNull(species_index)) {
-      std::string written = decode(feature.GetFieldAsString(species_index));
+      written = decode(feature.GetFieldAsString(species_index));
       if (seen_forms.insert(written).second) species_forms[lower_ascii(trim(written))].insert(written);
-      row.species = trim(written);
+      species = trim(written);
     }
-    if (row.species.empty())
+    if (species.empty())
       throw InputError(feature_label(out.label, fid) + ": species field '" + options.species_field + "' is empty");
-    row.plot = field_text(feature, plot_index, decode);
-    out.rows.push_back(std::move(row));
+    table.locations.push_back({x, y});
+    table.feature_ids.push_back(static_cast<std::int64_t>(fid));
+    table.species.push_back(species_code(species));
+    if (const auto plot = field_text(feature, plot_index, decode); plot && !plot->empty()) {
+      if (table.plots.size() + 1 < table.locations.size()) table.plots.resize(table.locations.size() - 1, 0);
+      table.plots.push_back(plot_code(*plot) + 1);
+    } else if (!table.plots.empty()) {
+      table.plots.push_back(0);
+    }
   });
   if (scan.blank_rows > 0)
     loaded.notes.push_back(out.label + ": " + std::to_string(scan.blank_rows) +
@@ -326,8 +352,10 @@ AnalysisCrs choose_crs(const SurveyReadOptions& options, const SightingLayer& si
                        OGRSpatialReference& target) {
   std::vector<CentreSample> samples;
   std::vector<std::pair<double, double>> points;
-  for (const auto& row : sightings.rows) points.emplace_back(row.x, row.y);
-  samples.push_back(CentreSample{&sightings.crs, thinned(std::move(points))});
+  const auto& locations = sightings.table.locations;
+  const std::size_t step = locations.size() <= 4096 ? 1 : locations.size() / 4096 + 1;  // as thinned()
+  for (std::size_t i = 0; i < locations.size(); i += step) points.emplace_back(locations[i].x, locations[i].y);
+  samples.push_back(CentreSample{&sightings.crs, std::move(points)});
   std::vector<double> geodesic;
   if (plots) {
     std::vector<std::pair<double, double>> vertices;
@@ -351,29 +379,40 @@ AnalysisCrs choose_crs(const SurveyReadOptions& options, const SightingLayer& si
   return AnalysisCrs{chosen.code, chosen.name, chosen.reason, chosen.wkt, 0.0};
 }
 
-std::vector<Sighting> to_analysis_crs(const SightingLayer& layer, const OGRSpatialReference& target) {
+// Reprojects the sightings to the analysis CRS in place, in blocks.
+void to_analysis_crs(SightingLayer& layer, const OGRSpatialReference& target) {
   const TransformPtr transform = make_transform(layer.crs, target, layer.label);
-  std::vector<Sighting> out;
-  out.reserve(layer.rows.size());
-  for (const auto& row : layer.rows) {
-    double x = row.x;
-    double y = row.y;
-    if (transform && (!transform->Transform(1, &x, &y) || !std::isfinite(x) || !std::isfinite(y)))
-      throw InputError(feature_label(layer.label, row.fid) +
-                       ": cannot be reprojected to the analysis CRS (coordinates outside its "
-                       "area of use?)");
-    out.push_back(Sighting{Point{x, y}, static_cast<std::int64_t>(row.fid), row.species, row.plot});
+  if (!transform) return;
+  auto& locations = layer.table.locations;
+  constexpr std::size_t block = 4096;
+  std::vector<double> x(block);
+  std::vector<double> y(block);
+  std::vector<int> ok(block);
+  for (std::size_t first = 0; first < locations.size(); first += block) {
+    const std::size_t m = std::min(block, locations.size() - first);
+    for (std::size_t k = 0; k < m; ++k) {
+      x[k] = locations[first + k].x;
+      y[k] = locations[first + k].y;
+    }
+    transform->Transform(static_cast<int>(m), x.data(), y.data(), nullptr, ok.data());
+    for (std::size_t k = 0; k < m; ++k) {
+      if (!ok[k] || !std::isfinite(x[k]) || !std::isfinite(y[k]))
+        throw InputError(feature_label(layer.label, layer.table.feature_ids[first + k]) +
+                         ": cannot be reprojected to the analysis CRS (coordinates outside its "
+                         "area of use?)");
+      locations[first + k] = {x[k], y[k]};
+    }
   }
-  return out;
 }
 
-std::vector<Plot> hull_plots(const std::vector<Sighting>& sightings) {
+std::vector<Plot> hull_plots(const SightingTable& table) {
   std::vector<std::string> order;
   std::map<std::string, std::vector<Point>> groups;
-  for (const auto& s : sightings) {
-    const std::string key = s.plot.value_or("hull");
+  for (std::size_t i = 0; i < table.size(); ++i) {
+    const std::uint32_t code = table.plots.empty() ? 0 : table.plots[i];
+    const std::string key = code == 0 ? std::string("hull") : table.plot_names[code - 1];
     if (!groups.count(key)) order.push_back(key);
-    groups[key].push_back(s.location);
+    groups[key].push_back(table.locations[i]);
   }
   std::vector<Plot> plots;
   plots.reserve(order.size());
@@ -381,26 +420,35 @@ std::vector<Plot> hull_plots(const std::vector<Sighting>& sightings) {
   return plots;
 }
 
-std::vector<DuplicateLocation> duplicate_locations(const SightingLayer& raw, const std::vector<Sighting>& located) {
-  std::vector<std::size_t> order(raw.rows.size());
-  for (std::size_t i = 0; i < order.size(); ++i) order[i] = i;
-  std::sort(order.begin(), order.end(), [&](std::size_t a, std::size_t b) {
-    const auto& p = raw.rows[a];
-    const auto& q = raw.rows[b];
-    return std::tie(p.x, p.y, p.fid) < std::tie(q.x, q.y, q.fid);
+// Groups of rows at exactly the same coordinates as read (before reprojection), each group's
+// rows in (x, y, feature id) order.
+std::vector<std::vector<std::uint32_t>> duplicate_rows(const SightingTable& raw) {
+  std::vector<std::uint32_t> order(raw.size());
+  std::iota(order.begin(), order.end(), 0U);
+  std::sort(order.begin(), order.end(), [&](std::uint32_t a, std::uint32_t b) {
+    const Point& p = raw.locations[a];
+    const Point& q = raw.locations[b];
+    return std::tie(p.x, p.y, raw.feature_ids[a]) < std::tie(q.x, q.y, raw.feature_ids[b]);
   });
-  std::vector<DuplicateLocation> out;
+  std::vector<std::vector<std::uint32_t>> out;
   for (std::size_t i = 0; i < order.size();) {
     std::size_t j = i + 1;
-    while (j < order.size() && raw.rows[order[j]].x == raw.rows[order[i]].x &&
-           raw.rows[order[j]].y == raw.rows[order[i]].y)
-      ++j;
-    if (j - i > 1) {
-      DuplicateLocation d{located[order[i]].location, {}};
-      for (std::size_t k = i; k < j; ++k) d.feature_ids.push_back(raw.rows[order[k]].fid);
-      out.push_back(std::move(d));
-    }
+    const Point& p = raw.locations[order[i]];
+    while (j < order.size() && raw.locations[order[j]].x == p.x && raw.locations[order[j]].y == p.y) ++j;
+    if (j - i > 1) out.emplace_back(order.begin() + static_cast<std::ptrdiff_t>(i), order.begin() + static_cast<std::ptrdiff_t>(j));
     i = j;
+  }
+  return out;
+}
+
+// The duplicate groups with their location in the analysis CRS.
+std::vector<DuplicateLocation> duplicate_locations(const std::vector<std::vector<std::uint32_t>>& groups,
+                                                   const SightingTable& located) {
+  std::vector<DuplicateLocation> out;
+  for (const auto& rows : groups) {
+    DuplicateLocation d{located.locations[rows.front()], {}};
+    for (const auto row : rows) d.feature_ids.push_back(located.feature_ids[row]);
+    out.push_back(std::move(d));
   }
   return out;
 }
@@ -425,7 +473,7 @@ std::string duplicate_warning(const std::vector<DuplicateLocation>& duplicates) 
 // Refuses a run in which no sighting, or fewer than half of them, fall in a plot.
 void check_assignment(const Survey& survey, const SightingLayer& sightings, const std::string& plots_label,
                       const SurveyReadOptions& options) {
-  const std::size_t total = sightings.rows.size();
+  const std::size_t total = sightings.table.size();
   const std::size_t assigned = survey.sighting_count();
   if (total == 0 || 2 * assigned >= total) return;
   const std::size_t unknown = survey.exclusions().unknown_plot_feature_ids.size();
@@ -437,8 +485,8 @@ void check_assignment(const Survey& survey, const SightingLayer& sightings, cons
     std::set<std::string> ids;
     for (const auto& plot : survey.plots()) ids.insert(plot.id);
     std::set<std::string> values;
-    for (const auto& row : sightings.rows)
-      if (row.plot && !ids.count(*row.plot)) values.insert(*row.plot);
+    for (const auto& name : sightings.table.plot_names)
+      if (!ids.count(name)) values.insert(name);
     message += "; the sightings' field '" + sightings.plot_attribute + "' holds " + quoted_list(values, 3) +
                ", the plots' field '" + options.plot_field + "' holds " + quoted_list(ids, 3) +
                ": assign by location with assignment location, or name the sightings' plot "
@@ -487,7 +535,9 @@ LoadedSurvey load_survey(const SurveyReadOptions& options) {
   }
   OGRSpatialReference target;
   loaded.crs = choose_crs(options, sightings, plot_layer ? &*plot_layer : nullptr, target);
-  const std::vector<Sighting> located = to_analysis_crs(sightings, target);
+  const auto duplicates = duplicate_rows(sightings.table);
+  to_analysis_crs(sightings, target);
+  const SightingTable& located = sightings.table;
 
   std::vector<Plot> plots;
   if (options.window == WindowMode::plots) {
@@ -508,7 +558,7 @@ LoadedSurvey load_survey(const SurveyReadOptions& options) {
                               "%; densities carry that error (choose an equal-area analysis CRS)");
   loaded.survey = assign_to_plots(located, std::move(plots));
   if (options.window == WindowMode::plots) check_assignment(loaded.survey, sightings, loaded.plots_label, options);
-  loaded.duplicate_locations = duplicate_locations(sightings, located);
+  loaded.duplicate_locations = duplicate_locations(duplicates, located);
   if (!loaded.duplicate_locations.empty()) loaded.warnings.push_back(duplicate_warning(loaded.duplicate_locations));
   const Survey& s = loaded.survey;
   if (!s.exclusions().outside_feature_ids.empty())

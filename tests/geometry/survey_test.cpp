@@ -2,6 +2,8 @@
 
 #include <gtest/gtest.h>
 
+#include <boost/geometry.hpp>
+
 #include "stipple/error.hpp"
 #include "stipple/intensity/density.hpp"
 
@@ -45,14 +47,56 @@ TEST(AssignToPlots, AttributeDecidesAndMismatchesAreReported) {
 TEST(AssignToPlots, RefusesOverlappingPlots) {
   std::vector<Plot> plots{Plot{"A", Window::rectangle(0, 0, 10, 10)}, Plot{"B", Window::rectangle(5, 0, 15, 10)}};
   try {
-    (void)assign_to_plots({}, plots);
+    (void)assign_to_plots(std::vector<Sighting>{}, plots);
     FAIL();
   } catch (const InputError& e) {
     EXPECT_NE(std::string(e.what()).find("plots 'A' and 'B' overlap"), std::string::npos);
   }
   // Shared edges are fine.
   EXPECT_NO_THROW((void)assign_to_plots(
-      {}, {Plot{"A", Window::rectangle(0, 0, 10, 10)}, Plot{"B", Window::rectangle(10, 0, 20, 10)}}));
+      std::vector<Sighting>{}, {Plot{"A", Window::rectangle(0, 0, 10, 10)}, Plot{"B", Window::rectangle(10, 0, 20, 10)}}));
+}
+
+TEST(AssignToPlots, ThePlotIndexFindsWhatTestingEveryPlotFinds) {
+  // 20 x 20 plots of 40 m with 10 m gaps, touching pairs in the last row, and points
+  // everywhere including on shared edges and corners; reference: the first plot in input
+  // order that Boost.Geometry's covered_by accepts.
+  std::vector<Plot> plots;
+  for (int i = 0; i < 400; ++i) {
+    const double x0 = (i % 20) * 50.0;
+    const double y0 = (i / 20) * 50.0;
+    plots.push_back(Plot{"P" + std::to_string(i), Window::rectangle(x0, y0, x0 + 40.0, y0 + 40.0)});
+  }
+  plots.push_back(Plot{"T1", Window::rectangle(0, 1000, 40, 1040)});
+  plots.push_back(Plot{"T2", Window::rectangle(40, 1000, 80, 1040)});  // shares the edge x = 40
+  std::vector<Sighting> sightings;
+  std::uint64_t state = 99;
+  const auto uniform = [&state] {
+    state = state * 6364136223846793005ULL + 1442695040888963407ULL;
+    return static_cast<double>(state >> 11) / 9007199254740992.0;
+  };
+  std::int64_t id = 0;
+  for (int i = 0; i < 20000; ++i)
+    sightings.push_back({{-20.0 + uniform() * 1040.0, -20.0 + uniform() * 1080.0}, ++id, i % 3 ? "vole" : "shrew",
+                         std::nullopt});
+  for (const Point p : {Point{40, 1020}, Point{40, 1000}, Point{0, 0}, Point{40, 40}, Point{990, 990}})
+    sightings.push_back({p, ++id, "vole", std::nullopt});
+  const Survey s = assign_to_plots(sightings, plots);
+  std::vector<std::vector<std::int64_t>> expected(plots.size());
+  std::vector<std::int64_t> outside;
+  for (const auto& sighting : sightings) {
+    std::size_t found = plots.size();
+    for (std::size_t k = 0; k < plots.size() && found == plots.size(); ++k)
+      if (boost::geometry::covered_by(BgPoint(sighting.location.x, sighting.location.y), plots[k].window.shape()))
+        found = k;
+    if (found == plots.size())
+      outside.push_back(sighting.feature_id);
+    else
+      expected[found].push_back(sighting.feature_id);
+  }
+  for (std::size_t k = 0; k < plots.size(); ++k) EXPECT_EQ(s.patterns()[k].feature_ids, expected[k]) << k;
+  EXPECT_EQ(s.exclusions().outside_feature_ids, outside);
+  EXPECT_EQ(s.patterns()[400].feature_ids.back(), id - 3);  // (40, 1000): T1 comes first
 }
 
 TEST(Survey, CanOnlyBeBuiltWhole) {

@@ -64,10 +64,33 @@ class Survey {
   SurveyExclusions exclusions_;
 };
 
+/// Sightings as columns, species and plot attributes as codes into name lists: the compact
+/// form a reader builds for large inputs (32 bytes a sighting).
+struct SightingTable {
+  std::vector<Point> locations;
+  std::vector<std::int64_t> feature_ids;
+  std::vector<std::uint32_t> species;      ///< index into species_names
+  std::vector<std::string> species_names;  ///< any order, distinct
+  /// Per sighting 0 (no plot attribute) or k: plot_names[k - 1]; empty when no sighting
+  /// carries one.
+  std::vector<std::uint32_t> plots;
+  std::vector<std::string> plot_names;  ///< distinct, none empty
+
+  [[nodiscard]] std::size_t size() const { return locations.size(); }
+  /// Appends a sighting; species and plot names are coded on the way.
+  void add(const Sighting& sighting);
+  /// Throws AnalysisError unless the columns are parallel and every code names a name.
+  void check() const;
+};
+
 /// Assigns each sighting to a plot: by its plot attribute when it carries one (then a
 /// sighting outside its own polygon is kept and listed in `off_window_feature_ids`),
 /// otherwise by point-in-polygon (boundary inclusive). Throws InputError when plot ids
 /// repeat or two plots overlap (their areas would be counted twice).
 [[nodiscard]] Survey assign_to_plots(const std::vector<Sighting>& sightings, std::vector<Plot> plots);
+
+/// The same for sightings as columns; plots are found through an index of their bounding
+/// boxes, and each candidate's window answers by its edge index.
+[[nodiscard]] Survey assign_to_plots(const SightingTable& sightings, std::vector<Plot> plots);
 
 }  // namespace stipple
