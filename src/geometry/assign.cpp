@@ -190,7 +190,15 @@ Survey assign_to_plots(const std::vector<Sighting>& sightings, std::vector<Plot>
   return assign_to_plots(table, std::move(plots));
 }
 
-Survey assign_to_plots(const SightingTable& sightings, std::vector<Plot> plots) {
+namespace {
+
+// Which column of the table pass 2 has finished with.
+enum class Column { locations, species, feature_ids };
+
+// Assigns the table's sightings; `done(column)` is called when a column is no longer read,
+// so a caller that owns the table can free it early.
+template <typename Done>
+Survey assign_table(const SightingTable& sightings, std::vector<Plot> plots, Done&& done) {
   sightings.check();
   check_plots(plots);
   // Species sorted by name; codes remapped to their sorted positions.
@@ -249,14 +257,35 @@ Survey assign_to_plots(const SightingTable& sightings, std::vector<Plot> plots) 
     patterns[t].marks.reserve(sizes[t]);
     patterns[t].feature_ids.reserve(sizes[t]);
   }
-  for (std::size_t i = 0; i < sightings.size(); ++i) {
-    if (target[i] == excluded_mark) continue;
-    MarkedPattern& pattern = patterns[target[i]];
-    pattern.points.push_back(sightings.locations[i]);
-    pattern.marks.push_back(sorted_index[sightings.species[i]]);
-    pattern.feature_ids.push_back(sightings.feature_ids[i]);
-  }
+  // Column by column, so each can be released before the next is copied.
+  const std::size_t n = sightings.size();
+  for (std::size_t i = 0; i < n; ++i)
+    if (target[i] != excluded_mark) patterns[target[i]].points.push_back(sightings.locations[i]);
+  done(Column::locations);
+  for (std::size_t i = 0; i < n; ++i)
+    if (target[i] != excluded_mark) patterns[target[i]].marks.push_back(sorted_index[sightings.species[i]]);
+  done(Column::species);
+  for (std::size_t i = 0; i < n; ++i)
+    if (target[i] != excluded_mark) patterns[target[i]].feature_ids.push_back(sightings.feature_ids[i]);
+  done(Column::feature_ids);
   return {std::move(species), std::move(plots), std::move(patterns), std::move(excluded)};
+}
+
+}  // namespace
+
+Survey assign_to_plots(const SightingTable& sightings, std::vector<Plot> plots) {
+  return assign_table(sightings, std::move(plots), [](Column) {});
+}
+
+Survey assign_to_plots(SightingTable&& sightings, std::vector<Plot> plots) {
+  SightingTable owned = std::move(sightings);
+  return assign_table(owned, std::move(plots), [&owned](Column c) {
+    switch (c) {
+      case Column::locations: std::vector<Point>().swap(owned.locations); break;
+      case Column::species: std::vector<std::uint32_t>().swap(owned.species); break;
+      case Column::feature_ids: std::vector<std::int64_t>().swap(owned.feature_ids); break;
+    }
+  });
 }
 
 }  // namespace stipple

@@ -5,16 +5,16 @@
 
 namespace stipple {
 
-PointGrid::PointGrid(std::vector<Point> points, double points_per_cell) : points_(std::move(points)) {
-  if (points_.empty()) {
+PointGrid::PointGrid(const std::vector<Point>& points, double pointsper_cell) {
+  if (points.empty()) {
     start_.assign(2, 0);
     return;
   }
-  double xmax = points_[0].x;
-  double ymax = points_[0].y;
-  xmin_ = points_[0].x;
-  ymin_ = points_[0].y;
-  for (const auto& p : points_) {
+  double xmax = points[0].x;
+  double ymax = points[0].y;
+  xmin_ = points[0].x;
+  ymin_ = points[0].y;
+  for (const auto& p : points) {
     xmin_ = std::min(xmin_, p.x);
     ymin_ = std::min(ymin_, p.y);
     xmax = std::max(xmax, p.x);
@@ -22,24 +22,24 @@ PointGrid::PointGrid(std::vector<Point> points, double points_per_cell) : points
   }
   const double width = std::max(xmax - xmin_, 1e-9);
   const double height = std::max(ymax - ymin_, 1e-9);
-  const double n = static_cast<double>(points_.size());
-  cell_ = std::sqrt(width * height * points_per_cell / n);
+  const double n = static_cast<double>(points.size());
+  cell_ = std::sqrt(width * height * pointsper_cell / n);
   // Degenerate spreads (all points on a line) would give a huge grid: bound the cell count.
   cell_ = std::max(cell_, std::max(width, height) / 4096.0);
   nx_ = static_cast<std::size_t>(width / cell_) + 1;
   ny_ = static_cast<std::size_t>(height / cell_) + 1;
-  std::vector<std::uint32_t> cell_of(points_.size());
+  std::vector<std::uint32_t> cell_of(points.size());
   start_.assign(nx_ * ny_ + 1, 0);
-  for (std::size_t i = 0; i < points_.size(); ++i) {
-    cell_of[i] = static_cast<std::uint32_t>(cell_y(points_[i].y) * nx_ + cell_x(points_[i].x));
+  for (std::size_t i = 0; i < points.size(); ++i) {
+    cell_of[i] = static_cast<std::uint32_t>(cell_y(points[i].y) * nx_ + cell_x(points[i].x));
     ++start_[cell_of[i] + 1];
   }
   for (std::size_t c = 1; c < start_.size(); ++c) start_[c] += start_[c - 1];
-  order_.resize(points_.size());
+  order_.resize(points.size());
   std::vector<std::uint32_t> fill(start_.begin(), start_.end() - 1);
-  for (std::size_t i = 0; i < points_.size(); ++i) order_[fill[cell_of[i]]++] = static_cast<std::uint32_t>(i);
-  sorted_.resize(points_.size());
-  for (std::size_t k = 0; k < order_.size(); ++k) sorted_[k] = points_[order_[k]];
+  for (std::size_t i = 0; i < points.size(); ++i) order_[fill[cell_of[i]]++] = static_cast<std::uint32_t>(i);
+  sorted_.resize(points.size());
+  for (std::size_t k = 0; k < order_.size(); ++k) sorted_[k] = points[order_[k]];
 }
 
 std::size_t PointGrid::cell_x(double x) const {
@@ -55,7 +55,7 @@ std::size_t PointGrid::cell_y(double y) const {
 }
 
 double PointGrid::nearest_distance(const Point& query, std::size_t exclude) const {
-  if (points_.empty()) return std::numeric_limits<double>::infinity();
+  if (sorted_.empty()) return std::numeric_limits<double>::infinity();
   const std::size_t qx = cell_x(query.x);
   const std::size_t qy = cell_y(query.y);
   double best2 = std::numeric_limits<double>::infinity();
@@ -87,7 +87,7 @@ double PointGrid::nearest_distance(const Point& query, std::size_t exclude) cons
 }
 
 std::vector<double> PointGrid::nearest_neighbour_distances() const {
-  std::vector<double> d(points_.size());
+  std::vector<double> d(sorted_.size());
   // In cell order: consecutive queries touch the same cells.
   for (std::size_t k = 0; k < sorted_.size(); ++k) d[order_[k]] = nearest_distance(sorted_[k], order_[k]);
   return d;

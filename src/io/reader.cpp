@@ -471,9 +471,9 @@ std::string duplicate_warning(const std::vector<DuplicateLocation>& duplicates) 
 }
 
 // Refuses a run in which no sighting, or fewer than half of them, fall in a plot.
-void check_assignment(const Survey& survey, const SightingLayer& sightings, const std::string& plots_label,
+void check_assignment(const Survey& survey, std::size_t total, const std::vector<std::string>& plot_values,
+                      const SightingLayer& sightings, const std::string& plots_label,
                       const SurveyReadOptions& options) {
-  const std::size_t total = sightings.table.size();
   const std::size_t assigned = survey.sighting_count();
   if (total == 0 || 2 * assigned >= total) return;
   const std::size_t unknown = survey.exclusions().unknown_plot_feature_ids.size();
@@ -485,7 +485,7 @@ void check_assignment(const Survey& survey, const SightingLayer& sightings, cons
     std::set<std::string> ids;
     for (const auto& plot : survey.plots()) ids.insert(plot.id);
     std::set<std::string> values;
-    for (const auto& name : sightings.table.plot_names)
+    for (const auto& name : plot_values)
       if (!ids.count(name)) values.insert(name);
     message += "; the sightings' field '" + sightings.plot_attribute + "' holds " + quoted_list(values, 3) +
                ", the plots' field '" + options.plot_field + "' holds " + quoted_list(ids, 3) +
@@ -556,9 +556,12 @@ LoadedSurvey load_survey(const SurveyReadOptions& options) {
                               "(ellipsoidal) areas by up to " +
                               format_significant(100.0 * loaded.crs.max_area_error, 2) +
                               "%; densities carry that error (choose an equal-area analysis CRS)");
-  loaded.survey = assign_to_plots(located, std::move(plots));
-  if (options.window == WindowMode::plots) check_assignment(loaded.survey, sightings, loaded.plots_label, options);
   loaded.duplicate_locations = duplicate_locations(duplicates, located);
+  const std::size_t read_count = located.size();
+  const std::vector<std::string> plot_values = located.plot_names;  // the table is released below
+  loaded.survey = assign_to_plots(std::move(sightings.table), std::move(plots));
+  if (options.window == WindowMode::plots)
+    check_assignment(loaded.survey, read_count, plot_values, sightings, loaded.plots_label, options);
   if (!loaded.duplicate_locations.empty()) loaded.warnings.push_back(duplicate_warning(loaded.duplicate_locations));
   const Survey& s = loaded.survey;
   if (!s.exclusions().outside_feature_ids.empty())

@@ -336,8 +336,19 @@ RandomnessResult analyse_randomness(const Survey& survey, const RandomnessOption
   for (std::size_t p = 0; p < survey.plots().size(); ++p) {
     const Plot& plot = survey.plots()[p];
     const MarkedPattern& pattern = survey.patterns()[p];
+    // Each species' points; a plot of one species uses the pattern itself (no copy).
+    std::vector<std::size_t> counts(survey.species().size(), 0);
+    for (const auto m : pattern.marks) ++counts[m];
+    const auto species_present = static_cast<std::size_t>(
+        std::count_if(counts.begin(), counts.end(), [](std::size_t c) { return c > 0; }));
     std::vector<std::vector<Point>> by_species(survey.species().size());
-    for (std::size_t i = 0; i < pattern.points.size(); ++i) by_species[pattern.marks[i]].push_back(pattern.points[i]);
+    if (species_present > 1) {
+      for (std::size_t s = 0; s < counts.size(); ++s) by_species[s].reserve(counts[s]);
+      for (std::size_t i = 0; i < pattern.points.size(); ++i) by_species[pattern.marks[i]].push_back(pattern.points[i]);
+    }
+    const auto points_of = [&](std::size_t s) -> const std::vector<Point>& {
+      return species_present > 1 ? by_species[s] : pattern.points;
+    };
     const auto run = [&](const std::vector<Point>& points, const std::optional<std::string>& species) {
       if (points.size() < options.min_points) {
         const std::string why = "fewer than " + std::to_string(options.min_points) + " sightings";
@@ -365,13 +376,11 @@ RandomnessResult analyse_randomness(const Survey& survey, const RandomnessOption
       result.results.push_back(std::move(g));
       step();
     };
-    std::size_t present = 0;
     for (std::size_t s = 0; s < survey.species().size(); ++s) {
-      if (by_species[s].empty()) continue;
-      ++present;
-      run(by_species[s], survey.species()[s]);
+      if (counts[s] == 0) continue;
+      run(points_of(s), survey.species()[s]);
     }
-    if (present == 1 && !pattern.points.empty()) {
+    if (species_present == 1) {
       // All species together are the one species here: repeat its results, computed once.
       GroupResult all = result.results.back();
       all.species = std::nullopt;
@@ -391,7 +400,7 @@ RandomnessResult analyse_randomness(const Survey& survey, const RandomnessOption
     if (!options.run_interactions || options.simulations == 0) continue;
     for (std::size_t s = 0; s < survey.species().size(); ++s) {
       for (std::size_t t = s + 1; t < survey.species().size(); ++t) {
-        if (by_species[s].size() < 2 || by_species[t].size() < 2) continue;
+        if (counts[s] < 2 || counts[t] < 2) continue;
         InteractionResult ir =
             random_labelling_test(by_species[s], by_species[t], plot.window, options,
                                   seed_key({"pair", plot.id, survey.species()[s], survey.species()[t]}));

@@ -92,5 +92,7 @@ struct SightingTable {
 /// The same for sightings as columns; plots are found through an index of their bounding
 /// boxes, and each candidate's window answers by its edge index.
 [[nodiscard]] Survey assign_to_plots(const SightingTable& sightings, std::vector<Plot> plots);
+/// The same, freeing the table's columns as they are copied (a reader's peak memory).
+[[nodiscard]] Survey assign_to_plots(SightingTable&& sightings, std::vector<Plot> plots);
 
 }  // namespace stipple
