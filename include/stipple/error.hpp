@@ -46,6 +46,7 @@ enum class ExitCode : int {
   bad_input = 2,
   internal_error = 70,
   output_error = 74,  ///< standard output could not be written (BSD sysexits EX_IOERR)
+  interrupted = 130,  ///< stopped by Ctrl-C or SIGTERM (128 + SIGINT, the shells' convention)
 };
 
 }  // namespace stipple

@@ -13,6 +13,7 @@
 #include "detail/parallel.hpp"
 #include "json_text.hpp"
 #include "report/records.hpp"
+#include "stipple/cancel.hpp"
 #include "stipple/error.hpp"
 #include "stipple/format.hpp"
 #include "stipple/io/inspect.hpp"
@@ -192,6 +193,8 @@ FileResults analyse_file(const BatchInput& source, const BatchOptions& options) 
                         : kind == InputKind::plots ? "not a transect file (the density and randomness analyses fit it)"
                                                    : "nothing to analyse");
     }
+  } catch (const Cancelled&) {
+    throw;  // the whole run stops; it is no failure of this file
   } catch (const Error& e) {
     r = FileResults{};
     r.source = source;
@@ -297,6 +300,8 @@ class SeasonWriter {
  public:
   SeasonWriter(const std::string& out_dir, const BatchOptions& options, const std::vector<std::string>& protect)
       : dir_(out_dir), options_(options), protect_(protect) {
+    std::error_code ec;
+    created_dir_ = !fs::exists(dir_, ec);
     make_folder(out_dir);
     if (options.run_density) density_ = std::make_unique<TableFiles>(dir_, "density", density_rows({}), protect);
     if (options.run_randomness) {
@@ -356,6 +361,7 @@ class SeasonWriter {
       const fs::path target = dir_ / f.ref.path;
       make_folder(target.parent_path().string());
       write_file_safely(target.string(), f.svg, protect_);
+      written_.push_back(target);
       figures_->write(csv_field(name) + "," + csv_field(f.ref.section) + "," + csv_field(f.ref.path) + "," +
                       csv_field(f.ref.title) + "\n");
       summary_.report.figures.push_back(f.ref);
@@ -373,6 +379,7 @@ class SeasonWriter {
               ", Gaussian kernel, Scott bandwidth per plot, local edge correction (Jones 1993), in the CRS of " + name +
               " (" + r.input.crs + ")",
           protect_);
+      written_.push_back(target);
     }
     if (r.input.status != "ok") {
       failures_->write(csv_field(name) + "," + r.input.status + "," + csv_field(r.input.reason) + "\n");
@@ -418,8 +425,34 @@ class SeasonWriter {
     figures_->commit();
     if (gis_) gis_->commit();
     write_run(warnings);
+    finished_ = true;
     return std::move(summary_);
   }
+
+  // A run that stops before finish() (cancelled, or an output failed) leaves no partial
+  // outputs: its tables were never committed, and the figures and surfaces it wrote are
+  // removed, with the folders it made for them when they are left empty.
+  ~SeasonWriter() {
+    if (finished_) return;
+    // The uncommitted tables first: their temporary files go with them.
+    density_.reset();
+    randomness_.reset();
+    interactions_.reset();
+    transect_.reset();
+    failures_.reset();
+    figures_.reset();
+    gis_.reset();
+    std::error_code ec;
+    for (const auto& path : written_) {
+      fs::remove(path, ec);
+      for (fs::path folder = path.parent_path(); folder != dir_ && folder.has_relative_path();
+           folder = folder.parent_path())
+        if (!fs::remove(folder, ec)) break;  // not empty (or not ours to judge): stop climbing
+    }
+    if (created_dir_) fs::remove(dir_, ec);  // only when empty
+  }
+  SeasonWriter(const SeasonWriter&) = delete;
+  SeasonWriter& operator=(const SeasonWriter&) = delete;
 
  private:
   void write_pooled(const DensityResult& pooled) {
@@ -500,6 +533,9 @@ class SeasonWriter {
   std::unique_ptr<TableFiles> density_, randomness_, interactions_, transect_;
   std::unique_ptr<StreamedFile> failures_, figures_;
   std::unique_ptr<PlotResultsWriter> gis_;
+  std::vector<fs::path> written_;  // figures and surfaces, removed if the run does not finish
+  bool finished_ = false;
+  bool created_dir_ = false;
   std::string crs_code_, crs_name_, crs_wkt_;
   PlotCounts season_counts_;
   std::size_t plots_pooled_ = 0;
@@ -541,6 +577,7 @@ BatchSummary run_batch(const std::vector<BatchInput>& inputs, const BatchOptions
   std::size_t next = 0;
   std::exception_ptr write_error;
   parallel_for(inputs.size(), options.threads, [&](std::size_t i) {
+    options.read.cancel.check();
     FileResults r = analyse_file(inputs[i], options);
     const std::lock_guard<std::mutex> lock(mutex);
     pending.emplace(i, std::move(r));

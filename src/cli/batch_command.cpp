@@ -379,6 +379,7 @@ int run_batch_command(BatchCommandOptions& o, CLI::App& command) {
   if (!o.run_file.empty()) apply_run_file(o, command);
   const std::optional<Detection> single = single_detection(o, command);
   BatchOptions options = batch_options_of(o, command, single);
+  options.read.cancel = options.randomness.cancel = options.transect.cancel = interrupt_token();
   std::vector<BatchInput> inputs = discover_inputs(o.common.sightings, o.pattern, o.plots_name);
   const std::size_t all_inputs = inputs.size();
   options.crs_reference = inputs.front();

@@ -1,6 +1,10 @@
 #include "common_options.hpp"
 
+#include <unistd.h>
+
 #include <algorithm>
+#include <atomic>
+#include <csignal>
 #include <filesystem>
 #include <iostream>
 
@@ -137,6 +141,7 @@ SurveyReadOptions to_read_options(const CommonOptions& o) {
   r.target_crs = optional(o.crs);
   r.assume_crs = optional(o.assume_crs);
   r.repair_geometry = o.repair_geometry;
+  r.cancel = interrupt_token();
   return r;
 }
 
@@ -233,6 +238,33 @@ void write_folder(const std::string& folder, const std::vector<FigureFile>& file
                   const std::vector<std::string>& inputs) {
   make_folder(folder);
   for (const auto& f : files) write_file_safely((std::filesystem::path(folder) / f.name).string(), f.content, inputs);
+}
+
+namespace {
+
+// The one flag a signal handler may touch: lock-free, so setting it is async-signal-safe.
+std::atomic<bool> interrupted{false};
+static_assert(std::atomic<bool>::is_always_lock_free);
+
+extern "C" void on_interrupt(int signal) {
+  if (interrupted.exchange(true)) {
+    std::signal(signal, SIG_DFL);  // a second Ctrl-C: stop now
+    std::raise(signal);
+    return;
+  }
+  constexpr char message[] = "\nstipple: interrupted, stopping (press Ctrl-C again to quit at once)\n";
+  [[maybe_unused]] const auto written = ::write(2, message, sizeof message - 1);
+}
+
+}  // namespace
+
+void install_interrupt_handler() {
+  std::signal(SIGINT, on_interrupt);
+  std::signal(SIGTERM, on_interrupt);
+}
+
+CancelToken interrupt_token() {
+  return CancelToken(interrupted);
 }
 
 }  // namespace stipple::cli

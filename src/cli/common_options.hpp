@@ -10,6 +10,7 @@
 
 #include <CLI/CLI.hpp>
 
+#include "stipple/cancel.hpp"
 #include "stipple/io/reader.hpp"
 #include "stipple/report/figure.hpp"
 
@@ -73,6 +74,13 @@ CLI::Option* add_assign_option(CLI::App& command, std::string& target, const std
 
 /// The library's read options from the parsed command line.
 [[nodiscard]] SurveyReadOptions to_read_options(const CommonOptions& options);
+
+/// Makes Ctrl-C (SIGINT) and SIGTERM stop a running command: the first sets the flag
+/// behind interrupt_token(), which the library polls, so outputs in progress are
+/// discarded; a second one ends the process at once. Called once by main.
+void install_interrupt_handler();
+/// The token every long computation of the command line is given.
+[[nodiscard]] CancelToken interrupt_token();
 
 /// Every input path named on the command line (outputs must never replace one).
 [[nodiscard]] std::vector<std::string> input_paths(const CommonOptions& options);

@@ -1,6 +1,6 @@
 // stipple: command-line front end. Parses options, calls the library, maps errors to
 // exit codes (0 ok, 1 some batch inputs failed, 2 bad input or usage, 70 internal error,
-// 74 standard output could not be written).
+// 74 standard output could not be written, 130 interrupted).
 
 #include <algorithm>
 #include <exception>
@@ -13,6 +13,7 @@
 #include "commands.hpp"
 #include "common_options.hpp"
 #include "error_text.hpp"
+#include "stipple/cancel.hpp"
 #include "stipple/error.hpp"
 #include "stipple/io/gdal_session.hpp"
 #include "stipple/version.hpp"
@@ -89,6 +90,7 @@ int main(int argc, char** argv) {
   }
   try {
     stipple::register_gdal_drivers();
+    stipple::cli::install_interrupt_handler();
     for (const auto& action : actions) {
       const int code = action();
       if (code < 0) continue;
@@ -101,6 +103,10 @@ int main(int argc, char** argv) {
       return code;
     }
     return static_cast<int>(ExitCode::bad_input);
+  } catch (const stipple::Cancelled&) {
+    std::cerr << "stipple: interrupted; no outputs were written (a batch removes the figures and surfaces it "
+                 "had written)\n";
+    return static_cast<int>(ExitCode::interrupted);
   } catch (const stipple::InputError& e) {
     std::cerr << "error: " << stipple::cli::error_text(e) << "\n";
     return static_cast<int>(ExitCode::bad_input);

@@ -39,6 +39,7 @@ int run_randomness(const RandomnessCommandOptions& o) {
   std::tie(options.quadrat.nx, options.quadrat.ny) = parse_quadrat_grid(o.quadrats);
   options.quadrat.force_monte_carlo = o.quadrat_monte_carlo;
   options.clark_evans_monte_carlo = o.clark_evans_monte_carlo;
+  options.cancel = interrupt_token();
   if (!o.edge_correction.empty()) options.edge_correction = parse_edge_correction(o.edge_correction);
   options.pair_correction = o.pair_correction == "border" ? PairCorrection::border : PairCorrection::isotropic;
   options.distance_correction =

@@ -91,6 +91,7 @@ int run_transect(const TransectCommandOptions& o) {
   read.bin_edges = bins;
 
   TransectOptions options;
+  options.cancel = interrupt_token();
   options.keys.clear();
   for (const auto& m : o.models) options.keys.push_back(parse_key_function(m));
   options.adjustments.clear();

@@ -67,8 +67,8 @@ std::int64_t declared_feature_count(OGRLayer& layer) {
   return static_cast<std::int64_t>(layer.GetFeatureCount(FALSE));
 }
 
-LayerScan scan_layer(OGRLayer& layer, const std::string& label, bool csv,
-                     const std::function<void(OGRFeature&)>& visit) {
+LayerScan scan_layer(OGRLayer& layer, const std::string& label, bool csv, const std::function<void(OGRFeature&)>& visit,
+                     const CancelToken& cancel) {
   LayerScan scan;
   const std::int64_t declared = declared_feature_count(layer);
   layer.ResetReading();
@@ -77,7 +77,7 @@ LayerScan scan_layer(OGRLayer& layer, const std::string& label, bool csv,
   while (true) {
     std::unique_ptr<OGRFeature> feature(layer.GetNextFeature());
     if (!feature) break;
-    ++read;
+    if (++read % 4096 == 0) cancel.check();
     if (csv && blank_row(*feature)) {
       ++scan.blank_rows;
       continue;

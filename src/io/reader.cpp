@@ -179,45 +179,48 @@ SightingLayer read_sightings(const SurveyReadOptions& options, LoadedSurvey& loa
   NameCoder species_code(table.species_names);
   NameCoder plot_code(table.plot_names);
   std::string written;
-  const LayerScan scan = scan_layer(layer, out.label, csv, [&](OGRFeature& feature) {
-    const GIntBig fid = feature.GetFID();
-    const OGRGeometry* geometry = feature.GetGeometryRef();
-    if (geometry == nullptr || geometry->IsEmpty())
-      throw InputError(feature_label(out.label, fid) + ": has no point geometry" +
-                       csv_coordinate_text(feature, options));
-    const auto type = wkbFlatten(geometry->getGeometryType());
-    const OGRPoint* point = nullptr;
-    if (type == wkbPoint) {
-      point = geometry->toPoint();
-    } else if (type == wkbMultiPoint && geometry->toMultiPoint()->getNumGeometries() == 1) {
-      point = geometry->toMultiPoint()->getGeometryRef(0);
-    } else {
-      throw InputError(feature_label(out.label, fid) + ": geometry is " +
-                       OGRGeometryTypeToName(geometry->getGeometryType()) + "; sightings must be single points");
-    }
-    const double x = point->getX();
-    const double y = point->getY();
-    if (!std::isfinite(x) || !std::isfinite(y))
-      throw InputError(feature_label(out.label, fid) + ": coordinate is NaN or infinite");
-    check_coordinate(x, y, out.crs, feature_label(out.label, fid));
-    std::string species;
-    if (species_index >= 0 && feature.IsFieldSetAndNotNull(species_index)) {
-      written = decode(feature.GetFieldAsString(species_index));
-      if (seen_forms.insert(written).second) species_forms[lower_ascii(trim(written))].insert(written);
-      species = trim(written);
-    }
-    if (species.empty())
-      throw InputError(feature_label(out.label, fid) + ": species field '" + options.species_field + "' is empty");
-    table.locations.push_back({x, y});
-    table.feature_ids.push_back(static_cast<std::int64_t>(fid));
-    table.species.push_back(species_code(species));
-    if (const auto plot = field_text(feature, plot_index, decode); plot && !plot->empty()) {
-      if (table.plots.size() + 1 < table.locations.size()) table.plots.resize(table.locations.size() - 1, 0);
-      table.plots.push_back(plot_code(*plot) + 1);
-    } else if (!table.plots.empty()) {
-      table.plots.push_back(0);
-    }
-  });
+  const LayerScan scan = scan_layer(
+      layer, out.label, csv,
+      [&](OGRFeature& feature) {
+        const GIntBig fid = feature.GetFID();
+        const OGRGeometry* geometry = feature.GetGeometryRef();
+        if (geometry == nullptr || geometry->IsEmpty())
+          throw InputError(feature_label(out.label, fid) + ": has no point geometry" +
+                           csv_coordinate_text(feature, options));
+        const auto type = wkbFlatten(geometry->getGeometryType());
+        const OGRPoint* point = nullptr;
+        if (type == wkbPoint) {
+          point = geometry->toPoint();
+        } else if (type == wkbMultiPoint && geometry->toMultiPoint()->getNumGeometries() == 1) {
+          point = geometry->toMultiPoint()->getGeometryRef(0);
+        } else {
+          throw InputError(feature_label(out.label, fid) + ": geometry is " +
+                           OGRGeometryTypeToName(geometry->getGeometryType()) + "; sightings must be single points");
+        }
+        const double x = point->getX();
+        const double y = point->getY();
+        if (!std::isfinite(x) || !std::isfinite(y))
+          throw InputError(feature_label(out.label, fid) + ": coordinate is NaN or infinite");
+        check_coordinate(x, y, out.crs, feature_label(out.label, fid));
+        std::string species;
+        if (species_index >= 0 && feature.IsFieldSetAndNotNull(species_index)) {
+          written = decode(feature.GetFieldAsString(species_index));
+          if (seen_forms.insert(written).second) species_forms[lower_ascii(trim(written))].insert(written);
+          species = trim(written);
+        }
+        if (species.empty())
+          throw InputError(feature_label(out.label, fid) + ": species field '" + options.species_field + "' is empty");
+        table.locations.push_back({x, y});
+        table.feature_ids.push_back(static_cast<std::int64_t>(fid));
+        table.species.push_back(species_code(species));
+        if (const auto plot = field_text(feature, plot_index, decode); plot && !plot->empty()) {
+          if (table.plots.size() + 1 < table.locations.size()) table.plots.resize(table.locations.size() - 1, 0);
+          table.plots.push_back(plot_code(*plot) + 1);
+        } else if (!table.plots.empty()) {
+          table.plots.push_back(0);
+        }
+      },
+      options.cancel);
   if (scan.blank_rows > 0)
     loaded.notes.push_back(out.label + ": " + std::to_string(scan.blank_rows) +
                            " blank row(s) (every field empty) skipped");
@@ -435,7 +438,8 @@ std::vector<std::vector<std::uint32_t>> duplicate_rows(const SightingTable& raw)
     std::size_t j = i + 1;
     const Point& p = raw.locations[order[i]];
     while (j < order.size() && raw.locations[order[j]].x == p.x && raw.locations[order[j]].y == p.y) ++j;
-    if (j - i > 1) out.emplace_back(order.begin() + static_cast<std::ptrdiff_t>(i), order.begin() + static_cast<std::ptrdiff_t>(j));
+    if (j - i > 1)
+      out.emplace_back(order.begin() + static_cast<std::ptrdiff_t>(i), order.begin() + static_cast<std::ptrdiff_t>(j));
     i = j;
   }
   return out;

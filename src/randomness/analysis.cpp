@@ -160,6 +160,7 @@ GroupResult analyse_pattern(const std::vector<Point>& points, const Window& wind
         g.clark_evans ? g.clark_evans->edge_correction : NeighbourEdgeCorrection::none;
     const bool ce_needs_boundary = ce_correction == NeighbourEdgeCorrection::border;
     parallel_for(options.simulations, options.threads, [&](std::size_t s) {
+      options.cancel.check();
       Engine engine(derive_seed(options.seed, key + seed_key({"csr", std::to_string(s)})));
       const std::vector<Point> pattern = simulate_binomial(window, n, engine);
       if (options.run_envelope) {
@@ -283,6 +284,7 @@ InteractionResult random_labelling_test(const std::vector<Point>& a, const std::
   const std::size_t batches = (options.simulations + batch - 1) / batch;
   std::vector<std::vector<double>> simulated(options.simulations);
   parallel_for(batches, options.threads, [&](std::size_t k) {
+    options.cancel.check();
     const std::size_t first = k * batch;
     const std::size_t last = std::min(options.simulations, first + batch);
     std::vector<std::vector<std::uint8_t>> labellings;
@@ -339,8 +341,8 @@ RandomnessResult analyse_randomness(const Survey& survey, const RandomnessOption
     // Each species' points; a plot of one species uses the pattern itself (no copy).
     std::vector<std::size_t> counts(survey.species().size(), 0);
     for (const auto m : pattern.marks) ++counts[m];
-    const auto species_present = static_cast<std::size_t>(
-        std::count_if(counts.begin(), counts.end(), [](std::size_t c) { return c > 0; }));
+    const auto species_present =
+        static_cast<std::size_t>(std::count_if(counts.begin(), counts.end(), [](std::size_t c) { return c > 0; }));
     std::vector<std::vector<Point>> by_species(survey.species().size());
     if (species_present > 1) {
       for (std::size_t s = 0; s < counts.size(); ++s) by_species[s].reserve(counts[s]);
@@ -350,6 +352,7 @@ RandomnessResult analyse_randomness(const Survey& survey, const RandomnessOption
       return species_present > 1 ? by_species[s] : pattern.points;
     };
     const auto run = [&](const std::vector<Point>& points, const std::optional<std::string>& species) {
+      options.cancel.check();
       if (points.size() < options.min_points) {
         const std::string why = "fewer than " + std::to_string(options.min_points) + " sightings";
         result.skipped.push_back({plot.id, species, points.size(), why});

@@ -365,6 +365,7 @@ TransectResult analyse_transects(const TransectSurvey& survey, const TransectOpt
     std::mutex progress_mutex;
     std::size_t replicates_done = 0;
     parallel_for(options.bootstrap, options.threads, [&](std::size_t b) {
+      options.cancel.check();
       Engine engine(derive_seed(options.seed, seed_key({"transect-bootstrap", std::to_string(b)})));
       std::vector<TransectUnit> units;
       std::vector<TransectObservation> observations;

@@ -53,8 +53,8 @@ TEST(AssignToPlots, RefusesOverlappingPlots) {
     EXPECT_NE(std::string(e.what()).find("plots 'A' and 'B' overlap"), std::string::npos);
   }
   // Shared edges are fine.
-  EXPECT_NO_THROW((void)assign_to_plots(
-      std::vector<Sighting>{}, {Plot{"A", Window::rectangle(0, 0, 10, 10)}, Plot{"B", Window::rectangle(10, 0, 20, 10)}}));
+  EXPECT_NO_THROW((void)assign_to_plots(std::vector<Sighting>{}, {Plot{"A", Window::rectangle(0, 0, 10, 10)},
+                                                                  Plot{"B", Window::rectangle(10, 0, 20, 10)}}));
 }
 
 TEST(AssignToPlots, ThePlotIndexFindsWhatTestingEveryPlotFinds) {
@@ -77,8 +77,8 @@ TEST(AssignToPlots, ThePlotIndexFindsWhatTestingEveryPlotFinds) {
   };
   std::int64_t id = 0;
   for (int i = 0; i < 20000; ++i)
-    sightings.push_back({{-20.0 + uniform() * 1040.0, -20.0 + uniform() * 1080.0}, ++id, i % 3 ? "vole" : "shrew",
-                         std::nullopt});
+    sightings.push_back(
+        {{-20.0 + uniform() * 1040.0, -20.0 + uniform() * 1080.0}, ++id, i % 3 ? "vole" : "shrew", std::nullopt});
   for (const Point p : {Point{40, 1020}, Point{40, 1000}, Point{0, 0}, Point{40, 40}, Point{990, 990}})
     sightings.push_back({p, ++id, "vole", std::nullopt});
   const Survey s = assign_to_plots(sightings, plots);

@@ -7,6 +7,7 @@
 #include <string>
 #include <vector>
 
+#include "stipple/cancel.hpp"
 #include "stipple/geometry/survey.hpp"
 #include "stipple/input_facts.hpp"
 #include "stipple/intensity/detection.hpp"
@@ -47,6 +48,7 @@ struct SurveyReadOptions {
   std::optional<std::string> target_crs;  ///< analysis CRS, projected, metres
   std::optional<std::string> assume_crs;  ///< for layers without a CRS
   bool repair_geometry = false;           ///< fix invalid polygons with GDAL's MakeValid
+  CancelToken cancel;                     ///< polled every 4096 features read
 };
 
 /// A survey read from its sources and assigned to plots, with the facts of its reading.

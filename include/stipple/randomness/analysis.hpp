@@ -9,6 +9,7 @@
 #include <string>
 #include <vector>
 
+#include "stipple/cancel.hpp"
 #include "stipple/geometry/survey.hpp"
 #include "stipple/randomness/clark_evans.hpp"
 #include "stipple/randomness/envelope.hpp"
@@ -42,6 +43,7 @@ struct RandomnessOptions {
   std::size_t min_points_for_random = 10;
   /// Called on the caller's thread after each group and each species pair: (done, total).
   std::function<void(std::size_t, std::size_t)> progress;
+  CancelToken cancel;  ///< polled before every simulation and labelling batch
 };
 
 /// One summary function with its Monte Carlo envelope.

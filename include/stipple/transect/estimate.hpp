@@ -10,6 +10,7 @@
 #include <string>
 #include <vector>
 
+#include "stipple/cancel.hpp"
 #include "stipple/intensity/poisson.hpp"
 #include "stipple/simulate/engine.hpp"
 #include "stipple/transect/detection_function.hpp"
@@ -109,6 +110,7 @@ struct TransectOptions {
   std::optional<double> target_cv;  ///< also report the effort needed for this CV
   /// Called after each bootstrap replicate (from any thread, one call at a time): (done, total).
   std::function<void(std::size_t, std::size_t)> progress;
+  CancelToken cancel;  ///< polled before every bootstrap replicate
 };
 
 struct ModelComparison {

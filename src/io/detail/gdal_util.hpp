@@ -12,6 +12,7 @@
 #include <ogr_spatialref.h>
 #include <ogrsf_frmts.h>
 
+#include "stipple/cancel.hpp"
 #include "stipple/geometry/window.hpp"
 
 namespace stipple::io_detail {
@@ -154,9 +155,10 @@ struct LayerScan {
 /// Calls `visit` for every feature of `layer`, in order. Rows of a CSV source whose fields
 /// are all empty (spreadsheets add them) are skipped and counted. Throws InputError naming
 /// `label` when GDAL reports a read error, or when the layer declares (in its header) a
-/// different number of features than could be read: a truncated or damaged file.
-LayerScan scan_layer(OGRLayer& layer, const std::string& label, bool csv,
-                     const std::function<void(OGRFeature&)>& visit);
+/// different number of features than could be read: a truncated or damaged file. Polls
+/// `cancel` every 4096 features.
+LayerScan scan_layer(OGRLayer& layer, const std::string& label, bool csv, const std::function<void(OGRFeature&)>& visit,
+                     const CancelToken& cancel = {});
 
 /// The number of features the layer's header declares, or -1 when the format has no
 /// cheap count (CSV, GeoJSON).
