@@ -3,7 +3,9 @@
 #include <algorithm>
 #include <charconv>
 #include <cmath>
+#include <cstring>
 #include <functional>
+#include <limits>
 #include <locale>
 #include <map>
 #include <numeric>
@@ -14,6 +16,8 @@
 
 #include <cpl_error.h>
 #include <cpl_string.h>
+#include <gdal_version.h>
+#include <ogr_recordbatch.h>
 
 #include "detail/gdal_util.hpp"
 #include "stipple/error.hpp"
@@ -131,6 +135,269 @@ std::string species_variant_warning(const std::map<std::string, std::set<std::st
          "differ in case are kept apart - correct the data if they are one species";
 }
 
+// Checks and codes each sighting read, by either reading path. Attribute values are decoded
+// once per distinct raw value (a season has few species and plots, and many rows).
+class RowSink {
+ public:
+  RowSink(SightingLayer& out, const SurveyReadOptions& options, TextDecoder& decode)
+      : out_(out),
+        options_(options),
+        decode_(decode),
+        species_code_(out.table.species_names),
+        plot_code_(out.table.plot_names) {}
+
+  void reserve(std::size_t n) {
+    out_.table.locations.reserve(n);
+    out_.table.feature_ids.reserve(n);
+    out_.table.species.reserve(n);
+  }
+
+  // `species` and `plot`: the raw attribute text, or null when the field is unset or null.
+  void add(GIntBig fid, double x, double y, const char* species, const char* plot) {
+    if (!std::isfinite(x) || !std::isfinite(y))
+      throw InputError(feature_label(out_.label, fid) + ": coordinate is NaN or infinite");
+    check_coordinate(x, y, out_.crs, feature_label(out_.label, fid));
+    const std::uint32_t species_code = species == nullptr ? no_value : code_species(species);
+    if (species_code == no_value)
+      throw InputError(feature_label(out_.label, fid) + ": species field '" + options_.species_field + "' is empty");
+    SightingTable& table = out_.table;
+    table.locations.push_back({x, y});
+    table.feature_ids.push_back(static_cast<std::int64_t>(fid));
+    table.species.push_back(species_code);
+    const std::uint32_t plot_code = plot == nullptr ? no_value : code_plot(plot);
+    if (plot_code != no_value) {
+      if (table.plots.size() + 1 < table.locations.size()) table.plots.resize(table.locations.size() - 1, 0);
+      table.plots.push_back(plot_code + 1);
+    } else if (!table.plots.empty()) {
+      table.plots.push_back(0);
+    }
+  }
+
+  [[nodiscard]] const std::map<std::string, std::set<std::string>>& species_forms() const { return species_forms_; }
+
+ private:
+  static constexpr std::uint32_t no_value = std::numeric_limits<std::uint32_t>::max();
+  struct Decoded {
+    std::uint32_t code;
+    std::int64_t replaced;  // values the decoder replaced on the way (0 or 1)
+  };
+
+  std::uint32_t code_species(const char* raw) {
+    const auto [entry, added] = species_cache_.try_emplace(raw);
+    if (added) {
+      const std::int64_t before = decode_.replaced();
+      const std::string written = decode_(raw);
+      if (seen_forms_.insert(written).second) species_forms_[lower_ascii(trim(written))].insert(written);
+      const std::string name = trim(written);
+      entry->second = {name.empty() ? no_value : species_code_(name), decode_.replaced() - before};
+    } else {
+      decode_.count_replaced(entry->second.replaced);
+    }
+    return entry->second.code;
+  }
+
+  std::uint32_t code_plot(const char* raw) {
+    const auto [entry, added] = plot_cache_.try_emplace(raw);
+    if (added) {
+      const std::int64_t before = decode_.replaced();
+      const std::string name = trim(decode_(raw));
+      entry->second = {name.empty() ? no_value : plot_code_(name), decode_.replaced() - before};
+    } else {
+      decode_.count_replaced(entry->second.replaced);
+    }
+    return entry->second.code;
+  }
+
+  SightingLayer& out_;
+  const SurveyReadOptions& options_;
+  TextDecoder& decode_;
+  NameCoder species_code_;
+  NameCoder plot_code_;
+  std::unordered_map<std::string, Decoded> species_cache_;
+  std::unordered_map<std::string, Decoded> plot_cache_;
+  std::map<std::string, std::set<std::string>> species_forms_;  // lower-case trimmed -> as written
+  std::set<std::string> seen_forms_;
+};
+
+// Releases an Arrow C structure when it goes out of scope.
+template <typename T>
+struct ArrowReleaser {
+  T value{};
+  ArrowReleaser() = default;
+  ArrowReleaser(const ArrowReleaser&) = delete;
+  ArrowReleaser& operator=(const ArrowReleaser&) = delete;
+  ~ArrowReleaser() {
+    if (value.release != nullptr) value.release(&value);
+  }
+};
+
+bool arrow_valid(const ArrowArray& a, std::int64_t row) {
+  if (a.null_count == 0 || a.buffers[0] == nullptr) return true;
+  const std::int64_t i = a.offset + row;
+  return (static_cast<const std::uint8_t*>(a.buffers[0])[i / 8] >> (i % 8)) & 1U;
+}
+
+// A point from WKB (ISO or extended, with Z/M dimensions), or false when it is none.
+bool point_from_wkb(const std::uint8_t* wkb, std::size_t size, double& x, double& y, std::string& type_name) {
+  const auto read_u32 = [](const std::uint8_t* p, bool little) {
+    std::uint32_t v = 0;
+    std::memcpy(&v, p, 4);
+    if (little != (CPL_IS_LSB != 0)) v = __builtin_bswap32(v);
+    return v;
+  };
+  const auto read_f64 = [](const std::uint8_t* p, bool little) {
+    std::uint64_t v = 0;
+    std::memcpy(&v, p, 8);
+    if (little != (CPL_IS_LSB != 0)) v = __builtin_bswap64(v);
+    double d = 0.0;
+    std::memcpy(&d, &v, 8);
+    return d;
+  };
+  if (size < 5) return false;
+  bool little = wkb[0] == 1;
+  std::uint32_t type = read_u32(wkb + 1, little);
+  std::uint32_t base = (type & 0x0FFFFFFFU) % 1000U;
+  if (base == 4U) {  // MultiPoint with exactly one point
+    if (size < 9 + 5 || read_u32(wkb + 5, little) != 1U) {
+      type_name = "MultiPoint of several points";
+      return false;
+    }
+    wkb += 9;
+    size -= 9;
+    little = wkb[0] == 1;
+    type = read_u32(wkb + 1, little);
+    base = (type & 0x0FFFFFFFU) % 1000U;
+  }
+  if (base != 1U) {
+    type_name = OGRGeometryTypeToName(static_cast<OGRwkbGeometryType>(base));
+    return false;
+  }
+  if (size < 21) return false;
+  x = read_f64(wkb + 5, little);
+  y = read_f64(wkb + 13, little);
+  return true;
+}
+
+// Reads the layer through OGR's columnar (Arrow) stream when the driver offers a fast one
+// (GeoPackage, FlatGeobuf, ...; GDAL >= 3.6): no feature objects are made. Returns false,
+// having read nothing, when the stream is not offered or the fields are not text, so the
+// caller reads feature by feature. Checks what scan_layer checks: stream errors and the
+// declared feature count.
+bool read_through_arrow(OGRLayer& layer, const std::string& label, bool csv, int species_index, int plot_index,
+                        RowSink& sink, const CancelToken& cancel, LayerScan& scan) {
+#if GDAL_VERSION_NUM >= 3060000
+  if (csv || !layer.TestCapability(OLCFastGetArrowStream)) return false;
+  OGRFeatureDefn* defn = layer.GetLayerDefn();
+  if (defn->GetGeomFieldCount() != 1) return false;
+  for (const int index : {species_index, plot_index})
+    if (index >= 0 && defn->GetFieldDefn(index)->GetType() != OFTString) return false;
+  // Only the fields needed: the others are ignored while streaming, and restored after.
+  CPLStringList ignored;
+  for (int i = 0; i < defn->GetFieldCount(); ++i)
+    if (i != species_index && i != plot_index) ignored.AddString(defn->GetFieldDefn(i)->GetNameRef());
+  ignored.AddString("OGR_STYLE");
+  struct Restore {
+    OGRLayer& layer;
+    ~Restore() { layer.SetIgnoredFields(nullptr); }
+  } restore{layer};
+  if (layer.SetIgnoredFields(const_cast<const char**>(ignored.List())) != OGRERR_NONE) return false;
+  const std::int64_t declared = declared_feature_count(layer);
+  if (declared > 0) sink.reserve(static_cast<std::size_t>(declared));
+  layer.ResetReading();
+  CPLStringList stream_options;
+  stream_options.SetNameValue("INCLUDE_FID", "YES");
+  stream_options.SetNameValue("MAX_FEATURES_IN_BATCH", "8192");
+  ArrowReleaser<ArrowArrayStream> stream;
+  if (!layer.GetArrowStream(&stream.value, stream_options.List())) return false;
+  ArrowReleaser<ArrowSchema> schema;
+  if (stream.value.get_schema(&stream.value, &schema.value) != 0) return false;
+  // Columns: the FID, then the fields not ignored in layer order, then the geometry.
+  std::int64_t fid_column = -1;
+  std::int64_t species_column = -1;
+  std::int64_t plot_column = -1;
+  std::int64_t geometry_column = -1;
+  const std::string species_name = species_index >= 0 ? defn->GetFieldDefn(species_index)->GetNameRef() : "";
+  const std::string plot_name = plot_index >= 0 ? defn->GetFieldDefn(plot_index)->GetNameRef() : "";
+  const std::string geometry_name = defn->GetGeomFieldDefn(0)->GetNameRef();
+  const std::string fid_name = layer.GetFIDColumn()[0] != '\0' ? layer.GetFIDColumn() : "OGC_FID";
+  for (std::int64_t c = 0; c < schema.value.n_children; ++c) {
+    const ArrowSchema& child = *schema.value.children[c];
+    const std::string name = child.name != nullptr ? child.name : "";
+    const std::string format = child.format != nullptr ? child.format : "";
+    if (name == fid_name && format == "l")
+      fid_column = c;
+    else if (!species_name.empty() && name == species_name && format == "u")
+      species_column = c;
+    else if (!plot_name.empty() && name == plot_name && format == "u")
+      plot_column = c;
+    else if ((name == geometry_name || (geometry_name.empty() && name == "wkb_geometry")) && format == "z")
+      geometry_column = c;
+  }
+  if (fid_column < 0 || geometry_column < 0 || (species_index >= 0 && species_column < 0) ||
+      (plot_index >= 0 && plot_column < 0))
+    return false;
+  const auto text = [](const ArrowArray& a, std::int64_t row, std::string& buffer) -> const char* {
+    if (!arrow_valid(a, row)) return nullptr;
+    const auto* offsets = static_cast<const std::int32_t*>(a.buffers[1]);
+    const auto* data = static_cast<const char*>(a.buffers[2]);
+    const std::int64_t i = a.offset + row;
+    buffer.assign(data + offsets[i], static_cast<std::size_t>(offsets[i + 1] - offsets[i]));
+    return buffer.c_str();
+  };
+  std::string species_text;
+  std::string plot_text;
+  std::string type_name;
+  std::int64_t read = 0;
+  CPLErrorReset();
+  while (true) {
+    cancel.check();
+    ArrowReleaser<ArrowArray> batch;
+    if (stream.value.get_next(&stream.value, &batch.value) != 0) {
+      const char* why = stream.value.get_last_error(&stream.value);
+      throw InputError(label + ": read failed after " + std::to_string(read) + " features" +
+                       (why != nullptr ? std::string(" (") + why + ")" : std::string()) + ": damaged file?");
+    }
+    if (batch.value.release == nullptr) break;  // end of stream
+    const ArrowArray& fids = *batch.value.children[fid_column];
+    const ArrowArray& geometries = *batch.value.children[geometry_column];
+    const ArrowArray* species = species_column >= 0 ? batch.value.children[species_column] : nullptr;
+    const ArrowArray* plots = plot_column >= 0 ? batch.value.children[plot_column] : nullptr;
+    const auto* fid_values = static_cast<const std::int64_t*>(fids.buffers[1]);
+    const auto* wkb_offsets = static_cast<const std::int32_t*>(geometries.buffers[1]);
+    const auto* wkb_data = static_cast<const std::uint8_t*>(geometries.buffers[2]);
+    for (std::int64_t row = 0; row < batch.value.length; ++row) {
+      const GIntBig fid = fid_values[fids.offset + row];
+      double x = 0.0;
+      double y = 0.0;
+      type_name.clear();
+      const std::int64_t g = geometries.offset + row;
+      const bool point = arrow_valid(geometries, row) &&
+                         point_from_wkb(wkb_data + wkb_offsets[g],
+                                        static_cast<std::size_t>(wkb_offsets[g + 1] - wkb_offsets[g]), x, y, type_name);
+      if (!point && !type_name.empty())
+        throw InputError(feature_label(label, fid) + ": geometry is " + type_name +
+                         "; sightings must be single points");
+      if (!point || (std::isnan(x) && std::isnan(y)))  // no geometry, or POINT EMPTY
+        throw InputError(feature_label(label, fid) + ": has no point geometry");
+      sink.add(fid, x, y, species ? text(*species, row, species_text) : nullptr,
+               plots ? text(*plots, row, plot_text) : nullptr);
+    }
+    read += batch.value.length;
+  }
+  if (CPLGetLastErrorType() >= CE_Failure || (declared >= 0 && read != declared))
+    throw InputError(label +
+                     (declared >= 0 ? ": declares " + std::to_string(declared) + " features but only " : ": only ") +
+                     std::to_string(read) + " could be read" +
+                     (last_gdal_message().empty() ? std::string() : " (" + last_gdal_message() + ")") +
+                     ": the file is truncated or damaged");
+  scan.features = read;
+  return true;
+#else
+  (void)layer, (void)label, (void)csv, (void)species_index, (void)plot_index, (void)sink, (void)cancel, (void)scan;
+  return false;
+#endif
+}
+
 SightingLayer read_sightings(const SurveyReadOptions& options, LoadedSurvey& loaded) {
   const auto& spec = options.sightings;
   DatasetPtr dataset = open_vector(spec.path, CsvColumns{options.x_field, options.y_field}, options.encoding);
@@ -167,65 +434,39 @@ SightingLayer read_sightings(const SurveyReadOptions& options, LoadedSurvey& loa
     loaded.notes.push_back(out.label + ": CRS assumed to be " + *options.assume_crs + " (as given)");
 
   TextDecoder decode(options.encoding);
-  std::map<std::string, std::set<std::string>> species_forms;  // lower-case trimmed -> as written
-  std::set<std::string> seen_forms;
-  SightingTable& table = out.table;
-  if (const GIntBig count = layer.GetFeatureCount(FALSE); count > 0) {
-    const auto n = static_cast<std::size_t>(count);
-    table.locations.reserve(n);
-    table.feature_ids.reserve(n);
-    table.species.reserve(n);
+  RowSink sink(out, options, decode);
+  LayerScan scan;
+  if (!read_through_arrow(layer, out.label, csv, species_index, plot_index, sink, options.cancel, scan)) {
+    scan = scan_layer(
+        layer, out.label, csv,
+        [&](OGRFeature& feature) {
+          const GIntBig fid = feature.GetFID();
+          const OGRGeometry* geometry = feature.GetGeometryRef();
+          if (geometry == nullptr || geometry->IsEmpty())
+            throw InputError(feature_label(out.label, fid) + ": has no point geometry" +
+                             csv_coordinate_text(feature, options));
+          const auto type = wkbFlatten(geometry->getGeometryType());
+          const OGRPoint* point = nullptr;
+          if (type == wkbPoint) {
+            point = geometry->toPoint();
+          } else if (type == wkbMultiPoint && geometry->toMultiPoint()->getNumGeometries() == 1) {
+            point = geometry->toMultiPoint()->getGeometryRef(0);
+          } else {
+            throw InputError(feature_label(out.label, fid) + ": geometry is " +
+                             OGRGeometryTypeToName(geometry->getGeometryType()) + "; sightings must be single points");
+          }
+          const bool has_species = species_index >= 0 && feature.IsFieldSetAndNotNull(species_index);
+          const bool has_plot = plot_index >= 0 && feature.IsFieldSetAndNotNull(plot_index);
+          sink.add(fid, point->getX(), point->getY(), has_species ? feature.GetFieldAsString(species_index) : nullptr,
+                   has_plot ? feature.GetFieldAsString(plot_index) : nullptr);
+        },
+        options.cancel);
   }
-  NameCoder species_code(table.species_names);
-  NameCoder plot_code(table.plot_names);
-  std::string written;
-  const LayerScan scan = scan_layer(
-      layer, out.label, csv,
-      [&](OGRFeature& feature) {
-        const GIntBig fid = feature.GetFID();
-        const OGRGeometry* geometry = feature.GetGeometryRef();
-        if (geometry == nullptr || geometry->IsEmpty())
-          throw InputError(feature_label(out.label, fid) + ": has no point geometry" +
-                           csv_coordinate_text(feature, options));
-        const auto type = wkbFlatten(geometry->getGeometryType());
-        const OGRPoint* point = nullptr;
-        if (type == wkbPoint) {
-          point = geometry->toPoint();
-        } else if (type == wkbMultiPoint && geometry->toMultiPoint()->getNumGeometries() == 1) {
-          point = geometry->toMultiPoint()->getGeometryRef(0);
-        } else {
-          throw InputError(feature_label(out.label, fid) + ": geometry is " +
-                           OGRGeometryTypeToName(geometry->getGeometryType()) + "; sightings must be single points");
-        }
-        const double x = point->getX();
-        const double y = point->getY();
-        if (!std::isfinite(x) || !std::isfinite(y))
-          throw InputError(feature_label(out.label, fid) + ": coordinate is NaN or infinite");
-        check_coordinate(x, y, out.crs, feature_label(out.label, fid));
-        std::string species;
-        if (species_index >= 0 && feature.IsFieldSetAndNotNull(species_index)) {
-          written = decode(feature.GetFieldAsString(species_index));
-          if (seen_forms.insert(written).second) species_forms[lower_ascii(trim(written))].insert(written);
-          species = trim(written);
-        }
-        if (species.empty())
-          throw InputError(feature_label(out.label, fid) + ": species field '" + options.species_field + "' is empty");
-        table.locations.push_back({x, y});
-        table.feature_ids.push_back(static_cast<std::int64_t>(fid));
-        table.species.push_back(species_code(species));
-        if (const auto plot = field_text(feature, plot_index, decode); plot && !plot->empty()) {
-          if (table.plots.size() + 1 < table.locations.size()) table.plots.resize(table.locations.size() - 1, 0);
-          table.plots.push_back(plot_code(*plot) + 1);
-        } else if (!table.plots.empty()) {
-          table.plots.push_back(0);
-        }
-      },
-      options.cancel);
   if (scan.blank_rows > 0)
     loaded.notes.push_back(out.label + ": " + std::to_string(scan.blank_rows) +
                            " blank row(s) (every field empty) skipped");
   if (const std::string w = decode.warning(out.label); !w.empty()) loaded.warnings.push_back(w);
-  if (const std::string w = species_variant_warning(species_forms); !w.empty())
+  if (const std::string w = species_variant_warning(sink.species_forms()); !w.empty())
     loaded.warnings.push_back(out.label + ": " + w);
   return out;
 }

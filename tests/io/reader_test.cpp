@@ -4,6 +4,7 @@
 #include <fstream>
 
 #include <gdal_priv.h>
+#include <gdal_utils.h>
 #include <gtest/gtest.h>
 #include <ogr_spatialref.h>
 #include <ogrsf_frmts.h>
@@ -184,6 +185,92 @@ TEST(LoadSurvey, NanCoordinateInGeoPackageIsNamed) {
   } catch (const InputError& e) {
     EXPECT_NE(std::string(e.what()).find("nan.gpkg: layer 'stems': feature 1:"), std::string::npos) << e.what();
   }
+}
+
+// A GeoPackage of stems in the demo's 'north' plot with the given geometries (WKT, UTM 30N)
+// and species (empty: null), plus a field the reader must skip.
+std::string write_stems(const TempDir& dir, const std::string& file,
+                        const std::vector<std::pair<std::string, std::string>>& rows) {
+  const std::string path = dir.file(file);
+  GDALDriver* gpkg = GetGDALDriverManager()->GetDriverByName("GPKG");
+  GDALDataset* ds = gpkg->Create(path.c_str(), 0, 0, 0, GDT_Unknown, nullptr);
+  OGRSpatialReference utm;
+  utm.importFromEPSG(32630);
+  OGRLayer* layer = ds->CreateLayer("stems", &utm, wkbUnknown, nullptr);
+  OGRFieldDefn note("note", OFTString);
+  OGRFieldDefn species("species", OFTString);
+  EXPECT_EQ(layer->CreateField(&note), OGRERR_NONE);
+  EXPECT_EQ(layer->CreateField(&species), OGRERR_NONE);
+  for (const auto& [wkt, name] : rows) {
+    OGRFeature feature(layer->GetLayerDefn());
+    feature.SetField("note", "recorded by hand");
+    if (!name.empty()) feature.SetField("species", name.c_str());
+    OGRGeometry* geometry = nullptr;
+    EXPECT_EQ(OGRGeometryFactory::createFromWkt(wkt.c_str(), nullptr, &geometry), OGRERR_NONE) << wkt;
+    feature.SetGeometryDirectly(geometry);
+    EXPECT_EQ(layer->CreateFeature(&feature), OGRERR_NONE);
+  }
+  GDALClose(ds);
+  return path;
+}
+
+TEST(LoadSurvey, ColumnarGeoPackageReadingEqualsFeatureByFeature) {
+  // A GeoPackage is read through GDAL's Arrow stream (OLCFastGetArrowStream), a GeoJSON
+  // copy (made by GDAL's VectorTranslate) feature by feature: the same points, species and
+  // order, with 2D, 3D and single-point MultiPoint geometries.
+  TempDir dir;
+  const std::string gpkg = write_stems(dir, "stems.gpkg",
+                                       {{"POINT (512020.5 6290420.25)", "oak"},
+                                        {"POINT Z (512050 6290450 312.5)", "ash"},
+                                        {"MULTIPOINT ((512080 6290480))", "oak"},
+                                        {"POINT (512010 6290490)", " Ash "}});
+  GDALDatasetUniquePtr source(GDALDataset::Open(gpkg.c_str(), GDAL_OF_VECTOR));
+  ASSERT_TRUE(source->GetLayer(0)->TestCapability(OLCFastGetArrowStream));
+  const std::string geojson = dir.file("stems.geojson");
+  const char* args[] = {"-f", "GeoJSON", nullptr};
+  GDALVectorTranslateOptions* translate = GDALVectorTranslateOptionsNew(const_cast<char**>(args), nullptr);
+  GDALDatasetH h = source.get();
+  GDALClose(GDALVectorTranslate(geojson.c_str(), nullptr, 1, &h, translate, nullptr));
+  GDALVectorTranslateOptionsFree(translate);
+  const LoadedSurvey a = load_survey(demo_options(gpkg));
+  const LoadedSurvey b = load_survey(demo_options(geojson));
+  EXPECT_EQ(a.survey.species(), (std::vector<std::string>{"Ash", "ash", "oak"}));
+  EXPECT_EQ(a.survey.species(), b.survey.species());
+  ASSERT_EQ(a.survey.plots().size(), b.survey.plots().size());
+  for (std::size_t p = 0; p < a.survey.plots().size(); ++p) {
+    const auto& pa = a.survey.patterns()[p];
+    const auto& pb = b.survey.patterns()[p];
+    EXPECT_EQ(pa.marks, pb.marks);
+    ASSERT_EQ(pa.points.size(), pb.points.size());
+    for (std::size_t i = 0; i < pa.points.size(); ++i) {
+      EXPECT_EQ(pa.points[i].x, pb.points[i].x);
+      EXPECT_EQ(pa.points[i].y, pb.points[i].y);
+    }
+  }
+  EXPECT_EQ(a.survey.sighting_count(), 4U);
+  EXPECT_EQ(a.survey.patterns()[0].feature_ids, (std::vector<std::int64_t>{1, 2, 3, 4}));  // 'north' is first
+  EXPECT_EQ(a.survey.patterns()[0].points[0].x, 512020.5);
+  EXPECT_EQ(a.survey.patterns()[0].points[0].y, 6290420.25);
+}
+
+TEST(LoadSurvey, ColumnarReadingRefusesWhatFeatureReadingRefuses) {
+  TempDir dir;
+  const auto refused = [&](const std::string& file, const std::vector<std::pair<std::string, std::string>>& rows,
+                           const std::string& message) {
+    try {
+      (void)load_survey(demo_options(write_stems(dir, file, rows)));
+      ADD_FAILURE() << file;
+    } catch (const InputError& e) {
+      EXPECT_NE(std::string(e.what()).find(message), std::string::npos) << e.what();
+    }
+  };
+  refused("two.gpkg", {{"POINT (512020 6290420)", "oak"}, {"MULTIPOINT ((512080 6290480), (512081 6290481))", "oak"}},
+          "layer 'stems': feature 2: geometry is MultiPoint of several points; sightings must be single points");
+  refused("line.gpkg", {{"LINESTRING (512020 6290420, 512030 6290430)", "oak"}},
+          "feature 1: geometry is Line String; sightings must be single points");
+  refused("empty.gpkg", {{"POINT (512020 6290420)", "oak"}, {"POINT EMPTY", "oak"}},
+          "feature 2: has no point geometry");
+  refused("unnamed.gpkg", {{"POINT (512020 6290420)", ""}}, "feature 1: species field 'species' is empty");
 }
 
 TEST(ReadDetectionTable, ReadsSpeciesProbabilitiesAndErrors) {

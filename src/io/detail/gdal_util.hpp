@@ -177,6 +177,8 @@ class TextDecoder {
   explicit TextDecoder(std::optional<std::string> encoding = std::nullopt);
   [[nodiscard]] std::string operator()(const char* raw);
   [[nodiscard]] std::int64_t replaced() const { return replaced_; }
+  /// Counts `values` more replaced values (a caller that reuses a decoded value).
+  void count_replaced(std::int64_t values) { replaced_ += values; }
   /// A warning for `label` when values were replaced, else empty.
   [[nodiscard]] std::string warning(const std::string& label) const;
 
