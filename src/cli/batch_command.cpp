@@ -260,6 +260,8 @@ BatchOptions batch_options_of(const BatchCommandOptions& o, CLI::App& command, c
   else if (single)
     options.density.detection = DetectionTable::uniform(*single);
   options.randomness.simulations = o.simulations;
+  // A count from the command line or the run file is run at every n; the default adapts.
+  options.randomness.adapt_to_large_n = command.get_option("--simulations")->count() == 0 && o.simulations == 999;
   options.randomness.seed = o.seed;
   options.randomness.alpha = alpha_from_confidence(o.common.confidence);
   std::tie(options.randomness.quadrat.nx, options.randomness.quadrat.ny) = parse_quadrat_grid(o.quadrats);
@@ -478,7 +480,8 @@ Action add_batch_command(CLI::App& app) {
       ->check(probability());
   c->add_option("--detection-se", o->detection_se, "Standard error of --detection-prob (default: 0)")
       ->check(non_negative_number());
-  c->add_option("--simulations", o->simulations, "CSR simulations per group")
+  c->add_option("--simulations", o->simulations,
+                "CSR simulations per group (if not given: 999, 199 above 20,000 points, 39 above 200,000)")
       ->check(whole_number(0, 1000000))
       ->capture_default_str();
   c->add_option("--seed", o->seed, "Seed; each plot's simulations derive their own from it")

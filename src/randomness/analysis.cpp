@@ -83,6 +83,15 @@ GroupResult analyse_pattern(const std::vector<Point>& points, const Window& wind
   GroupResult g;
   g.n = points.size();
   const std::size_t n = points.size();
+  // Envelope simulations: fewer by default at large n (large_n_simulations).
+  std::size_t simulations = options.simulations;
+  if (options.adapt_to_large_n && options.run_envelope && large_n_simulations(n) < simulations) {
+    simulations = large_n_simulations(n);
+    g.notes.push_back("envelopes from " + std::to_string(simulations) + " simulations, the default for " +
+                      std::to_string(n) +
+                      " points (999 up to 20,000 points, 199 up to 200,000, 39 beyond); choose "
+                      "the number of simulations to run more");
+  }
 
   if (options.run_quadrat) {
     QuadratOptions q = options.quadrat;
@@ -102,7 +111,7 @@ GroupResult analyse_pattern(const std::vector<Point>& points, const Window& wind
 
   if (g.quadrat && g.quadrat->monte_carlo_p_value) g.simulations_run = options.simulations;
   if (!options.run_clark_evans && !options.run_envelope) {  // quadrat only
-    decide_verdict(g, options.alpha, options.simulations);
+    decide_verdict(g, options.alpha, simulations);
     return g;
   }
   const double rmax = options.rmax_m.value_or(default_rmax(window, n));
@@ -139,13 +148,13 @@ GroupResult analyse_pattern(const std::vector<Point>& points, const Window& wind
   const bool clark_evans_simulates =
       g.clark_evans &&
       (options.clark_evans_monte_carlo || !clark_evans_normal_holds(g.clark_evans->edge_correction, g.clark_evans->n));
-  const bool need_simulations = options.simulations > 0 && (options.run_envelope || clark_evans_simulates);
+  const bool need_simulations = simulations > 0 && (options.run_envelope || clark_evans_simulates);
   if (g.clark_evans && g.clark_evans->edge_correction == NeighbourEdgeCorrection::border &&
-      std::isnan(g.clark_evans->p_value) && options.simulations == 0)
+      std::isnan(g.clark_evans->p_value) && simulations == 0)
     g.notes.push_back(
         "Clark-Evans with the border method has no p-value without simulations below 1000 points: its normal "
         "approximation rejects too often (8-10% at nominal 5% for n <= 200); run simulations");
-  if (g.clark_evans && !options.run_envelope && !clark_evans_simulates && options.simulations > 0)
+  if (g.clark_evans && !options.run_envelope && !clark_evans_simulates && simulations > 0)
     g.notes.push_back(
         "Clark-Evans p-value from the normal approximation, which holds its level at this n with the " +
         std::string(edge_correction_name(g.clark_evans->edge_correction)) +
@@ -153,13 +162,13 @@ GroupResult analyse_pattern(const std::vector<Point>& points, const Window& wind
         (g.clark_evans->edge_correction == NeighbourEdgeCorrection::border ? "5.8-6.8% for n >= 1000" : "4.3-5.3%") +
         "); no simulations were run for it; a Monte Carlo p-value can be requested");
   if (need_simulations) {
-    g.simulations_run = options.simulations;
-    std::vector<SummaryCurves> simulated(options.run_envelope ? options.simulations : 0);
-    std::vector<double> simulated_ce(options.simulations, std::nan(""));
+    g.simulations_run = simulations;
+    std::vector<SummaryCurves> simulated(options.run_envelope ? simulations : 0);
+    std::vector<double> simulated_ce(simulations, std::nan(""));
     const NeighbourEdgeCorrection ce_correction =
         g.clark_evans ? g.clark_evans->edge_correction : NeighbourEdgeCorrection::none;
     const bool ce_needs_boundary = ce_correction == NeighbourEdgeCorrection::border;
-    parallel_for(options.simulations, options.threads, [&](std::size_t s) {
+    parallel_for(simulations, options.threads, [&](std::size_t s) {
       options.cancel.check();
       Engine engine(derive_seed(options.seed, key + seed_key({"csr", std::to_string(s)})));
       const std::vector<Point> pattern = simulate_binomial(window, n, engine);
@@ -181,7 +190,11 @@ GroupResult analyse_pattern(const std::vector<Point>& points, const Window& wind
     });
     if (g.clark_evans) {
       g.clark_evans->monte_carlo_p_value = monte_carlo_tails(g.clark_evans->mean_distance, simulated_ce).two_sided;
-      if (g.clark_evans->edge_correction == NeighbourEdgeCorrection::border) {
+      // The border method reports the Monte Carlo p-value, unless the simulations were cut
+      // for a large n, where its normal law holds and is the more precise.
+      const bool cut = simulations < options.simulations &&
+                       clark_evans_normal_holds(g.clark_evans->edge_correction, g.clark_evans->n);
+      if (g.clark_evans->edge_correction == NeighbourEdgeCorrection::border && !cut) {
         g.clark_evans->p_value = *g.clark_evans->monte_carlo_p_value;
         g.clark_evans->p_value_method = "monte-carlo";
       }
@@ -201,12 +214,12 @@ GroupResult analyse_pattern(const std::vector<Point>& points, const Window& wind
     }
   }
   if (g.clark_evans && g.clark_evans->edge_correction == NeighbourEdgeCorrection::border &&
-      g.clark_evans->p_value_method == "normal" && (options.run_envelope || options.simulations == 0))
+      g.clark_evans->p_value_method == "normal" && (options.run_envelope || simulations == 0))
     g.notes.push_back(
         "Clark-Evans border method with the normal p-value (n >= 1000): in simulation its size runs about one "
         "point above nominal (5.8-6.8% at 5%)");
 
-  decide_verdict(g, options.alpha, options.simulations);
+  decide_verdict(g, options.alpha, simulations);
   return g;
 }
 
@@ -304,6 +317,12 @@ InteractionResult random_labelling_test(const std::vector<Point>& a, const std::
   result.note = too_few_simulations("random-labelling test", options.simulations, options.alpha, false);
   if (!result.note.empty()) result.direction = "undetermined";
   return result;
+}
+
+std::size_t large_n_simulations(std::size_t n) {
+  if (n <= 20000) return 999;
+  if (n <= 200000) return 199;
+  return 39;
 }
 
 std::size_t minimum_simulations(double alpha, bool two_sided) {

@@ -133,6 +133,33 @@ TEST(AnalysePattern, ClarkEvansAloneSimulatesOnlyWhereItsNormalLawIsDoubtful) {
   EXPECT_EQ(border_many.clark_evans->p_value, border_many.clark_evans->normal_p_value);
 }
 
+TEST(AnalysePattern, LargeGroupsRunFewerEnvelopeSimulationsUnlessTheCountWasChosen) {
+  EXPECT_EQ(large_n_simulations(20000), 999U);
+  EXPECT_EQ(large_n_simulations(20001), 199U);
+  EXPECT_EQ(large_n_simulations(200000), 199U);
+  EXPECT_EQ(large_n_simulations(200001), 39U);
+  Engine engine(derive_seed(6, seed_key({"large-n"})));
+  const Window w = Window::rectangle(0, 0, 500, 500);
+  const auto points = simulate_binomial(w, 25000, engine);
+  RandomnessOptions o;
+  o.run_quadrat = false;
+  o.rmax_m = 1.0;  // few pairs: the test is about the count
+  o.threads = 2;
+  const GroupResult adapted = analyse_pattern(points, w, o, "k");
+  EXPECT_EQ(adapted.simulations_run, 199U);
+  ASSERT_NE(adapted.l_envelope(), nullptr);
+  EXPECT_EQ(adapted.l_envelope()->simulations, 199U);
+  ASSERT_FALSE(adapted.notes.empty());
+  EXPECT_NE(adapted.notes.front().find("199 simulations, the default for 25000 points"), std::string::npos);
+  EXPECT_EQ(adapted.verdict_basis, "DCLF test on L");
+  // A chosen count runs as chosen.
+  o.adapt_to_large_n = false;
+  o.simulations = 249;
+  const GroupResult chosen = analyse_pattern(points, w, o, "k");
+  EXPECT_EQ(chosen.simulations_run, 249U);
+  EXPECT_EQ(chosen.l_envelope()->simulations, 249U);
+}
+
 TEST(AnalyseRandomness, APlotOfOneSpeciesComputesItsGroupOnceAndRepeatsItForAllSpecies) {
   Engine engine(derive_seed(4, seed_key({"one-species"})));
   const Window w = Window::rectangle(0, 0, 80, 80);

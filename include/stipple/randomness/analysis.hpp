@@ -23,6 +23,11 @@ struct RandomnessOptions {
   QuadratOptions quadrat;                                  ///< its `simulations` is set from below
   std::optional<NeighbourEdgeCorrection> edge_correction;  ///< default per window shape
   std::size_t simulations = 999;
+  /// When the simulation count was not chosen by the user: groups with envelopes above
+  /// 20,000 points run large_n_simulations(n) if that is fewer (199, then 39 above 200,000),
+  /// with a note, so a run stays within minutes at any n. Set false to run `simulations`
+  /// at every n.
+  bool adapt_to_large_n = true;
   std::uint64_t seed = default_seed;
   unsigned threads = 0;          ///< 0 = all cores; results never depend on it
   std::optional<double> rmax_m;  ///< default: default_rmax() per group
@@ -102,6 +107,11 @@ struct RandomnessResult {
   std::vector<InteractionResult> interactions;
   std::vector<SkippedGroup> skipped;
 };
+
+/// The envelope simulations a group of n points runs by default when the user chose none:
+/// 999 up to 20,000 points, 199 up to 200,000, 39 beyond (each simulation costs about n
+/// times the pairs within rmax, and the DCLF test reaches p = 0.025 with 39 simulations).
+[[nodiscard]] std::size_t large_n_simulations(std::size_t n);
 
 /// The fewest simulations N with which a Monte Carlo rank test can reject at p < alpha:
 /// the smallest attainable p-value is 1 / (N + 1) for a one-sided test (DCLF, MAD) and
