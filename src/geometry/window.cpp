@@ -1,6 +1,7 @@
 #include "stipple/geometry/window.hpp"
 
 #include <algorithm>
+#include <array>
 #include <cmath>
 #include <limits>
 #include <sstream>
@@ -48,6 +49,39 @@ Window::Window(BgMultiPolygon shape) : shape_(std::move(shape)) {
 }
 
 namespace {
+
+// A vector that keeps its first N elements on the stack: the circle and edge queries run
+// millions of times per analysis, and almost always need only a few.
+template <typename T, std::size_t N>
+class SmallVector {
+ public:
+  void push_back(const T& value) {
+    if (size_ < N) {
+      inline_[size_] = value;
+    } else {
+      if (heap_.empty()) heap_.assign(inline_.begin(), inline_.end());
+      heap_.push_back(value);
+    }
+    ++size_;
+  }
+  T* begin() { return size_ <= N ? inline_.data() : heap_.data(); }
+  T* end() { return begin() + size_; }
+  [[nodiscard]] std::size_t size() const { return size_; }
+  [[nodiscard]] bool empty() const { return size_ == 0; }
+  T& operator[](std::size_t i) { return begin()[i]; }
+  void resize_down(std::size_t n) {
+    size_ = n;
+    if (size_ <= N && !heap_.empty()) {
+      std::copy(heap_.begin(), heap_.begin() + static_cast<std::ptrdiff_t>(size_), inline_.begin());
+      heap_.clear();
+    }
+  }
+
+ private:
+  std::array<T, N> inline_{};
+  std::vector<T> heap_;
+  std::size_t size_ = 0;
+};
 
 // Windows of this many edges or fewer are scanned edge by edge: an index would not pay.
 constexpr std::size_t indexed_from_edges = 16;
@@ -134,14 +168,14 @@ void Window::for_each_edge_near(double xmin, double ymin, double xmax, double ym
   const std::size_t y0 = clamped_cell(ymin, bounds_.ymin, cell_h_, grid_ny_);
   const std::size_t y1 = clamped_cell(ymax, bounds_.ymin, cell_h_, grid_ny_);
   if (xmax < bounds_.xmin || xmin > bounds_.xmax || ymax < bounds_.ymin || ymin > bounds_.ymax) return;
-  std::vector<std::uint32_t> near;
+  SmallVector<std::uint32_t, 128> near;
   for (std::size_t y = y0; y <= y1; ++y)
     for (std::size_t x = x0; x <= x1; ++x) {
       const std::size_t c = y * grid_nx_ + x;
-      near.insert(near.end(), cell_edges_.begin() + cell_start_[c], cell_edges_.begin() + cell_start_[c + 1]);
+      for (std::uint32_t k = cell_start_[c]; k < cell_start_[c + 1]; ++k) near.push_back(cell_edges_[k]);
     }
   std::sort(near.begin(), near.end());
-  near.erase(std::unique(near.begin(), near.end()), near.end());
+  near.resize_down(static_cast<std::size_t>(std::unique(near.begin(), near.end()) - near.begin()));
   for (const auto i : near) visit(static_cast<std::size_t>(i));
 }
 
@@ -192,8 +226,7 @@ double Window::circle_fraction_inside(const Point& c, double r) const {
     double ux;
     double uy;
   };
-  std::vector<Crossing> crossings;
-  crossings.reserve(8);
+  SmallVector<Crossing, 16> crossings;
   // Edges whose boxes miss the circle's (with a margin for rounding) cannot cross it.
   const double margin = 1e-9 * (r + std::abs(c.x) + std::abs(c.y));
   for_each_edge_near(c.x - r - margin, c.y - r - margin, c.x + r + margin, c.y + r + margin, [&](std::size_t i) {
