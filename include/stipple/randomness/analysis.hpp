@@ -61,8 +61,9 @@ struct GroupResult {
   std::string plot;
   std::optional<std::string> species;  ///< empty = all species together
   std::size_t n = 0;
-  /// CSR simulations this group ran: the requested number, or 0 where no test needed them
-  /// (Clark-Evans alone where its normal law holds, quadrat test by chi-square).
+  /// CSR simulations this group ran: the requested number, large_n_simulations(n) when that
+  /// is fewer and adapt_to_large_n holds, or 0 where no test needed them (Clark-Evans alone
+  /// where its normal law holds, quadrat test by chi-square).
   std::size_t simulations_run = 0;
   std::optional<QuadratResult> quadrat;
   std::optional<ClarkEvansResult> clark_evans;
