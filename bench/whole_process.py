@@ -122,6 +122,24 @@ def square_ring(side=1000.0):
     return [(E0, N0), (E0, N0 + side), (E0 + side, N0 + side), (E0 + side, N0), (E0, N0)]
 
 
+def write_survey(gpkg, plots, points_layer, x, y, species):
+    """Writes plots (layer 'plots') and sightings (layer `points_layer`) into the GeoPackage
+    `gpkg` through CSV and ogr2ogr; the file appears only once complete."""
+    tmp = gpkg.with_suffix(".tmp")
+    tmp.mkdir(exist_ok=True)
+    write_plots_csv(tmp / "plots.csv", plots)
+    write_points_csv(tmp / "points.csv", x, y, species)
+    partial = gpkg.with_suffix(".partial.gpkg")
+    partial.unlink(missing_ok=True)
+    ogr2ogr(tmp / "plots.csv", partial, "plots", "wkt")
+    ogr2ogr(tmp / "points.csv", partial, points_layer, "xy", append=True)
+    for p in tmp.iterdir():
+        p.unlink()
+    tmp.rmdir()
+    partial.rename(gpkg)
+    return gpkg
+
+
 def pasture_survey(work, n, name=None, square=False):
     """One irregular pasture (or a 1 km2 square) with n ant mounds (one species), uniform:
     sightings + plots."""
@@ -132,19 +150,7 @@ def pasture_survey(work, n, name=None, square=False):
     rng = np.random.default_rng([SEED, n])
     ring = square_ring() if square else pasture_ring()
     x, y = uniform_in(ring, n, rng)
-    tmp = work / f"{name}.tmp"
-    tmp.mkdir(exist_ok=True)
-    write_plots_csv(tmp / "plots.csv", [("pasture", ring)])
-    write_points_csv(tmp / "mounds.csv", x, y, "yellow-meadow-ant")
-    partial = work / f"{name}.partial.gpkg"
-    partial.unlink(missing_ok=True)
-    ogr2ogr(tmp / "plots.csv", partial, "plots", "wkt")
-    ogr2ogr(tmp / "mounds.csv", partial, "mounds", "xy", append=True)
-    for p in tmp.iterdir():
-        p.unlink()
-    tmp.rmdir()
-    partial.rename(gpkg)
-    return gpkg
+    return write_survey(gpkg, [("pasture", ring)], "mounds", x, y, "yellow-meadow-ant")
 
 
 SPECIES5 = ["heath-spotted-orchid", "bog-asphodel", "cross-leaved-heath", "round-leaved-sundew", "cotton-grass"]
@@ -171,19 +177,7 @@ def many_plots_survey(work, n_plots, n_points):
     x = x0 + rng.uniform(0.0, side, n_points)
     y = y0 + rng.uniform(0.0, side, n_points)
     species = np.array(SPECIES5)[rng.integers(0, len(SPECIES5), n_points)]
-    tmp = work / f"{name}.tmp"
-    tmp.mkdir(exist_ok=True)
-    write_plots_csv(tmp / "plots.csv", plots)
-    write_points_csv(tmp / "sightings.csv", x, y, species)
-    partial = work / f"{name}.partial.gpkg"
-    partial.unlink(missing_ok=True)
-    ogr2ogr(tmp / "plots.csv", partial, "plots", "wkt")
-    ogr2ogr(tmp / "sightings.csv", partial, "sightings", "xy", append=True)
-    for p in tmp.iterdir():
-        p.unlink()
-    tmp.rmdir()
-    partial.rename(gpkg)
-    return gpkg
+    return write_survey(gpkg, plots, "sightings", x, y, species)
 
 
 def season_folder(work, n_files, n_points):

@@ -6,6 +6,7 @@
 
 #include <boost/geometry.hpp>
 
+#include "box_grid.hpp"
 #include "stipple/error.hpp"
 #include "stipple/format.hpp"
 #include "stipple/geometry/survey.hpp"
@@ -127,59 +128,30 @@ class PlotLocator {
  public:
   explicit PlotLocator(const std::vector<Plot>& plots) : plots_(plots) {
     if (plots.empty()) return;
-    bounds_ = plots.front().window.bounds();
+    std::vector<Bounds> boxes;
+    Bounds all = plots.front().window.bounds();
     for (const auto& p : plots) {
       const Bounds& b = p.window.bounds();
-      bounds_ = {std::min(bounds_.xmin, b.xmin), std::min(bounds_.ymin, b.ymin), std::max(bounds_.xmax, b.xmax),
-                 std::max(bounds_.ymax, b.ymax)};
+      boxes.push_back(b);
+      all = {std::min(all.xmin, b.xmin), std::min(all.ymin, b.ymin), std::max(all.xmax, b.xmax),
+             std::max(all.ymax, b.ymax)};
     }
-    const double cells = 4.0 * static_cast<double>(plots.size());
-    const double w = std::max(bounds_.width(), 1e-9);
-    const double h = std::max(bounds_.height(), 1e-9);
-    nx_ = static_cast<std::size_t>(std::clamp(std::ceil(std::sqrt(cells * w / h)), 1.0, 2048.0));
-    ny_ = static_cast<std::size_t>(std::clamp(std::ceil(cells / static_cast<double>(nx_)), 1.0, 2048.0));
-    cell_w_ = w / static_cast<double>(nx_);
-    cell_h_ = h / static_cast<double>(ny_);
-    std::vector<std::vector<std::uint32_t>> lists(nx_ * ny_);
-    for (std::size_t i = 0; i < plots.size(); ++i) {
-      const Bounds& b = plots[i].window.bounds();
-      for (std::size_t y = cell(b.ymin, bounds_.ymin, cell_h_, ny_); y <= cell(b.ymax, bounds_.ymin, cell_h_, ny_); ++y)
-        for (std::size_t x = cell(b.xmin, bounds_.xmin, cell_w_, nx_); x <= cell(b.xmax, bounds_.xmin, cell_w_, nx_);
-             ++x)
-          lists[y * nx_ + x].push_back(static_cast<std::uint32_t>(i));
-    }
-    start_.push_back(0);
-    for (const auto& l : lists) {
-      entries_.insert(entries_.end(), l.begin(), l.end());
-      start_.push_back(static_cast<std::uint32_t>(entries_.size()));
-    }
+    grid_ = geometry_detail::BoxGrid(all, boxes, 4.0 * static_cast<double>(plots.size()), 2048.0, false);
   }
 
   // The first plot, in input order, whose window contains the point (boundary inclusive);
   // plots.size() when none does.
   [[nodiscard]] std::size_t find(const Point& p) const {
-    if (start_.empty() || p.x < bounds_.xmin || p.x > bounds_.xmax || p.y < bounds_.ymin || p.y > bounds_.ymax)
-      return plots_.size();
-    const std::size_t c = cell(p.y, bounds_.ymin, cell_h_, ny_) * nx_ + cell(p.x, bounds_.xmin, cell_w_, nx_);
-    for (std::uint32_t k = start_[c]; k < start_[c + 1]; ++k)
-      if (plots_[entries_[k]].window.contains(p)) return entries_[k];
+    const Bounds& b = grid_.bounds();
+    if (grid_.empty() || p.x < b.xmin || p.x > b.xmax || p.y < b.ymin || p.y > b.ymax) return plots_.size();
+    for (const auto i : grid_.cell(grid_.column(p.x), grid_.row(p.y)))
+      if (plots_[i].window.contains(p)) return i;
     return plots_.size();
   }
 
  private:
-  static std::size_t cell(double v, double origin, double size, std::size_t count) {
-    const double c = std::floor((v - origin) / size);
-    if (!(c > 0.0)) return 0;
-    return std::min(static_cast<std::size_t>(c), count - 1);
-  }
   const std::vector<Plot>& plots_;
-  Bounds bounds_;
-  std::size_t nx_ = 1;
-  std::size_t ny_ = 1;
-  double cell_w_ = 1.0;
-  double cell_h_ = 1.0;
-  std::vector<std::uint32_t> start_;
-  std::vector<std::uint32_t> entries_;
+  geometry_detail::BoxGrid grid_;
 };
 
 }  // namespace

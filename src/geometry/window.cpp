@@ -9,6 +9,7 @@
 #include <boost/geometry.hpp>
 #include <boost/math/constants/constants.hpp>
 
+#include "box_grid.hpp"
 #include "stipple/error.hpp"
 
 namespace bg = boost::geometry;
@@ -97,83 +98,35 @@ double segment_distance2(const Point& p, const Window::Segment& e) {
   return dx * dx + dy * dy;
 }
 
-std::size_t clamped_cell(double v, double origin, double size, std::size_t count) {
-  const double c = std::floor((v - origin) / size);
-  if (!(c > 0.0)) return 0;
-  return std::min(static_cast<std::size_t>(c), count - 1);
-}
-
-// Compressed lists: for each key (cell or band) the values, from (key, value) pairs given
-// as a count pass and a fill pass over the same generator.
-template <typename ForEachPair>
-void build_lists(std::size_t keys, ForEachPair&& for_each_pair, std::vector<std::uint32_t>& start,
-                 std::vector<std::uint32_t>& values) {
-  start.assign(keys + 1, 0);
-  for_each_pair([&](std::size_t key, std::uint32_t) { ++start[key + 1]; });
-  for (std::size_t k = 0; k < keys; ++k) start[k + 1] += start[k];
-  values.resize(start[keys]);
-  std::vector<std::uint32_t> next(start.begin(), start.end() - 1);
-  for_each_pair([&](std::size_t key, std::uint32_t value) { values[next[key]++] = value; });
-}
-
 }  // namespace
 
 void Window::build_edge_index() {
   if (edges_.size() <= indexed_from_edges) return;
+  std::vector<Bounds> boxes;
+  boxes.reserve(edges_.size());
+  for (const auto& e : edges_)
+    boxes.push_back({std::min(e.a.x, e.b.x), std::min(e.a.y, e.b.y), std::max(e.a.x, e.b.x), std::max(e.a.y, e.b.y)});
   // About two cells per edge, shaped like the bounds; at most 1024 a side.
-  const double w = bounds_.width();
-  const double h = bounds_.height();
-  const double cells = 2.0 * static_cast<double>(edges_.size());
-  grid_nx_ = static_cast<std::size_t>(std::clamp(std::ceil(std::sqrt(cells * w / h)), 1.0, 1024.0));
-  grid_ny_ = static_cast<std::size_t>(std::clamp(std::ceil(cells / static_cast<double>(grid_nx_)), 1.0, 1024.0));
-  cell_w_ = w / static_cast<double>(grid_nx_);
-  cell_h_ = h / static_cast<double>(grid_ny_);
-  const auto cells_of = [this](const Segment& e, auto&& visit) {
-    const std::size_t x0 = clamped_cell(std::min(e.a.x, e.b.x), bounds_.xmin, cell_w_, grid_nx_);
-    const std::size_t x1 = clamped_cell(std::max(e.a.x, e.b.x), bounds_.xmin, cell_w_, grid_nx_);
-    const std::size_t y0 = clamped_cell(std::min(e.a.y, e.b.y), bounds_.ymin, cell_h_, grid_ny_);
-    const std::size_t y1 = clamped_cell(std::max(e.a.y, e.b.y), bounds_.ymin, cell_h_, grid_ny_);
-    for (std::size_t y = y0; y <= y1; ++y) visit(y, x0, x1);
-  };
-  build_lists(
-      grid_nx_ * grid_ny_,
-      [&](auto&& add) {
-        for (std::size_t i = 0; i < edges_.size(); ++i)
-          cells_of(edges_[i], [&](std::size_t y, std::size_t x0, std::size_t x1) {
-            for (std::size_t x = x0; x <= x1; ++x) add(y * grid_nx_ + x, static_cast<std::uint32_t>(i));
-          });
-      },
-      cell_start_, cell_edges_);
-  build_lists(
-      grid_ny_,
-      [&](auto&& add) {
-        for (std::size_t i = 0; i < edges_.size(); ++i)
-          cells_of(edges_[i], [&](std::size_t y, std::size_t, std::size_t) { add(y, static_cast<std::uint32_t>(i)); });
-      },
-      band_start_, band_edges_);
-}
-
-std::size_t Window::band_of(double y) const {
-  return clamped_cell(y, bounds_.ymin, cell_h_, grid_ny_);
+  edge_grid_ = std::make_shared<const geometry_detail::BoxGrid>(bounds_, boxes,
+                                                                2.0 * static_cast<double>(edges_.size()), 1024.0, true);
 }
 
 template <typename Visit>
 void Window::for_each_edge_near(double xmin, double ymin, double xmax, double ymax, Visit&& visit) const {
-  if (cell_start_.empty()) {
+  if (!edge_grid_) {
     for (std::size_t i = 0; i < edges_.size(); ++i) visit(i);
     return;
   }
-  const std::size_t x0 = clamped_cell(xmin, bounds_.xmin, cell_w_, grid_nx_);
-  const std::size_t x1 = clamped_cell(xmax, bounds_.xmin, cell_w_, grid_nx_);
-  const std::size_t y0 = clamped_cell(ymin, bounds_.ymin, cell_h_, grid_ny_);
-  const std::size_t y1 = clamped_cell(ymax, bounds_.ymin, cell_h_, grid_ny_);
   if (xmax < bounds_.xmin || xmin > bounds_.xmax || ymax < bounds_.ymin || ymin > bounds_.ymax) return;
+  const geometry_detail::BoxGrid& grid = *edge_grid_;
+  const std::size_t x0 = grid.column(xmin);
+  const std::size_t x1 = grid.column(xmax);
+  const std::size_t y0 = grid.row(ymin);
+  const std::size_t y1 = grid.row(ymax);
   SmallVector<std::uint32_t, 128> near;
   for (std::size_t y = y0; y <= y1; ++y)
-    for (std::size_t x = x0; x <= x1; ++x) {
-      const std::size_t c = y * grid_nx_ + x;
-      for (std::uint32_t k = cell_start_[c]; k < cell_start_[c + 1]; ++k) near.push_back(cell_edges_[k]);
-    }
+    for (std::size_t x = x0; x <= x1; ++x)
+      for (const auto i : grid.cell(x, y)) near.push_back(i);
   std::sort(near.begin(), near.end());
   near.resize_down(static_cast<std::size_t>(std::unique(near.begin(), near.end()) - near.begin()));
   for (const auto i : near) visit(static_cast<std::size_t>(i));
@@ -181,36 +134,37 @@ void Window::for_each_edge_near(double xmin, double ymin, double xmax, double ym
 
 double Window::boundary_distance(const Point& p) const {
   double best2 = std::numeric_limits<double>::infinity();
-  if (cell_start_.empty()) {
+  if (!edge_grid_) {
     for (const auto& e : edges_) best2 = std::min(best2, segment_distance2(p, e));
     return std::sqrt(best2);
   }
   // Rings of cells around the point's cell, until no unvisited cell can hold a nearer edge.
-  const auto cx = static_cast<std::ptrdiff_t>(clamped_cell(p.x, bounds_.xmin, cell_w_, grid_nx_));
-  const auto cy = static_cast<std::ptrdiff_t>(clamped_cell(p.y, bounds_.ymin, cell_h_, grid_ny_));
-  const auto nx = static_cast<std::ptrdiff_t>(grid_nx_);
-  const auto ny = static_cast<std::ptrdiff_t>(grid_ny_);
+  const geometry_detail::BoxGrid& grid = *edge_grid_;
+  const double cell_w = grid.cell_width();
+  const double cell_h = grid.cell_height();
+  const auto cx = static_cast<std::ptrdiff_t>(grid.column(p.x));
+  const auto cy = static_cast<std::ptrdiff_t>(grid.row(p.y));
+  const auto nx = static_cast<std::ptrdiff_t>(grid.columns());
+  const auto ny = static_cast<std::ptrdiff_t>(grid.rows());
   const std::ptrdiff_t rings = std::max(nx, ny);
   for (std::ptrdiff_t k = 0; k <= rings; ++k) {
     for (std::ptrdiff_t y = cy - k; y <= cy + k; ++y) {
       if (y < 0 || y >= ny) continue;
       const bool edge_row = y == cy - k || y == cy + k;
       for (std::ptrdiff_t x = cx - k; x <= cx + k; x += edge_row ? 1 : 2 * k) {
-        if (x >= 0 && x < nx) {
-          const auto c = static_cast<std::size_t>(y * nx + x);
-          for (std::uint32_t j = cell_start_[c]; j < cell_start_[c + 1]; ++j)
-            best2 = std::min(best2, segment_distance2(p, edges_[cell_edges_[j]]));
-        }
+        if (x >= 0 && x < nx)
+          for (const auto i : grid.cell(static_cast<std::size_t>(x), static_cast<std::size_t>(y)))
+            best2 = std::min(best2, segment_distance2(p, edges_[i]));
         if (k == 0) break;
       }
     }
     // Every edge not seen lies in cells outside the visited square (sides beyond the grid
     // hold none): its distance is at least the point's distance to that square's sides.
     double reach = std::numeric_limits<double>::infinity();
-    if (cx - k > 0) reach = std::min(reach, p.x - (bounds_.xmin + static_cast<double>(cx - k) * cell_w_));
-    if (cx + k < nx - 1) reach = std::min(reach, bounds_.xmin + static_cast<double>(cx + k + 1) * cell_w_ - p.x);
-    if (cy - k > 0) reach = std::min(reach, p.y - (bounds_.ymin + static_cast<double>(cy - k) * cell_h_));
-    if (cy + k < ny - 1) reach = std::min(reach, bounds_.ymin + static_cast<double>(cy + k + 1) * cell_h_ - p.y);
+    if (cx - k > 0) reach = std::min(reach, p.x - (bounds_.xmin + static_cast<double>(cx - k) * cell_w));
+    if (cx + k < nx - 1) reach = std::min(reach, bounds_.xmin + static_cast<double>(cx + k + 1) * cell_w - p.x);
+    if (cy - k > 0) reach = std::min(reach, p.y - (bounds_.ymin + static_cast<double>(cy - k) * cell_h));
+    if (cy + k < ny - 1) reach = std::min(reach, bounds_.ymin + static_cast<double>(cy + k + 1) * cell_h - p.y);
     if (reach == std::numeric_limits<double>::infinity() || (reach > 0.0 && best2 <= reach * reach)) break;
   }
   return std::sqrt(best2);
@@ -311,14 +265,13 @@ Window Window::rectangle(double xmin, double ymin, double xmax, double ymax) {
 
 bool Window::contains(const Point& p) const {
   if (p.x < bounds_.xmin || p.x > bounds_.xmax || p.y < bounds_.ymin || p.y > bounds_.ymax) return false;
-  if (band_start_.empty()) return bg::covered_by(BgPoint(p.x, p.y), shape_);
+  if (!edge_grid_) return bg::covered_by(BgPoint(p.x, p.y), shape_);
   // The crossing rule is exact for a point clear of every edge it could cross (those of
   // its band); one within a micrometre of an edge is decided by covered_by.
   const double tolerance = 1e-6;
-  const std::size_t band = band_of(p.y);
   bool inside = false;
-  for (std::uint32_t j = band_start_[band]; j < band_start_[band + 1]; ++j) {
-    const Segment& e = edges_[band_edges_[j]];
+  for (const auto i : edge_grid_->row_items(edge_grid_->row(p.y))) {
+    const Segment& e = edges_[i];
     if (p.x >= std::min(e.a.x, e.b.x) - tolerance && p.x <= std::max(e.a.x, e.b.x) + tolerance &&
         p.y >= std::min(e.a.y, e.b.y) - tolerance && p.y <= std::max(e.a.y, e.b.y) + tolerance &&
         segment_distance2(p, e) <= tolerance * tolerance)
@@ -336,12 +289,11 @@ bool Window::contains_almost_surely(const Point& p) const {
     if ((e.a.y > p.y) != (e.b.y > p.y) && p.x < e.a.x + (p.y - e.a.y) * (e.b.x - e.a.x) / (e.b.y - e.a.y))
       inside = !inside;
   };
-  if (band_start_.empty()) {
+  if (!edge_grid_) {
     for (const auto& e : edges_) cross(e);
     return inside;
   }
-  const std::size_t band = band_of(p.y);
-  for (std::uint32_t j = band_start_[band]; j < band_start_[band + 1]; ++j) cross(edges_[band_edges_[j]]);
+  for (const auto i : edge_grid_->row_items(edge_grid_->row(p.y))) cross(edges_[i]);
   return inside;
 }
 

@@ -3,6 +3,7 @@
 /// every sighting of a plot was searched for.
 
 #include <cstdint>
+#include <memory>
 #include <string>
 #include <string_view>
 #include <vector>
@@ -15,6 +16,10 @@
 #include "stipple/geometry/point.hpp"
 
 namespace stipple {
+
+namespace geometry_detail {
+class BoxGrid;
+}
 
 using BgPoint = boost::geometry::model::d2::point_xy<double>;
 using BgPolygon = boost::geometry::model::polygon<BgPoint>;  // clockwise outer, closed
@@ -84,24 +89,16 @@ class Window {
   // ascending edge order (so sums and crossings come out as over all edges).
   template <typename Visit>
   void for_each_edge_near(double xmin, double ymin, double xmax, double ymax, Visit&& visit) const;
-  [[nodiscard]] std::size_t band_of(double y) const;
   BgMultiPolygon shape_;
   double area_m2_ = 0.0;
   double perimeter_m_ = 0.0;
   Bounds bounds_;
   bool is_rectangle_ = false;
   std::vector<Segment> edges_;
-  // Edge index (built for windows of many edges; empty otherwise): a grid of cells over
-  // the bounds, each listing the edges whose bounding box overlaps it, and horizontal
-  // bands (the grid's rows) listing the edges whose y-range overlaps them.
-  std::size_t grid_nx_ = 0;
-  std::size_t grid_ny_ = 0;
-  double cell_w_ = 1.0;
-  double cell_h_ = 1.0;
-  std::vector<std::uint32_t> cell_start_;
-  std::vector<std::uint32_t> cell_edges_;
-  std::vector<std::uint32_t> band_start_;
-  std::vector<std::uint32_t> band_edges_;
+  // Edge index, for windows of many edges (null otherwise): a grid of cells over the
+  // bounds, each listing the edges whose bounding box overlaps it, and its rows (bands)
+  // listing the edges whose y-range overlaps them. Immutable, so copies share it.
+  std::shared_ptr<const geometry_detail::BoxGrid> edge_grid_;
 };
 
 /// The Ripley–Rasson estimate of an unknown convex window from the points inside it:
