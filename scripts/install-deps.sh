@@ -13,12 +13,14 @@ packages=(
   pkg-config                       # finds cairo
   libnlopt-dev libnlopt-cxx-dev    # NLopt: maximum-likelihood fits of detection functions
   libssl-dev                       # SHA-256 checksums of inputs in batch manifests
+  libeigen3-dev                    # Eigen: linear algebra of the habitat model fits
   libtomlplusplus-dev              # run files for stipple batch (TOML)
   chromium                         # headless rendering test of the HTML report
   libgtest-dev libgmock-dev        # GoogleTest
   libbenchmark-dev                 # Google Benchmark (bench/)
   python3                          # demo-data generator
   python3-gdal python3-scipy python3-numpy  # bench/whole_process.py: the GDAL-Python + SciPy reference
+  python3-statsmodels              # tests/habitat/poisson_fit_reference.py: the Poisson GLM reference
   time                             # GNU time: whole-process peak memory in bench/batch_memory.sh
   clang-format clang-tidy          # style and static checks enforced by scripts/lint.sh
   locales                          # localedef: the decimal-comma locale the tests run under
