@@ -607,15 +607,6 @@ std::vector<DetectionFit> fit_candidates(const DistanceData& data, const std::ve
   return fits;
 }
 
-double kolmogorov_smirnov_p(double d, std::size_t n) {
-  const double m = static_cast<double>(n);
-  const double lambda = (std::sqrt(m) + 0.12 + 0.11 / std::sqrt(m)) * d;
-  if (lambda < 0.2) return 1.0;  // the series converges slowly there, and Q is 1 to 1e-10
-  double q = 0.0;
-  for (int k = 1; k <= 100; ++k) q += 2.0 * ((k % 2) ? 1.0 : -1.0) * std::exp(-2.0 * k * k * lambda * lambda);
-  return std::clamp(q, 0.0, 1.0);
-}
-
 double cramer_von_mises_p(double w2) {
   if (!(w2 > 0.0)) return 1.0;
   // P(W2 <= x) = 1/(pi sqrt x) sum_j Gamma(j + 1/2) / (Gamma(1/2) j!) sqrt(4j + 1)

@@ -11,6 +11,8 @@
 #include <string_view>
 #include <vector>
 
+#include "stipple/stats/kolmogorov.hpp"  // kolmogorov_smirnov_p, used by goodness_of_fit
+
 namespace stipple {
 
 enum class KeyFunction { half_normal, hazard_rate, uniform };
@@ -138,10 +140,6 @@ struct GoodnessOfFit {
 };
 [[nodiscard]] GoodnessOfFit goodness_of_fit(const DetectionFit& fit, const DistanceData& data);
 
-/// Upper-tail p-value of the Kolmogorov-Smirnov statistic D for n observations:
-/// Q((sqrt(n) + 0.12 + 0.11 / sqrt(n)) D), Q(l) = 2 sum (-1)^(k-1) exp(-2 k^2 l^2)
-/// (Stephens 1970, from memory).
-[[nodiscard]] double kolmogorov_smirnov_p(double d, std::size_t n);
 /// Upper-tail p-value of the Cramer-von Mises statistic W^2 from its asymptotic law
 /// (Anderson & Darling 1952, from memory: series form).
 [[nodiscard]] double cramer_von_mises_p(double w2);
