@@ -5,6 +5,7 @@
 #include <string>
 #include <utility>
 
+#include "pieces.hpp"
 #include "stipple/error.hpp"
 #include "stipple/stats/kolmogorov.hpp"
 
@@ -17,16 +18,10 @@ double check(const CovariateSample& s) {
   if (s.piece_area_m2.size() != s.piece_value.size())
     throw InputError("covariate test: " + std::to_string(s.piece_value.size()) + " piece values for " +
                      std::to_string(s.piece_area_m2.size()) + " pieces");
-  if (s.piece_area_m2.empty()) throw InputError("covariate test: the window has no pieces");
-  double total = 0.0;
-  for (std::size_t i = 0; i < s.piece_area_m2.size(); ++i) {
-    const double a = s.piece_area_m2[i];
-    if (!(a > 0.0) || !std::isfinite(a))
-      throw InputError("covariate test: window piece " + std::to_string(i) + " has area " + std::to_string(a));
+  const double total = habitat_detail::total_piece_area(s.piece_area_m2, "covariate test");
+  for (std::size_t i = 0; i < s.piece_value.size(); ++i)
     if (!std::isfinite(s.piece_value[i]))
       throw InputError("covariate test: window piece " + std::to_string(i) + " has a non-finite value");
-    total += a;
-  }
   for (std::size_t j = 0; j < s.point_value.size(); ++j)
     if (!std::isfinite(s.point_value[j]))
       throw InputError("covariate test: sighting " + std::to_string(j) + " has a non-finite value");
@@ -40,15 +35,7 @@ double check(const CovariateSample& s) {
 
 BermanZ1Test berman_z1(const CovariateSample& sample) {
   const double total = check(sample);
-  double mean = 0.0;
-  for (std::size_t i = 0; i < sample.piece_area_m2.size(); ++i) mean += sample.piece_area_m2[i] * sample.piece_value[i];
-  mean /= total;
-  double variance = 0.0;
-  for (std::size_t i = 0; i < sample.piece_area_m2.size(); ++i) {
-    const double e = sample.piece_value[i] - mean;
-    variance += sample.piece_area_m2[i] * e * e;
-  }
-  variance /= total;
+  const auto [mean, variance] = habitat_detail::area_moments(sample.piece_area_m2, total, sample.piece_value);
   const auto n = static_cast<double>(sample.point_value.size());
   BermanZ1Test t;
   for (const double v : sample.point_value) t.observed_sum += v;

@@ -6,6 +6,7 @@
 #include <Eigen/Cholesky>
 #include <Eigen/Core>
 
+#include "pieces.hpp"
 #include "stipple/error.hpp"
 
 namespace stipple {
@@ -37,41 +38,29 @@ struct Standardised {
 Standardised standardise(const LoglinearDesign& d) {
   const std::size_t k = d.names.size();
   const std::size_t m = d.piece_area_m2.size();
-  if (m == 0) throw InputError("habitat model: the window has no pieces");
   if (d.piece_values.size() != m * k)
     throw InputError("habitat model: " + std::to_string(d.piece_values.size()) + " piece values for " +
                      std::to_string(m) + " pieces and " + std::to_string(k) + " covariates");
   if (d.point_values.size() != d.sightings * k)
     throw InputError("habitat model: " + std::to_string(d.point_values.size()) + " sighting values for " +
                      std::to_string(d.sightings) + " sightings and " + std::to_string(k) + " covariates");
+  const double total = habitat_detail::total_piece_area(d.piece_area_m2, "habitat model");
   Standardised s;
-  s.area = Vector(static_cast<Eigen::Index>(m));
-  double total = 0.0;
-  for (std::size_t i = 0; i < m; ++i) {
-    const double a = d.piece_area_m2[i];
-    if (!(a > 0.0) || !std::isfinite(a))
-      throw InputError("habitat model: window piece " + std::to_string(i) + " has area " + std::to_string(a));
-    s.area[static_cast<Eigen::Index>(i)] = a;
-    total += a;
-  }
-  for (const double v : d.piece_values)
-    if (!std::isfinite(v)) throw InputError("habitat model: a window piece has a non-finite covariate value");
-  for (const double v : d.point_values)
-    if (!std::isfinite(v)) throw InputError("habitat model: a sighting has a non-finite covariate value");
+  s.area = Eigen::Map<const Vector>(d.piece_area_m2.data(), static_cast<Eigen::Index>(m));
+  for (std::size_t i = 0; i < m * k; ++i)
+    if (!std::isfinite(d.piece_values[i]))
+      throw InputError("habitat model: window piece " + std::to_string(i / k) + " has a non-finite value of '" +
+                       d.names[i % k] + "'");
+  for (std::size_t j = 0; j < d.sightings * k; ++j)
+    if (!std::isfinite(d.point_values[j]))
+      throw InputError("habitat model: sighting " + std::to_string(j / k) + " has a non-finite value of '" +
+                       d.names[j % k] + "'");
 
   const auto cols = static_cast<Eigen::Index>(1 + k);
   s.mean = Vector::Zero(cols);
   s.scale = Vector::Ones(cols);
   for (std::size_t c = 0; c < k; ++c) {
-    double mean = 0.0;
-    for (std::size_t i = 0; i < m; ++i) mean += d.piece_area_m2[i] * d.piece_values[i * k + c];
-    mean /= total;
-    double var = 0.0;
-    for (std::size_t i = 0; i < m; ++i) {
-      const double e = d.piece_values[i * k + c] - mean;
-      var += d.piece_area_m2[i] * e * e;
-    }
-    var /= total;
+    const auto [mean, var] = habitat_detail::area_moments(d.piece_area_m2, total, d.piece_values, k, c);
     const double sd = std::sqrt(var);
     if (!(sd > 1e-12 * (1.0 + std::abs(mean))))
       throw AnalysisError("habitat model: covariate '" + d.names[c] + "' is constant over the window");

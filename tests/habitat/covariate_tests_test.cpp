@@ -88,7 +88,12 @@ TEST(CovariateTests, DetectsACovariateEffect) {
 
 TEST(CovariateTests, RefusesWhatCannotBeTested) {
   EXPECT_THROW((void)berman_z1({{1.0, 2.0}, {0.0}, {0.0}}), InputError);
-  EXPECT_THROW((void)berman_z1({{1.0, -2.0}, {0.0, 1.0}, {0.0}}), InputError);
+  try {
+    (void)berman_z1({{1.0, -2.0}, {0.0, 1.0}, {0.0}});
+    FAIL() << "a negative area is refused";
+  } catch (const InputError& e) {
+    EXPECT_STREQ(e.what(), "covariate test: window piece 1 has area -2");
+  }
   EXPECT_THROW((void)covariate_ks({{1.0, 2.0}, {0.0, 1.0}, {}}), AnalysisError);
   EXPECT_THROW((void)covariate_ks({{1.0, 2.0}, {4.0, 4.0}, {4.0}}), AnalysisError);
   EXPECT_THROW((void)berman_z1({{1.0, 2.0}, {0.0, 1.0}, {std::nan("")}}), InputError);

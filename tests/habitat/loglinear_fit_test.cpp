@@ -10,7 +10,7 @@
 namespace stipple {
 namespace {
 
-// The invented 12-cell design of tests/habitat/poisson_fit_reference.py, as pieces and
+// The invented 12-cell design of tests/habitat/loglinear_fit_reference.py, as pieces and
 // sightings (each sighting takes its cell's values).
 LoglinearDesign reference_design() {
   const double area[] = {400, 400, 400, 250, 400, 400, 400, 310, 400, 400, 120, 55};
@@ -31,7 +31,7 @@ LoglinearDesign reference_design() {
 }
 
 // Source: statsmodels 0.13.5 (Debian python3-statsmodels) GLM, Poisson family, log link,
-// offset log(area), on the cell counts: tests/habitat/poisson_fit_reference.py prints these.
+// offset log(area), on the cell counts: tests/habitat/loglinear_fit_reference.py prints these.
 // The cell-wise likelihood differs from the point-process one by terms free of the
 // coefficients, so estimates and standard errors agree; compared within 1e-6 (relative).
 TEST(LoglinearFit, EqualsPoissonGlmOnCellCounts) {
@@ -84,6 +84,15 @@ TEST(LoglinearFit, RefusesWhatHasNoEstimate) {
   LoglinearDesign d = reference_design();
   d.point_values.pop_back();
   EXPECT_THROW((void)fit_loglinear_intensity(d), InputError);
+
+  d = reference_design();
+  d.point_values[2 * 4 + 1] = std::nan("");
+  try {
+    (void)fit_loglinear_intensity(d);
+    FAIL() << "a missing covariate value is refused";
+  } catch (const InputError& e) {
+    EXPECT_STREQ(e.what(), "habitat model: sighting 4 has a non-finite value of 'elevation'");
+  }
 
   d = reference_design();
   for (std::size_t i = 0; i < d.piece_area_m2.size(); ++i) d.piece_values[2 * i + 1] = 3.0;

@@ -1,5 +1,5 @@
 #!/usr/bin/python3
-"""Reference values for tests/habitat/poisson_fit_test.cpp: a Poisson GLM (statsmodels,
+"""Reference values for tests/habitat/loglinear_fit_test.cpp: a Poisson GLM (statsmodels,
 Debian's python3-statsmodels) on the cell-wise likelihood of a point pattern over raster
 cells. Counts n_c of sightings in cell c, log link, offset log(area_c): its log-likelihood
 differs from the point-process one only by terms free of the coefficients, so the
