@@ -23,18 +23,26 @@ struct Interrupted {
   std::string err;
 };
 
-// Starts `args` in the background, waits until `ready` (a shell test, e.g. `-d DIR`) holds
-// or 60 s pass, sends SIGINT and waits for the process.
+// Starts `args` in the background, waits until the process has installed its SIGINT
+// handler (bit 2 of SigCgt in /proc/PID/status: a background job of a non-interactive shell
+// starts with SIGINT ignored, so a signal sent earlier would be lost) and `ready` (a shell
+// test, e.g. `-d DIR`) holds, or 60 s pass; sends SIGINT and waits for the process. A
+// process still running 60 s after the signal is killed and reported with exit code -3,
+// so a lost signal fails the test instead of hanging it.
 Interrupted interrupt(const std::string& args, const std::string& ready, const TempDir& dir) {
   const std::string script = dir.file("run.sh");
   std::FILE* f = std::fopen(script.c_str(), "w");
   std::fprintf(f,
                "%s %s >/dev/null 2>%s &\n"
                "pid=$!\n"
-               "for i in $(seq 600); do [ %s ] && break; sleep 0.1; done\n"
+               "caught() { c=$(awk '/^SigCgt/ {print $2}' /proc/$pid/status 2>/dev/null); "
+               "[ -n \"$c\" ] && (( (16#$c & 2) != 0 )); }\n"
+               "for i in $(seq 600); do caught && [ %s ] && break; sleep 0.1; done\n"
                "sleep 0.3\n"
                "start=$(date +%%s%%N)\n"
                "kill -INT $pid\n"
+               "for i in $(seq 600); do kill -0 $pid 2>/dev/null || break; sleep 0.1; done\n"
+               "if kill -0 $pid 2>/dev/null; then kill -KILL $pid; wait $pid; echo -3 -1; exit; fi\n"
                "wait $pid\n"
                "code=$?\n"
                "end=$(date +%%s%%N)\n"
