@@ -39,3 +39,28 @@ ogr2ogr -f GPKG -update transects.gpkg "$work/study-area.csv" -nln study_area -a
 cp "$work/detection.csv" detection.csv
 cp "$work/generating-values.json" generating-values.json
 echo "demo data written to $(pwd)"
+
+# The habitat survey of the southern compartment: covariate rasters, plots, sightings,
+# opportunistic reports and footpaths, for `stipple habitat`.
+python3 make_habitat_demo.py "$work/habitat"
+rm -rf habitat
+mkdir -p habitat
+for name in elevation moisture; do
+  gdal_translate -q -of GTiff -a_srs EPSG:32630 -ot Float32 -co COMPRESS=DEFLATE \
+    "$work/habitat/${name}.asc" "habitat/${name}.tif"
+done
+gdal_translate -q -of GTiff -a_srs EPSG:32630 -ot Byte -co COMPRESS=DEFLATE \
+  "$work/habitat/landcover.asc" habitat/landcover.tif
+h=habitat/habitat.gpkg
+ogr2ogr -f GPKG "$h" "$work/habitat/plots.csv" -nln plots -a_srs EPSG:32630 \
+  -oo GEOM_POSSIBLE_NAMES=wkt -oo KEEP_GEOM_COLUMNS=NO -nlt MULTIPOLYGON
+ogr2ogr -f GPKG -update "$h" "$work/habitat/compartment.csv" -nln compartment -a_srs EPSG:32630 \
+  -oo GEOM_POSSIBLE_NAMES=wkt -oo KEEP_GEOM_COLUMNS=NO -nlt MULTIPOLYGON
+ogr2ogr -f GPKG -update "$h" "$work/habitat/sightings.csv" -nln sightings -a_srs EPSG:32630 \
+  -oo X_POSSIBLE_NAMES=x -oo Y_POSSIBLE_NAMES=y -oo KEEP_GEOM_COLUMNS=NO -nlt POINT
+ogr2ogr -f GPKG -update "$h" "$work/habitat/opportunistic.csv" -nln opportunistic -a_srs EPSG:32630 \
+  -oo X_POSSIBLE_NAMES=x -oo Y_POSSIBLE_NAMES=y -oo KEEP_GEOM_COLUMNS=NO -nlt POINT
+ogr2ogr -f GPKG -update "$h" "$work/habitat/paths.csv" -nln paths -a_srs EPSG:32630 \
+  -oo GEOM_POSSIBLE_NAMES=wkt -oo KEEP_GEOM_COLUMNS=NO -nlt LINESTRING
+cp "$work/habitat/habitat-generating-values.json" habitat/generating-values.json
+echo "habitat demo data written to $(pwd)/habitat"

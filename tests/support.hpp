@@ -96,7 +96,7 @@ inline RunResult run_cli(const std::string& args) {
                           args.rfind("randomness", 0) == 0 || args.rfind("transect", 0) == 0 ||
                           args.rfind("effort", 0) == 0 || args.rfind("batch", 0) == 0 || args.rfind("merge", 0) == 0 ||
                           args.rfind("report", 0) == 0 || args.rfind("surface", 0) == 0 ||
-                          args.rfind("density", 0) == 0;
+                          args.rfind("habitat", 0) == 0 || args.rfind("density", 0) == 0;
   const std::string command =
       std::string(STIPPLE_CLI) + (subcommand ? " " : " density ") + args + " 2>" + err_file + " </dev/null";
   RunResult result;

@@ -23,6 +23,8 @@ Action add_merge_command(CLI::App& app);
 Action add_report_command(CLI::App& app);
 /// `stipple surface`: kernel intensity surfaces as GeoTIFF.
 Action add_surface_command(CLI::App& app);
+/// `stipple habitat`: log-linear Poisson intensity on raster covariates.
+Action add_habitat_command(CLI::App& app);
 /// `stipple inspect`: what a vector source holds.
 Action add_inspect_command(CLI::App& app);
 

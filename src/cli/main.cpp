@@ -67,7 +67,7 @@ int main(int argc, char** argv) {
       stipple::cli::add_transect_command(app), stipple::cli::add_effort_command(app),
       stipple::cli::add_batch_command(app),    stipple::cli::add_merge_command(app),
       stipple::cli::add_report_command(app),   stipple::cli::add_surface_command(app),
-      stipple::cli::add_inspect_command(app)};
+      stipple::cli::add_inspect_command(app),  stipple::cli::add_habitat_command(app)};
   if (argc > 1 && argv[1][0] != '-') {
     if (const std::string problem = unknown_command(app, argv[1]); !problem.empty()) {
       std::cerr << "error: " << problem << " (see stipple --help)\n";

@@ -118,8 +118,15 @@ LoglinearFit fit_loglinear_intensity(const LoglinearDesign& design) {
     if (llt.info() != Eigen::Success || llt.rcond() < 1e-13)
       throw AnalysisError("habitat model: the covariates are collinear over the window");
     const Vector step = llt.solve(score);
-    // The Newton decrement: half of it bounds the log-likelihood still to gain.
-    if (0.5 * score.dot(step) < 1e-14 * (1.0 + std::abs(ll))) break;
+    // The Newton decrement: half of it bounds the log-likelihood still to gain. Once it is
+    // negligible the full step is taken without a line search: Newton converges
+    // quadratically there, so the coefficients land at machine precision, not at the
+    // square root of the likelihood's tolerance.
+    if (0.5 * score.dot(step) < 1e-14 * (1.0 + std::abs(ll))) {
+      c += step;
+      ll = log_likelihood(s, c);
+      break;
+    }
     double t = 1.0;
     Vector next = c + step;
     double next_ll = log_likelihood(s, next);

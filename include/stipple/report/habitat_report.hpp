@@ -1,0 +1,40 @@
+#pragma once
+/// Habitat-model results as a readable table, JSON and CSV.
+
+#include <string>
+#include <vector>
+
+#include "stipple/geometry/survey.hpp"
+#include "stipple/habitat/habitat_model.hpp"
+#include "stipple/input_facts.hpp"
+
+namespace stipple {
+
+/// What the report says about the run besides the results.
+struct HabitatRunFacts {
+  std::string unit = "ha";  ///< the area unit intercepts refer to
+  double confidence = 0.95;
+  SlopeMode slopes = SlopeMode::separate;
+  /// Each covariate: name, where it came from, and its role.
+  struct Covariate {
+    std::string name;
+    std::string source;
+    bool factor = false;
+    bool bias = false;
+  };
+  std::vector<Covariate> covariates;
+};
+
+/// The cautions printed with every habitat result (README "Habitat models").
+[[nodiscard]] const std::vector<std::string>& habitat_cautions();
+/// A readable report for the terminal.
+[[nodiscard]] std::string habitat_table(const InputFacts& input, const Survey& survey, const HabitatRunFacts& run,
+                                        const HabitatResult& result);
+/// The JSON document of `stipple habitat --json` (contract in README, "JSON output").
+[[nodiscard]] std::string habitat_json(const InputFacts& input, const Survey& survey, const HabitatRunFacts& run,
+                                       const HabitatResult& result);
+/// One row per model coefficient (kind `coefficient`), term test (`term_test`) and
+/// covariate test (`covariate_test`); empty species = all species together.
+[[nodiscard]] std::string habitat_csv(const Survey& survey, const HabitatRunFacts& run, const HabitatResult& result);
+
+}  // namespace stipple

@@ -1,0 +1,239 @@
+// `stipple habitat`: parse options, call the library, print.
+
+#include <algorithm>
+#include <iostream>
+#include <map>
+#include <memory>
+
+#include "commands.hpp"
+#include "common_options.hpp"
+#include "stipple/error.hpp"
+#include "stipple/format.hpp"
+#include "stipple/habitat/habitat_model.hpp"
+#include "stipple/intensity/poisson.hpp"
+#include "stipple/io/covariate_reader.hpp"
+#include "stipple/report/habitat_report.hpp"
+
+namespace stipple::cli {
+
+namespace {
+
+struct HabitatCommandOptions {
+  CommonOptions common;
+  std::vector<std::string> covariates;
+  std::vector<std::string> factors;
+  std::vector<std::string> biases;
+  std::vector<std::string> bias_references;
+  std::vector<std::string> distances;
+  std::vector<std::string> bias_distances;
+  double spacing = 0.0;
+  std::string slopes = "separate";
+  bool drop_missing = false;
+};
+
+// NAME=VALUE, both non-empty; `option` names the option in the refusal.
+std::pair<std::string, std::string> name_value(const std::string& text, const std::string& option) {
+  const auto eq = text.find('=');
+  if (eq == std::string::npos || eq == 0 || eq + 1 == text.size())
+    throw InputError(option + " '" + text + "': expected NAME=" + (option == "--bias-reference" ? "VALUE" : "RASTER") +
+                     ", e.g. " + (option == "--bias-reference" ? "effort=0" : "moisture=soil-moisture.tif"));
+  return {text.substr(0, eq), text.substr(eq + 1)};
+}
+
+Bounds survey_bounds(const Survey& survey) {
+  Bounds b = survey.plots().front().window.bounds();
+  for (const Plot& p : survey.plots()) {
+    const Bounds& q = p.window.bounds();
+    b.xmin = std::min(b.xmin, q.xmin);
+    b.ymin = std::min(b.ymin, q.ymin);
+    b.xmax = std::max(b.xmax, q.xmax);
+    b.ymax = std::max(b.ymax, q.ymax);
+  }
+  return b;
+}
+
+int run_habitat(const HabitatCommandOptions& o) {
+  check_confidence(o.common.confidence);
+  HabitatOptions options;
+  options.confidence = o.common.confidence;
+  options.unit_m2 = square_metres_per(parse_area_unit(o.common.unit));
+  options.slopes = o.slopes == "shared" ? SlopeMode::shared : SlopeMode::separate;
+  options.drop_missing = o.drop_missing;
+
+  struct Given {
+    std::string name;
+    std::string path;
+    bool factor;
+    bool bias;
+    std::string option;
+    bool distance = false;
+  };
+  std::vector<Given> given;
+  for (const auto& t : o.covariates) {
+    auto [n, p] = name_value(t, "--covariate");
+    given.push_back({n, p, false, false, "--covariate"});
+  }
+  for (const auto& t : o.factors) {
+    auto [n, p] = name_value(t, "--factor");
+    given.push_back({n, p, true, false, "--factor"});
+  }
+  for (const auto& t : o.biases) {
+    auto [n, p] = name_value(t, "--bias");
+    given.push_back({n, p, false, true, "--bias"});
+  }
+  for (const auto& t : o.distances) {
+    auto [n, p] = name_value(t, "--distance-to");
+    given.push_back({n, p, false, false, "--distance-to", true});
+  }
+  for (const auto& t : o.bias_distances) {
+    auto [n, p] = name_value(t, "--bias-distance");
+    given.push_back({n, p, false, true, "--bias-distance", true});
+  }
+  if (given.empty())
+    throw InputError(
+        "stipple habitat needs at least one --covariate NAME=RASTER (or --factor, --bias, --distance-to, "
+        "--bias-distance)");
+  for (std::size_t i = 0; i < given.size(); ++i)
+    for (std::size_t j = 0; j < i; ++j)
+      if (given[i].name == given[j].name)
+        throw InputError(given[i].option + " " + given[i].name + ": the name '" + given[i].name +
+                         "' is already used by " + given[j].option);
+  std::map<std::string, double> references;
+  for (const auto& t : o.bias_references) {
+    auto [n, v] = name_value(t, "--bias-reference");
+    const auto it = std::find_if(given.begin(), given.end(), [&](const Given& g) { return g.name == n; });
+    if (it == given.end() || !it->bias)
+      throw InputError("--bias-reference " + t + ": '" + n + "' is not a --bias or --bias-distance term");
+    const auto value = parse_finite_number(v);
+    if (!value) throw InputError("--bias-reference " + t + ": '" + v + "' is not a number");
+    references[n] = *value;
+  }
+
+  std::vector<std::string> inputs = input_paths(o.common);
+  for (const auto& g : given) inputs.push_back(g.distance ? g.path.substr(0, g.path.rfind(',')) : g.path);
+  check_outputs({{"--json", o.common.json}, {"--csv", o.common.csv}}, inputs);
+  LoadedSurvey survey = load_survey(to_read_options(o.common));
+  const Bounds area = survey_bounds(survey.survey);
+
+  std::vector<HabitatCovariate> covariates;
+  HabitatRunFacts run;
+  run.unit = o.common.unit;
+  run.confidence = o.common.confidence;
+  run.slopes = options.slopes;
+  for (const auto& g : given) {
+    if (g.distance) {
+      // VECTOR or VECTOR,LAYER
+      const auto comma = g.path.rfind(',');
+      const std::string path = comma == std::string::npos ? g.path : g.path.substr(0, comma);
+      const std::optional<std::string> layer =
+          comma == std::string::npos ? std::nullopt : std::optional<std::string>(g.path.substr(comma + 1));
+      CovariateFeatures features = read_covariate_features(path, layer, survey.crs);
+      HabitatCovariate c;
+      c.name = g.name;
+      c.distance_to = DistanceField(features.features);
+      c.spacing_m = o.spacing;
+      c.source = "distance to " + features.label;
+      c.bias = g.bias;
+      if (const auto it = references.find(g.name); it != references.end()) c.bias_reference = it->second;
+      survey.notes.insert(survey.notes.end(), features.notes.begin(), features.notes.end());
+      run.covariates.push_back({g.name, c.source, false, g.bias});
+      covariates.push_back(std::move(c));
+      continue;
+    }
+    CovariateRaster raster = read_covariate_raster(g.path, survey.crs, area);
+    HabitatCovariate c;
+    c.name = g.name;
+    c.grid = std::move(raster.grid);
+    c.source = raster.label;
+    c.factor = g.factor;
+    c.bias = g.bias;
+    if (const auto it = references.find(g.name); it != references.end()) c.bias_reference = it->second;
+    survey.notes.insert(survey.notes.end(), raster.notes.begin(), raster.notes.end());
+    run.covariates.push_back({g.name, raster.label, g.factor, g.bias});
+    covariates.push_back(std::move(c));
+  }
+  HabitatResult result;
+  try {
+    result = fit_habitat(survey.survey, covariates, options);
+  } catch (const InputError& e) {
+    const std::string what = e.what();
+    if (what.find("no value of covariate") != std::string::npos)
+      throw InputError(what + "; or leave such places out with --drop-missing");
+    throw;
+  }
+
+  const bool stdout_taken = o.common.json == "-" || o.common.csv == "-";
+  if (!o.common.json.empty()) write_output(o.common.json, habitat_json(survey, survey.survey, run, result), inputs);
+  if (!o.common.csv.empty()) write_output(o.common.csv, habitat_csv(survey.survey, run, result), inputs);
+  if (!stdout_taken) {
+    std::cout << habitat_table(survey, survey.survey, run, result);
+  } else {
+    for (const auto& w : survey.warnings) std::cerr << "warning: " << w << "\n";
+    for (const auto& w : result.warnings) std::cerr << "warning: " << w << "\n";
+  }
+  return 0;
+}
+
+}  // namespace
+
+Action add_habitat_command(CLI::App& app) {
+  auto options = std::make_shared<HabitatCommandOptions>();
+  CLI::App* command = app.add_subcommand(
+      "habitat",
+      "Intensity that depends on the landscape: a log-linear Poisson model of each species on raster covariates, "
+      "fitted by exact maximum likelihood, with Berman's covariate tests");
+  add_common_options(*command, options->common);
+  command->footer(
+      "The value at a sighting is that of the raster cell holding it; windows are cut along every raster's cell "
+      "edges, so the likelihood is exact. Intercept: log intensity per --unit where every covariate is 0.");
+  command->add_option("--covariate", options->covariates, "NAME=RASTER: a numeric covariate (any GDAL raster)")
+      ->expected(1)
+      ->multi_option_policy(CLI::MultiOptionPolicy::TakeAll);
+  command
+      ->add_option("--factor", options->factors,
+                   "NAME=RASTER: a categorical raster of whole-number classes (reference: the class of "
+                   "largest area)")
+      ->expected(1)
+      ->multi_option_policy(CLI::MultiOptionPolicy::TakeAll);
+  command
+      ->add_option("--bias", options->biases,
+                   "NAME=RASTER: observer effort or detectability, fitted like a covariate and set to "
+                   "its reference in predictions")
+      ->expected(1)
+      ->multi_option_policy(CLI::MultiOptionPolicy::TakeAll);
+  command
+      ->add_option("--bias-reference", options->bias_references,
+                   "NAME=VALUE: the value of a --bias term at which to predict (default: that of best "
+                   "observation over the windows)")
+      ->expected(1)
+      ->multi_option_policy(CLI::MultiOptionPolicy::TakeAll);
+  command
+      ->add_option("--distance-to", options->distances,
+                   "NAME=VECTOR or NAME=VECTOR,LAYER: the distance to the nearest line or polygon of a layer "
+                   "(rivers, tracks, woodland edges) as a covariate, in metres")
+      ->expected(1)
+      ->multi_option_policy(CLI::MultiOptionPolicy::TakeAll);
+  command
+      ->add_option("--bias-distance", options->bias_distances,
+                   "NAME=VECTOR[,LAYER]: a distance that thins the sightings (distance to paths or roads), "
+                   "set to its reference in predictions")
+      ->expected(1)
+      ->multi_option_policy(CLI::MultiOptionPolicy::TakeAll);
+  command
+      ->add_option("--spacing", options->spacing,
+                   "Quadrature cells of distance covariates, metres (default: the finest raster cell, else 1/200 "
+                   "of the survey's extent); the fit is repeated at half of it and the change reported")
+      ->check(positive_number());
+  command->add_option("--slopes", options->slopes, "separate: each species its own slopes; shared: common slopes")
+      ->check(CLI::IsMember({"separate", "shared"}))
+      ->capture_default_str();
+  command->add_flag("--drop-missing", options->drop_missing,
+                    "Leave out window parts and sightings where a covariate has no value (reported), instead "
+                    "of refusing");
+  return [command, options] {
+    if (!command->parsed()) return -1;
+    return run_habitat(*options);
+  };
+}
+
+}  // namespace stipple::cli

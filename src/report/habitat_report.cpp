@@ -1,0 +1,278 @@
+#include "stipple/report/habitat_report.hpp"
+
+#include <cmath>
+#include <locale>
+#include <sstream>
+
+#include <nlohmann/json.hpp>
+
+#include "json_text.hpp"
+#include "report/input_summary.hpp"
+#include "stipple/format.hpp"
+#include "stipple/intensity/poisson.hpp"
+#include "stipple/report/tables.hpp"
+#include "stipple/version.hpp"
+
+namespace stipple {
+
+namespace {
+
+using Json = nlohmann::ordered_json;
+
+Json number_or_null(double v) {
+  return std::isfinite(v) ? Json(v) : Json(nullptr);
+}
+
+Json species_json(const Survey& survey, const std::optional<std::size_t>& s) {
+  return s ? Json(survey.species()[*s]) : Json(nullptr);
+}
+
+std::string species_text(const Survey& survey, const std::optional<std::size_t>& s) {
+  return s ? survey.species()[*s] : "(all)";
+}
+
+const char* slopes_name(SlopeMode m) {
+  return m == SlopeMode::shared ? "shared" : "separate";
+}
+
+double unit_m2(const std::string& unit) {
+  return square_metres_per(parse_area_unit(unit));
+}
+
+Json coefficient_json(const Survey& survey, const HabitatCoefficient& c) {
+  Json j;
+  j["term"] = c.term;
+  if (c.species) j["species"] = survey.species()[*c.species];
+  j["estimate"] = c.estimate;
+  j["se"] = c.se;
+  j["ci"] = {c.ci_low, c.ci_high};
+  j["z"] = number_or_null(c.z);
+  j["p_value"] = c.p_value;
+  if (!c.covariate.empty()) {
+    j["covariate"] = c.covariate;
+    j["rate_ratio"] = number_or_null(c.rate_ratio);
+    j["rate_ratio_ci"] = {number_or_null(std::exp(c.ci_low)), number_or_null(std::exp(c.ci_high))};
+    j["bias"] = c.bias;
+    if (c.bias_reference) j["bias_reference"] = *c.bias_reference;
+  }
+  return j;
+}
+
+}  // namespace
+
+const std::vector<std::string>& habitat_cautions() {
+  static const std::vector<std::string> cautions{
+      "A habitat model is correlative: a covariate that predicts where a species was seen need not be what "
+      "it responds to.",
+      "Covariates measured at another scale or date than the survey can misplace the response; the value at a "
+      "sighting is that of the raster cell holding it.",
+      "The Wald intervals and p-values assume a Poisson process given the covariates; clustering that habitat "
+      "does not explain makes them too narrow (check with the inhomogeneous K and cluster fits).",
+      "Predicted densities and abundances that feed quotas or protection decisions need qualified review "
+      "under the local agency's protocol.",
+  };
+  return cautions;
+}
+
+std::string habitat_json(const InputFacts& input, const Survey& survey, const HabitatRunFacts& run,
+                         const HabitatResult& result) {
+  Json doc;
+  doc["stipple_version"] = std::string(version());
+  doc["command"] = "habitat";
+  doc["crs"] = input.crs.code;
+  doc["unit"] = run.unit;
+  doc["confidence"] = run.confidence;
+  doc["slopes"] = slopes_name(run.slopes);
+  doc["sightings"] = input.sightings_label;
+  doc["plots"] = input.plots_label.empty() ? Json(nullptr) : Json(input.plots_label);
+  const double per_unit = unit_m2(run.unit);
+  doc["window_area"] = result.window_area_m2 / per_unit;
+  doc["dropped_area"] = result.dropped_area_m2 / per_unit;
+  doc["pieces"] = result.pieces;
+  Json covariates = Json::array();
+  for (const auto& c : run.covariates) {
+    Json j{{"name", c.name}, {"source", c.source}, {"kind", c.factor ? "factor" : "numeric"}, {"bias", c.bias}};
+    for (const auto& f : result.factors)
+      if (f.covariate == c.name) {
+        j["reference_class"] = f.reference;
+        j["classes"] = f.classes;
+      }
+    covariates.push_back(std::move(j));
+  }
+  doc["covariates"] = std::move(covariates);
+  Json models = Json::array();
+  for (const auto& m : result.models) {
+    Json j;
+    j["species"] = species_json(survey, m.species);
+    j["n"] = m.n;
+    j["log_likelihood"] = m.log_likelihood;
+    j["aic"] = m.aic;
+    Json coefficients = Json::array();
+    for (const auto& c : m.coefficients) coefficients.push_back(coefficient_json(survey, c));
+    j["coefficients"] = std::move(coefficients);
+    Json tests = Json::array();
+    for (const auto& t : m.term_tests)
+      tests.push_back({{"term", t.term}, {"statistic", t.statistic}, {"df", t.df}, {"p_value", t.p_value}});
+    j["term_tests"] = std::move(tests);
+    j["iterations"] = m.iterations;
+    models.push_back(std::move(j));
+  }
+  doc["models"] = std::move(models);
+  if (result.slope_test) {
+    const SlopeTest& t = *result.slope_test;
+    doc["slope_test"] = {{"statistic", t.statistic},
+                         {"df", t.df},
+                         {"p_value", t.p_value},
+                         {"shared_log_likelihood", t.shared_log_likelihood},
+                         {"separate_log_likelihood", t.separate_log_likelihood}};
+  } else {
+    doc["slope_test"] = nullptr;
+  }
+  if (result.quadrature) {
+    const QuadratureCheck& q = *result.quadrature;
+    Json changes = Json::array();
+    for (const auto& c : q.changes)
+      changes.push_back({{"species", species_json(survey, c.species)},
+                         {"term", c.term},
+                         {"estimate", c.estimate},
+                         {"halved_spacing_estimate", c.halved_estimate},
+                         {"change_in_se", (c.halved_estimate - c.estimate) / c.se}});
+    doc["quadrature"] = {{"covariates", q.covariates},
+                         {"method", "midpoint: square cells, each at the distance of its centre"},
+                         {"spacing_m", q.spacing_m},
+                         {"halved_spacing_m", 0.5 * q.spacing_m},
+                         {"largest_change_in_se", q.largest_change_in_se},
+                         {"changes", std::move(changes)}};
+  } else {
+    doc["quadrature"] = {{"method", "exact: raster cells clipped to the windows"}};
+  }
+  Json tests = Json::array();
+  for (const auto& t : result.covariate_tests)
+    tests.push_back({{"species", species_json(survey, t.species)},
+                     {"covariate", t.covariate},
+                     {"z1", t.z1.statistic},
+                     {"z1_p_value", t.z1.p_two_sided},
+                     {"ks_statistic", t.ks.d},
+                     {"ks_p_value", t.ks.p}});
+  doc["covariate_tests"] = std::move(tests);
+  Json dropped = Json::array();
+  for (const auto& d : result.dropped_sightings)
+    dropped.push_back({{"feature_id", d.feature_id}, {"plot", d.plot}, {"covariate", d.covariate}});
+  doc["dropped_sightings"] = std::move(dropped);
+  std::vector<std::string> notes = input.notes;
+  notes.insert(notes.end(), result.notes.begin(), result.notes.end());
+  std::vector<std::string> warnings = input.warnings;
+  warnings.insert(warnings.end(), result.warnings.begin(), result.warnings.end());
+  doc["notes"] = notes;
+  doc["warnings"] = warnings;
+  doc["cautions"] = habitat_cautions();
+  return json_text(doc);
+}
+
+std::string habitat_table(const InputFacts& input, const Survey& survey, const HabitatRunFacts& run,
+                          const HabitatResult& result) {
+  std::ostringstream out;
+  out.imbue(std::locale::classic());
+  const double per_unit = unit_m2(run.unit);
+  out << "stipple habitat\n";
+  out << "  sightings: " << input.sightings_label << "\n";
+  if (!input.plots_label.empty()) out << "  plots:     " << input.plots_label << "\n";
+  out << "  CRS:       " << input.crs.code << " (" << input.crs.name << "); " << report_detail::crs_area_note(input.crs)
+      << "\n";
+  for (const auto& c : run.covariates)
+    out << "  "
+        << (c.bias     ? "bias:      "
+            : c.factor ? "factor:    "
+                       : "covariate: ")
+        << c.name << " = " << c.source << "\n";
+  out << "  model:     log intensity per " << run.unit << " = intercept + slopes x covariates; Poisson maximum "
+      << "likelihood over " << result.pieces << " window pieces ("
+      << format_significant(result.window_area_m2 / per_unit, 4) << " " << run.unit << "); slopes "
+      << slopes_name(run.slopes) << "; " << format_general(100.0 * run.confidence) << "% Wald intervals\n\n";
+  for (const auto& m : result.models) {
+    out << (m.species                         ? "Species " + survey.species()[*m.species]
+            : run.slopes == SlopeMode::shared ? std::string("All species, shared slopes")
+                                              : std::string("All species together"))
+        << " (n = " << m.n << ", log-likelihood " << format_fixed(m.log_likelihood, 2) << ", AIC "
+        << format_fixed(m.aic, 2) << ")\n";
+    TextTable table({"term", "estimate", "se", "ci_low", "ci_high", "z", "p", "rate ratio"}, 1);
+    for (const auto& c : m.coefficients) {
+      std::string term = c.term;
+      if (c.species && !m.species) term += " " + survey.species()[*c.species];
+      if (c.bias) term += " [bias]";
+      table.add_row({term, format_significant(c.estimate, 4), format_significant(c.se, 3),
+                     format_significant(c.ci_low, 4), format_significant(c.ci_high, 4), format_fixed(c.z, 2),
+                     format_p_value(c.p_value), c.covariate.empty() ? "-" : format_significant(c.rate_ratio, 4)});
+    }
+    out << table.render();
+    for (const auto& t : m.term_tests)
+      out << "  drop " << t.term << ": likelihood ratio " << format_fixed(t.statistic, 2) << " on " << t.df << " df, p "
+          << format_p_value(t.p_value) << "\n";
+    for (const auto& c : m.coefficients)
+      if (c.bias_reference)
+        out << "  " << c.term << " is observer effort: predictions set it to " << format_general(*c.bias_reference)
+            << "\n";
+    out << "\n";
+  }
+  out << "  intercept: log intensity per " << run.unit
+      << " where every covariate is 0 (a factor at its reference class); rate ratio: exp(slope), the change in "
+         "intensity per unit of the covariate\n\n";
+  if (result.slope_test) {
+    const SlopeTest& t = *result.slope_test;
+    out << "Do the species respond to habitat the same way? Separate against shared slopes: likelihood ratio "
+        << format_fixed(t.statistic, 2) << " on " << t.df << " df, p " << format_p_value(t.p_value) << "\n\n";
+  }
+  if (!result.covariate_tests.empty()) {
+    out << "Covariates without a model (Berman 1986: Z1 and Kolmogorov-Smirnov against the window under CSR)\n";
+    TextTable table({"species", "covariate", "Z1", "Z1 p", "KS D", "KS p"}, 2);
+    for (const auto& t : result.covariate_tests)
+      table.add_row({species_text(survey, t.species), t.covariate, format_fixed(t.z1.statistic, 2),
+                     format_p_value(t.z1.p_two_sided), format_fixed(t.ks.d, 3), format_p_value(t.ks.p)});
+    out << table.render();
+    out << "  Z1 > 0: sightings at higher values than chance; KS p is conservative for a raster's tied values\n\n";
+  }
+  std::vector<std::string> notes = input.notes;
+  notes.insert(notes.end(), result.notes.begin(), result.notes.end());
+  if (!notes.empty()) {
+    out << "Notes\n";
+    for (const auto& n : notes) out << "  - " << n << "\n";
+  }
+  std::vector<std::string> warnings = input.warnings;
+  warnings.insert(warnings.end(), result.warnings.begin(), result.warnings.end());
+  if (!warnings.empty()) {
+    out << "\nWarnings\n";
+    for (const auto& w : warnings) out << "  - " << w << "\n";
+  }
+  out << "\nCautions\n";
+  for (const auto& c : habitat_cautions()) out << "  - " << c << "\n";
+  return out.str();
+}
+
+std::string habitat_csv(const Survey& survey, const HabitatRunFacts& run, const HabitatResult& result) {
+  Table t;
+  t.columns = {"kind", "species", "term",       "covariate", "estimate",  "se", "ci_low", "ci_high",
+               "z",    "p_value", "rate_ratio", "bias",      "statistic", "df", "unit"};
+  const auto num = [](double v) { return std::isfinite(v) ? format_round_trip(v) : std::string(); };
+  for (const auto& m : result.models) {
+    const std::string model_species = m.species ? survey.species()[*m.species] : "";
+    for (const auto& c : m.coefficients) {
+      const std::string species = c.species ? survey.species()[*c.species] : model_species;
+      t.rows.push_back({"coefficient", species, c.term, c.covariate, num(c.estimate), num(c.se), num(c.ci_low),
+                        num(c.ci_high), num(c.z), num(c.p_value), c.covariate.empty() ? "" : num(c.rate_ratio),
+                        c.covariate.empty() ? "" : (c.bias ? "true" : "false"), "", "", run.unit});
+    }
+    for (const auto& tt : m.term_tests)
+      t.rows.push_back({"term_test", model_species, tt.term, tt.term, "", "", "", "", "", num(tt.p_value), "", "",
+                        num(tt.statistic), std::to_string(tt.df), ""});
+  }
+  for (const auto& c : result.covariate_tests) {
+    const std::string species = c.species ? survey.species()[*c.species] : "";
+    t.rows.push_back({"covariate_test_z1", species, "z1", c.covariate, "", "", "", "", num(c.z1.statistic),
+                      num(c.z1.p_two_sided), "", "", num(c.z1.statistic), "", ""});
+    t.rows.push_back({"covariate_test_ks", species, "ks", c.covariate, "", "", "", "", "", num(c.ks.p), "", "",
+                      num(c.ks.d), "", ""});
+  }
+  return csv_text(t);
+}
+
+}  // namespace stipple
