@@ -1,6 +1,7 @@
 // `stipple habitat`: parse options, call the library, print.
 
 #include <algorithm>
+#include <filesystem>
 #include <iostream>
 #include <map>
 #include <memory>
@@ -10,9 +11,13 @@
 #include "stipple/error.hpp"
 #include "stipple/format.hpp"
 #include "stipple/habitat/habitat_model.hpp"
+#include "stipple/habitat/prediction.hpp"
 #include "stipple/intensity/poisson.hpp"
 #include "stipple/io/covariate_reader.hpp"
+#include "stipple/io/gis_writer.hpp"
+#include "stipple/io/output.hpp"
 #include "stipple/report/habitat_report.hpp"
+#include "stipple/simulate/engine.hpp"
 
 namespace stipple::cli {
 
@@ -27,6 +32,13 @@ struct HabitatCommandOptions {
   std::vector<std::string> distances;
   std::vector<std::string> bias_distances;
   double spacing = 0.0;
+  std::string surface;
+  double cell = 0.0;
+  std::string abundance;
+  std::string abundance_layer;
+  std::string abundance_field;
+  std::size_t bootstrap = 0;
+  std::uint64_t seed = default_seed;
   std::string slopes = "separate";
   bool drop_missing = false;
 };
@@ -111,6 +123,7 @@ int run_habitat(const HabitatCommandOptions& o) {
 
   std::vector<std::string> inputs = input_paths(o.common);
   for (const auto& g : given) inputs.push_back(g.distance ? g.path.substr(0, g.path.rfind(',')) : g.path);
+  if (!o.abundance.empty()) inputs.push_back(o.abundance);
   check_outputs({{"--json", o.common.json}, {"--csv", o.common.csv}}, inputs);
   LoadedSurvey survey = load_survey(to_read_options(o.common));
   const Bounds area = survey_bounds(survey.survey);
@@ -160,6 +173,51 @@ int run_habitat(const HabitatCommandOptions& o) {
     if (what.find("no value of covariate") != std::string::npos)
       throw InputError(what + "; or leave such places out with --drop-missing");
     throw;
+  }
+
+  if (!o.abundance.empty()) {
+    std::vector<AbundanceUnit> units;
+    for (Plot& p :
+         read_polygon_units(o.abundance, o.abundance_layer.empty() ? std::nullopt : std::optional(o.abundance_layer),
+                            o.abundance_field.empty() ? std::nullopt : std::optional(o.abundance_field), survey.crs))
+      units.push_back({p.id, std::move(p.window)});
+    AbundanceOptions a;
+    a.bootstrap = o.bootstrap;
+    a.seed = o.seed;
+    run.abundance = predict_abundance(survey.survey, covariates, options, result, units, a);
+    for (const auto& e : run.abundance)
+      if (e.extrapolated_share > 0.0)
+        result.warnings.push_back("management unit '" + e.unit +
+                                  "': " + format_significant(100.0 * e.extrapolated_share, 3) +
+                                  "% of its area has covariate values outside their range over the surveyed plots; "
+                                  "the expected number there extrapolates the model");
+  }
+  if (!o.surface.empty()) {
+    double cell = o.cell;
+    if (cell == 0.0) {
+      for (const auto& c : covariates)
+        if (!c.distance_to && (cell == 0.0 || std::min(c.grid.cell_width, c.grid.cell_height) < cell))
+          cell = std::min(c.grid.cell_width, c.grid.cell_height);
+      if (cell == 0.0) cell = std::max(area.width(), area.height()) / 200.0;
+    }
+    // Every surface is computed before the folder is made, so a refusal leaves nothing behind.
+    const std::vector<HabitatSurface> surfaces =
+        predict_surfaces(survey.survey, covariates, options, result, area, cell);
+    make_folder(o.surface);
+    std::string bias_note;
+    for (const auto& m : result.models)
+      for (const auto& c : m.coefficients)
+        if (c.bias_reference && bias_note.find(c.covariate) == std::string::npos)
+          bias_note += "; " + c.covariate + " at " + format_general(*c.bias_reference);
+    for (const auto& s : surfaces) {
+      const std::string name = s.species ? file_name_safe(survey.survey.species()[*s.species]) : "all-species";
+      const std::string path = (std::filesystem::path(o.surface) / (name + ".tif")).string();
+      write_geotiff(path, s.intensity,
+                    {GridBand{"predicted intensity per " + o.common.unit + bias_note, s.intensity.values},
+                     GridBand{"standard error (delta method)", s.standard_error}},
+                    survey.crs.wkt, inputs);
+      run.surfaces.push_back(path);
+    }
   }
 
   const bool stdout_taken = o.common.json == "-" || o.common.csv == "-";
@@ -224,6 +282,23 @@ Action add_habitat_command(CLI::App& app) {
                    "Quadrature cells of distance covariates, metres (default: the finest raster cell, else 1/200 "
                    "of the survey's extent); the fit is repeated at half of it and the change reported")
       ->check(positive_number());
+  command->add_option("--surface", options->surface,
+                      "Folder for <species>.tif: predicted intensity per --unit (band 1) and its standard error "
+                      "(band 2) over the plots' extent, bias terms at their reference");
+  command->add_option("--cell", options->cell, "Cell size of --surface, metres (default: the finest raster cell)")
+      ->check(positive_number());
+  command->add_option("--abundance", options->abundance,
+                      "Polygons (management units): the expected number of each species in each, with its interval");
+  command->add_option("--abundance-layer", options->abundance_layer, "Layer of --abundance to read");
+  command->add_option("--abundance-field", options->abundance_field,
+                      "Name attribute of --abundance (default: name, unit, plot or id, else the feature id)");
+  command
+      ->add_option("--bootstrap", options->bootstrap,
+                   "Parametric bootstrap draws for the --abundance intervals (default: 0, the delta method)")
+      ->check(whole_number(0, 1000000));
+  command->add_option("--seed", options->seed, "Seed of the parametric bootstrap")
+      ->check(whole_number(0, 18446744073709551615ULL))
+      ->capture_default_str();
   command->add_option("--slopes", options->slopes, "separate: each species its own slopes; shared: common slopes")
       ->check(CLI::IsMember({"separate", "shared"}))
       ->capture_default_str();

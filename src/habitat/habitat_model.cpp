@@ -11,6 +11,7 @@
 #include <boost/geometry.hpp>
 #include <boost/math/distributions/normal.hpp>
 
+#include "habitat/pieces.hpp"
 #include "stipple/error.hpp"
 #include "stipple/format.hpp"
 #include "stipple/habitat/loglinear_fit.hpp"
@@ -28,23 +29,6 @@ std::string at(const Point& p) {
   return "(" + format_general(p.x) + ", " + format_general(p.y) + ")";
 }
 
-// The breaks of a grid's cell edges inside [low, high], with both ends.
-void add_breaks(std::vector<double>& breaks, double origin, double step, std::size_t count, bool descending, double low,
-                double high) {
-  for (std::size_t j = 0; j <= count; ++j) {
-    const double b = descending ? origin - static_cast<double>(j) * step : origin + static_cast<double>(j) * step;
-    if (b > low && b < high) breaks.push_back(b);
-  }
-}
-
-std::vector<double> sorted_breaks(std::vector<double> breaks, double low, double high) {
-  breaks.push_back(low);
-  breaks.push_back(high);
-  std::sort(breaks.begin(), breaks.end());
-  breaks.erase(std::unique(breaks.begin(), breaks.end()), breaks.end());
-  return breaks;
-}
-
 // The windows cut along every covariate's cell edges: pieces of constant value.
 struct Pieces {
   std::vector<double> area_m2;
@@ -56,60 +40,21 @@ struct Pieces {
 Pieces cut_windows(const Survey& survey, const std::vector<HabitatCovariate>& covariates, bool drop_missing) {
   Pieces out;
   out.covariates = covariates.size();
-  std::vector<double> v(covariates.size());
   for (const Plot& plot : survey.plots()) {
-    const Window& w = plot.window;
-    const Bounds& b = w.bounds();
-    std::vector<double> xs;
-    std::vector<double> ys;
-    for (const auto& c : covariates) {
-      add_breaks(xs, c.grid.x_min, c.grid.cell_width, c.grid.columns, false, b.xmin, b.xmax);
-      add_breaks(ys, c.grid.y_max, c.grid.cell_height, c.grid.rows, true, b.ymin, b.ymax);
-    }
-    xs = sorted_breaks(std::move(xs), b.xmin, b.xmax);
-    ys = sorted_breaks(std::move(ys), b.ymin, b.ymax);
-    for (std::size_t r = 0; r + 1 < ys.size(); ++r) {
-      for (std::size_t c = 0; c + 1 < xs.size(); ++c) {
-        const double x0 = xs[c];
-        const double x1 = xs[c + 1];
-        const double y0 = ys[r];
-        const double y1 = ys[r + 1];
-        const Point centre{0.5 * (x0 + x1), 0.5 * (y0 + y1)};
-        const double half_diagonal = 0.5 * std::hypot(x1 - x0, y1 - y0);
-        double area = 0.0;
-        const double clearance = w.boundary_distance(centre);
-        if (clearance > half_diagonal) {
-          if (!w.contains_almost_surely(centre)) continue;
-          area = (x1 - x0) * (y1 - y0);
-        } else {
-          const BgBox box(BgPoint(x0, y0), BgPoint(x1, y1));
-          BgMultiPolygon clipped;
-          bg::intersection(box, w.shape(), clipped);
-          area = bg::area(clipped);
-          if (!(area > 0.0)) continue;
-        }
-        bool missing = false;
-        for (std::size_t k = 0; k < covariates.size(); ++k) {
-          // A distance covariate's cells only cut the window; each piece is at the distance
-          // of its own centre (midpoint quadrature).
-          v[k] = covariates[k].distance_to ? covariates[k].distance_to->distance(centre)
-                                           : covariates[k].grid.value_at(centre);
-          if (std::isnan(v[k])) {
-            if (!drop_missing)
-              throw InputError("plot '" + plot.id + "': the window part at " + at(centre) +
-                               " has no value of covariate '" + covariates[k].name + "' (" + covariates[k].source +
-                               ": no data there, or outside the raster)");
-            missing = true;
-          }
-        }
-        if (missing) {
-          out.dropped_area_m2 += area;
-          continue;
-        }
-        out.area_m2.push_back(area);
-        out.values.insert(out.values.end(), v.begin(), v.end());
-      }
-    }
+    habitat_detail::cut_window(plot.window, covariates,
+                               [&](const Point& centre, double area, const std::vector<double>& v) {
+                                 for (std::size_t k = 0; k < covariates.size(); ++k) {
+                                   if (!std::isnan(v[k])) continue;
+                                   if (!drop_missing)
+                                     throw InputError("plot '" + plot.id + "': the window part at " + at(centre) +
+                                                      " has no value of covariate '" + covariates[k].name + "' (" +
+                                                      covariates[k].source + ": no data there, or outside the raster)");
+                                   out.dropped_area_m2 += area;
+                                   return;
+                                 }
+                                 out.area_m2.push_back(area);
+                                 out.values.insert(out.values.end(), v.begin(), v.end());
+                               });
   }
   return out;
 }
@@ -129,10 +74,9 @@ Kept sighting_values(const Survey& survey, const std::vector<HabitatCovariate>& 
     for (std::size_t i = 0; i < pattern.points.size(); ++i) {
       const Point& p = pattern.points[i];
       std::string missing;
-      for (std::size_t k = 0; k < covariates.size(); ++k) {
-        v[k] = covariates[k].distance_to ? covariates[k].distance_to->distance(p) : covariates[k].grid.value_at(p);
+      habitat_detail::values_at(covariates, p, v);
+      for (std::size_t k = 0; k < covariates.size(); ++k)
         if (std::isnan(v[k]) && missing.empty()) missing = covariates[k].name;
-      }
       if (!missing.empty()) {
         if (!drop_missing) {
           const auto& c = *std::find_if(covariates.begin(), covariates.end(),
@@ -151,11 +95,7 @@ Kept sighting_values(const Survey& survey, const std::vector<HabitatCovariate>& 
   return out;
 }
 
-// One fitted column: a numeric covariate, or one class of a factor.
-struct Column {
-  std::size_t covariate = 0;
-  std::optional<double> level;  // the class, for a factor
-};
+using Column = DesignColumn;
 
 std::vector<double> column_values(const std::vector<double>& values, std::size_t stride,
                                   const std::vector<Column>& columns, std::size_t rows,
@@ -484,6 +424,7 @@ HabitatResult fit_core(const Survey& survey, const std::vector<HabitatCovariate>
     result.models = std::move(separate);  // one species: shared and separate are the same model
   }
   if (result.models.empty()) throw AnalysisError("habitat model: no species could be fitted");
+  result.columns = ctx.columns;
 
   // Covariate tests, each numeric covariate against each species and all together.
   std::vector<std::optional<std::size_t>> groups(present.begin(), present.end());

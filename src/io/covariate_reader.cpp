@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <cmath>
 #include <memory>
+#include <set>
 #include <string>
 #include <vector>
 
@@ -186,6 +187,47 @@ bool add_geometry(const OGRGeometry& g, MappedFeatures& out) {
 }
 
 }  // namespace
+
+std::vector<Plot> read_polygon_units(const std::string& path, const std::optional<std::string>& layer_name,
+                                     const std::optional<std::string>& id_field, const AnalysisCrs& crs) {
+  GdalScope scope;
+  DatasetPtr dataset = open_vector(path);
+  OGRLayer& layer = pick_layer(*dataset, path, layer_name, LayerKind::polygons, "layer");
+  const std::string label = layer_label(path, layer);
+  int field = -1;
+  OGRFeatureDefn* defn = layer.GetLayerDefn();
+  if (id_field) {
+    field = defn->GetFieldIndex(id_field->c_str());
+    if (field < 0) throw InputError(label + ": no field '" + *id_field + "' (fields: " + field_list(layer) + ")");
+  } else {
+    for (const char* name : {"name", "unit", "plot", "id"})
+      if (field < 0) field = defn->GetFieldIndex(name);
+  }
+  const OGRSpatialReference source = layer_crs(layer, label, std::nullopt);
+  OGRSpatialReference target;
+  if (target.importFromWkt(crs.wkt.c_str()) != OGRERR_NONE)
+    throw InputError("analysis CRS " + crs.code + ": cannot be read back from its WKT");
+  target.SetAxisMappingStrategy(OAMS_TRADITIONAL_GIS_ORDER);
+  const TransformPtr transform = make_transform(source, target, label);
+  std::vector<Plot> units;
+  std::set<std::string> seen;
+  (void)scan_layer(layer, label, false, [&](OGRFeature& feature) {
+    const std::string where = label + ", feature " + std::to_string(feature.GetFID());
+    const std::string id = field >= 0 ? std::string(feature.GetFieldAsString(field)) : std::to_string(feature.GetFID());
+    if (id.empty()) throw InputError(where + ": has no name");
+    if (!seen.insert(id).second) throw InputError(where + ": the name '" + id + "' is used twice");
+    const OGRGeometry* g = feature.GetGeometryRef();
+    if (g == nullptr || g->IsEmpty()) throw InputError(where + ": has no geometry");
+    std::unique_ptr<OGRGeometry> copy(g->clone());
+    if (transform && copy->transform(transform.get()) != OGRERR_NONE)
+      throw InputError(where + ": cannot be reprojected to " + crs.code);
+    BgMultiPolygon shape;
+    collect_polygons(*copy, shape);
+    units.push_back(Plot{id, Window::from_polygons(std::move(shape), where + " ('" + id + "')")});
+  });
+  if (units.empty()) throw InputError(label + ": holds no polygon");
+  return units;
+}
 
 CovariateFeatures read_covariate_features(const std::string& path, const std::optional<std::string>& layer_name,
                                           const AnalysisCrs& crs) {

@@ -279,9 +279,13 @@ void merge_plot_results(const std::vector<std::string>& inputs, const std::strin
   writer.commit();
 }
 
-void write_geotiff(const std::string& path, const IntensityRaster& raster, const std::string& crs_wkt,
-                   const std::string& description, const std::vector<std::string>& protect) {
+void write_geotiff(const std::string& path, const RasterGrid& grid, const std::vector<GridBand>& bands,
+                   const std::string& crs_wkt, const std::vector<std::string>& protect) {
   const GdalScope gdal;
+  if (bands.empty()) throw InputError(path + ": no band to write");
+  for (const auto& b : bands)
+    if (b.values.size() != grid.columns * grid.rows)
+      throw InputError(path + ": band '" + b.description + "' does not fill the grid");
   TemporaryOutput output(checked_output_path(path, protect), true);
   const std::string& temporary = output.path();
   GDALDriver* driver = GetGDALDriverManager()->GetDriverByName("GTiff");
@@ -289,22 +293,36 @@ void write_geotiff(const std::string& path, const IntensityRaster& raster, const
   CPLStringList options;
   options.SetNameValue("COMPRESS", "DEFLATE");
   options.SetNameValue("TILED", "YES");
-  DatasetPtr ds(driver->Create(temporary.c_str(), static_cast<int>(raster.width), static_cast<int>(raster.height), 1,
-                               GDT_Float64, options.List()));
+  const int width = static_cast<int>(grid.columns);
+  const int height = static_cast<int>(grid.rows);
+  DatasetPtr ds(
+      driver->Create(temporary.c_str(), width, height, static_cast<int>(bands.size()), GDT_Float64, options.List()));
   if (!ds) throw InputError(path + ": cannot create GeoTIFF (" + last_gdal_message() + ")");
-  double transform[6] = {raster.x_min, raster.pixel_m, 0.0, raster.y_max, 0.0, -raster.pixel_m};
+  double transform[6] = {grid.x_min, grid.cell_width, 0.0, grid.y_max, 0.0, -grid.cell_height};
   if (ds->SetGeoTransform(transform) != CE_None || ds->SetProjection(crs_wkt.c_str()) != CE_None)
     throw InputError(path + ": cannot record the grid and CRS (" + last_gdal_message() + ")");
-  GDALRasterBand* band = ds->GetRasterBand(1);
-  if (band == nullptr || band->SetNoDataValue(std::numeric_limits<double>::quiet_NaN()) != CE_None)
-    throw InputError(path + ": cannot set the no-data value (" + last_gdal_message() + ")");
-  band->SetDescription(description.c_str());
-  std::vector<double> values = raster.values;
-  if (band->RasterIO(GF_Write, 0, 0, static_cast<int>(raster.width), static_cast<int>(raster.height), values.data(),
-                     static_cast<int>(raster.width), static_cast<int>(raster.height), GDT_Float64, 0, 0) != CE_None)
-    throw InputError(path + ": write failed (" + last_gdal_message() + ")");
+  for (std::size_t i = 0; i < bands.size(); ++i) {
+    GDALRasterBand* band = ds->GetRasterBand(static_cast<int>(i) + 1);
+    if (band == nullptr || band->SetNoDataValue(std::numeric_limits<double>::quiet_NaN()) != CE_None)
+      throw InputError(path + ": cannot set the no-data value (" + last_gdal_message() + ")");
+    band->SetDescription(bands[i].description.c_str());
+    std::vector<double> values = bands[i].values;
+    if (band->RasterIO(GF_Write, 0, 0, width, height, values.data(), width, height, GDT_Float64, 0, 0) != CE_None)
+      throw InputError(path + ": write failed (" + last_gdal_message() + ")");
+  }
   close_checked(std::move(ds), path);
   output.commit();
+}
+
+void write_geotiff(const std::string& path, const IntensityRaster& raster, const std::string& crs_wkt,
+                   const std::string& description, const std::vector<std::string>& protect) {
+  RasterGrid grid;
+  grid.x_min = raster.x_min;
+  grid.y_max = raster.y_max;
+  grid.cell_width = grid.cell_height = raster.pixel_m;
+  grid.columns = raster.width;
+  grid.rows = raster.height;
+  write_geotiff(path, grid, {GridBand{description, raster.values}}, crs_wkt, protect);
 }
 
 }  // namespace stipple

@@ -155,6 +155,18 @@ std::string habitat_json(const InputFacts& input, const Survey& survey, const Ha
                      {"ks_statistic", t.ks.d},
                      {"ks_p_value", t.ks.p}});
   doc["covariate_tests"] = std::move(tests);
+  Json abundance = Json::array();
+  for (const auto& a : run.abundance)
+    abundance.push_back({{"unit", a.unit},
+                         {"species", species_json(survey, a.species)},
+                         {"area", a.area_m2 / per_unit},
+                         {"expected", a.expected},
+                         {"se", a.se},
+                         {"ci", {a.ci_low, a.ci_high}},
+                         {"method", a.method},
+                         {"extrapolated_share", a.extrapolated_share}});
+  doc["abundance"] = std::move(abundance);
+  doc["surfaces"] = run.surfaces;
   Json dropped = Json::array();
   for (const auto& d : result.dropped_sightings)
     dropped.push_back({{"feature_id", d.feature_id}, {"plot", d.plot}, {"covariate", d.covariate}});
@@ -231,6 +243,24 @@ std::string habitat_table(const InputFacts& input, const Survey& survey, const H
     out << table.render();
     out << "  Z1 > 0: sightings at higher values than chance; KS p is conservative for a raster's tied values\n\n";
   }
+  if (!run.abundance.empty()) {
+    out << "Expected numbers in the management units (bias terms at their reference; interval for the expected "
+           "number, not for a realised count: "
+        << run.abundance.front().method << ")\n";
+    TextTable table({"unit", "species", "area_" + run.unit, "expected", "se", "ci_low", "ci_high", "extrapolated"}, 2);
+    for (const auto& a : run.abundance)
+      table.add_row({a.unit, species_text(survey, a.species), format_significant(a.area_m2 / per_unit, 4),
+                     format_significant(a.expected, 4), format_significant(a.se, 3), format_significant(a.ci_low, 4),
+                     format_significant(a.ci_high, 4),
+                     a.extrapolated_share > 0.0 ? format_significant(100.0 * a.extrapolated_share, 3) + "%" : "-"});
+    out << table.render();
+    out << "  extrapolated: share of the unit whose covariates lie outside their range over the surveyed plots\n\n";
+  }
+  if (!run.surfaces.empty()) {
+    out << "Intensity surfaces (band 1: intensity per " << run.unit << ", band 2: its standard error)\n";
+    for (const auto& f : run.surfaces) out << "  " << f << "\n";
+    out << "\n";
+  }
   std::vector<std::string> notes = input.notes;
   notes.insert(notes.end(), result.notes.begin(), result.notes.end());
   if (!notes.empty()) {
@@ -265,6 +295,9 @@ std::string habitat_csv(const Survey& survey, const HabitatRunFacts& run, const 
       t.rows.push_back({"term_test", model_species, tt.term, tt.term, "", "", "", "", "", num(tt.p_value), "", "",
                         num(tt.statistic), std::to_string(tt.df), ""});
   }
+  for (const auto& a : run.abundance)
+    t.rows.push_back({"abundance", a.species ? survey.species()[*a.species] : "", a.unit, "", num(a.expected),
+                      num(a.se), num(a.ci_low), num(a.ci_high), "", "", "", "", "", "", run.unit});
   for (const auto& c : result.covariate_tests) {
     const std::string species = c.species ? survey.species()[*c.species] : "";
     t.rows.push_back({"covariate_test_z1", species, "z1", c.covariate, "", "", "", "", num(c.z1.statistic),

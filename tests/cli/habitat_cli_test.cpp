@@ -149,6 +149,40 @@ TEST(HabitatCli, ThinnedObserverPatternIsCorrectedByTheDistanceToPaths) {
   EXPECT_LT(nlohmann::json::parse(naive.out)["models"][0]["coefficients"][0]["ci"][1].get<double>(), heath - 1.0);
 }
 
+TEST(HabitatCli, SurfacesAndAbundanceInManagementUnits) {
+  // The adders corrected for reporting: the expected number in each plot must cover the
+  // true mean, 25 per ha on heath and 10 per ha elsewhere (the generator's values), which for
+  // the all-heath 'slope' plot is 25 x 6.25 = 156.25.
+  TempDir dir;
+  const std::string gpkg = sample("habitat/habitat.gpkg");
+  const auto r = run_cli(habitat("opportunistic", "compartment",
+                                 "--factor landcover=" + sample("habitat/landcover.tif") +
+                                     " --bias-distance path=" + gpkg + ",paths --abundance " + gpkg +
+                                     " --abundance-layer plots --surface " + dir.file("maps") + " --json -"));
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  const auto doc = nlohmann::json::parse(r.out);
+  ASSERT_EQ(doc["abundance"].size(), 3u);
+  bool found = false;
+  for (const auto& a : doc["abundance"]) {
+    if (a["unit"] != "slope") continue;
+    found = true;
+    EXPECT_NEAR(a["area"].get<double>(), 6.25, 1e-9);
+    EXPECT_LE(a["ci"][0].get<double>(), 156.25);
+    EXPECT_GE(a["ci"][1].get<double>(), 156.25);
+  }
+  EXPECT_TRUE(found);
+  ASSERT_EQ(doc["surfaces"].size(), 1u);
+  const std::string tif = doc["surfaces"][0].get<std::string>();
+  EXPECT_EQ(tif, dir.file("maps") + "/adder.tif");
+  // GDAL reads the map back: two bands, the first the intensity with the path at 0.
+  const std::string cmd = "gdalinfo " + tif + " > " + dir.file("info.txt");
+  ASSERT_EQ(std::system(cmd.c_str()), 0);
+  const std::string text = test::read_file(dir.file("info.txt"));
+  EXPECT_NE(text.find("Band 2"), std::string::npos);
+  EXPECT_NE(text.find("predicted intensity per ha; path at 0"), std::string::npos);
+  EXPECT_NE(text.find("32630"), std::string::npos);
+}
+
 TEST(HabitatCli, RefusesBadCovariatesNamingThem) {
   expect_refused(run_cli(habitat("sightings", "plots", "")), "needs at least one --covariate");
   expect_refused(run_cli(habitat("sightings", "plots", "--covariate moisture")), "--covariate 'moisture'");

@@ -142,8 +142,18 @@ struct QuadratureCheck {
   double largest_change_in_se = 0.0;
 };
 
+/// A slope column of the models: a numeric covariate, or one class of a factor (1 in that
+/// class, 0 elsewhere).
+struct DesignColumn {
+  std::size_t covariate = 0;    ///< index into the covariates
+  std::optional<double> level;  ///< the class, for a factor
+};
+
 struct HabitatResult {
   std::vector<HabitatModel> models;
+  /// The slope columns of every model, in the order of their coefficients after the
+  /// intercept(s).
+  std::vector<DesignColumn> columns;
   std::optional<QuadratureCheck> quadrature;
   std::vector<HabitatCovariateTest> covariate_tests;
   std::optional<SlopeTest> slope_test;

@@ -9,6 +9,7 @@
 
 #include "stipple/geometry/distance_field.hpp"
 #include "stipple/geometry/raster_grid.hpp"
+#include "stipple/geometry/survey.hpp"
 #include "stipple/geometry/window.hpp"
 #include "stipple/input_facts.hpp"
 
@@ -45,5 +46,12 @@ struct CovariateFeatures {
 [[nodiscard]] CovariateFeatures read_covariate_features(const std::string& path,
                                                         const std::optional<std::string>& layer,
                                                         const AnalysisCrs& crs);
+
+/// Reads the polygons of a layer (management units) into the analysis CRS, one unit per
+/// feature, named by `id_field` (default: the first of name, unit, plot, id that exists, else the
+/// feature id). Throws InputError naming the file, layer or feature for a missing field, a
+/// repeated name, or a geometry that is not a valid polygon.
+[[nodiscard]] std::vector<Plot> read_polygon_units(const std::string& path, const std::optional<std::string>& layer,
+                                                   const std::optional<std::string>& id_field, const AnalysisCrs& crs);
 
 }  // namespace stipple

@@ -7,6 +7,7 @@
 #include <string>
 #include <vector>
 
+#include "stipple/geometry/raster_grid.hpp"
 #include "stipple/geometry/window.hpp"
 #include "stipple/intensity/kernel.hpp"
 
@@ -70,6 +71,18 @@ void write_plot_results(const std::string& path, const std::string& crs_wkt,
 /// layers), features ordered by file name (stable), in the first one's CRS.
 void merge_plot_results(const std::vector<std::string>& inputs, const std::string& path,
                         const std::vector<std::string>& protected_paths);
+
+/// One band of a GeoTIFF: its description and its values (row-major from the top, NaN = no
+/// data).
+struct GridBand {
+  std::string description;
+  std::vector<double> values;
+};
+
+/// Writes a Float64 GeoTIFF with one band per entry on the grid of `grid` (its values are
+/// not written), in the CRS given as WKT, through a temporary file and a rename.
+void write_geotiff(const std::string& path, const RasterGrid& grid, const std::vector<GridBand>& bands,
+                   const std::string& crs_wkt, const std::vector<std::string>& protected_paths);
 
 /// Writes a single-band Float64 GeoTIFF (NaN = no data) in the CRS given as WKT.
 void write_geotiff(const std::string& path, const IntensityRaster& raster, const std::string& crs_wkt,

@@ -6,6 +6,7 @@
 
 #include "stipple/geometry/survey.hpp"
 #include "stipple/habitat/habitat_model.hpp"
+#include "stipple/habitat/prediction.hpp"
 #include "stipple/input_facts.hpp"
 
 namespace stipple {
@@ -23,6 +24,10 @@ struct HabitatRunFacts {
     bool bias = false;
   };
   std::vector<Covariate> covariates;
+  /// Expected numbers in management units, when asked for.
+  std::vector<AbundanceEstimate> abundance;
+  /// The intensity surfaces written (GeoTIFF paths).
+  std::vector<std::string> surfaces;
 };
 
 /// The cautions printed with every habitat result (README "Habitat models").
