@@ -10,6 +10,7 @@
 #include "common_options.hpp"
 #include "stipple/error.hpp"
 #include "stipple/format.hpp"
+#include "stipple/habitat/clustering.hpp"
 #include "stipple/habitat/habitat_model.hpp"
 #include "stipple/habitat/prediction.hpp"
 #include "stipple/intensity/poisson.hpp"
@@ -39,6 +40,9 @@ struct HabitatCommandOptions {
   std::string abundance_field;
   std::size_t bootstrap = 0;
   std::uint64_t seed = default_seed;
+  std::size_t simulations = 199;
+  unsigned threads = 0;
+  double rmax = 0.0;
   std::string slopes = "separate";
   bool drop_missing = false;
 };
@@ -175,6 +179,19 @@ int run_habitat(const HabitatCommandOptions& o) {
     throw;
   }
 
+  if (o.simulations > 0) {
+    ClusteringOptions c;
+    c.simulations = o.simulations;
+    c.seed = o.seed;
+    c.threads = o.threads;
+    c.alpha = 1.0 - o.common.confidence;
+    c.rmax_m = o.rmax;
+    c.unit_m2 = options.unit_m2;
+    c.cancel = interrupt_token();
+    run.clustering = analyse_clustering(survey.survey, covariates, result, c);
+    run.simulations = o.simulations;
+    run.seed = o.seed;
+  }
   if (!o.abundance.empty()) {
     std::vector<AbundanceUnit> units;
     for (Plot& p :
@@ -296,7 +313,20 @@ Action add_habitat_command(CLI::App& app) {
       ->add_option("--bootstrap", options->bootstrap,
                    "Parametric bootstrap draws for the --abundance intervals (default: 0, the delta method)")
       ->check(whole_number(0, 1000000));
-  command->add_option("--seed", options->seed, "Seed of the parametric bootstrap")
+  command
+      ->add_option("--simulations", options->simulations,
+                   "Simulations of the fitted model for the inhomogeneous L test and the cluster fits' tests "
+                   "(0: skip them)")
+      ->check(whole_number(0, 100000))
+      ->capture_default_str();
+  command->add_option("--threads", options->threads, "Threads for the simulations (default: all cores)")
+      ->check(whole_number(0, 1024));
+  command
+      ->add_option("--rmax", options->rmax,
+                   "Largest distance of the inhomogeneous K, metres (default: a quarter of the smallest plot's "
+                   "shorter side, at most 4 / sqrt(intensity))")
+      ->check(positive_number());
+  command->add_option("--seed", options->seed, "Seed of the simulations and the parametric bootstrap")
       ->check(whole_number(0, 18446744073709551615ULL))
       ->capture_default_str();
   command->add_option("--slopes", options->slopes, "separate: each species its own slopes; shared: common slopes")

@@ -8,6 +8,7 @@
 #include <boost/math/distributions/normal.hpp>
 
 #include "habitat/pieces.hpp"
+#include "habitat/predictor.hpp"
 #include "stipple/error.hpp"
 #include "stipple/format.hpp"
 #include "stipple/stats/interval.hpp"
@@ -16,72 +17,13 @@ namespace stipple {
 
 namespace {
 
+using habitat_detail::design_row;
+using habitat_detail::dot;
+using habitat_detail::Predictor;
+using habitat_detail::predictors;
+using habitat_detail::quadratic_form;
+
 constexpr double nan = std::numeric_limits<double>::quiet_NaN();
-
-// One model as a linear predictor in its fitted parametrisation: log intensity per unit =
-// beta . x, x = [1, species indicators (shared slopes), slope columns].
-struct Predictor {
-  std::optional<std::size_t> species;             // the species predicted
-  std::vector<double> beta;                       // per unit in the intercept
-  std::vector<double> covariance;                 // as fitted
-  std::size_t indicator = 0;                      // 0: none; s: x[s] = 1 (shared slopes, species s > 0)
-  std::size_t offset = 1;                         // index of the first slope
-  std::vector<std::optional<double>> references;  // per slope column: bias reference
-};
-
-std::vector<Predictor> predictors(const HabitatResult& result) {
-  std::vector<Predictor> out;
-  for (const HabitatModel& m : result.models) {
-    std::vector<const HabitatCoefficient*> intercepts;
-    std::vector<const HabitatCoefficient*> slopes;
-    for (const auto& c : m.coefficients) (c.covariate.empty() ? intercepts : slopes).push_back(&c);
-    const std::size_t s_count = intercepts.size();
-    for (std::size_t s = 0; s < s_count; ++s) {
-      Predictor p;
-      p.species = s_count > 1 ? intercepts[s]->species : m.species;
-      p.covariance = m.covariance;
-      p.offset = s_count;
-      p.indicator = s;
-      p.beta.push_back(intercepts[0]->estimate);
-      for (std::size_t t = 1; t < s_count; ++t) p.beta.push_back(intercepts[t]->estimate - intercepts[0]->estimate);
-      for (const auto* c : slopes) {
-        p.beta.push_back(c->estimate);
-        p.references.push_back(c->bias ? c->bias_reference : std::nullopt);
-      }
-      out.push_back(std::move(p));
-    }
-  }
-  return out;
-}
-
-// x for the covariate values `v` (bias terms at their references); false when a value is missing.
-bool design_row(const Predictor& p, const std::vector<DesignColumn>& columns, const std::vector<double>& v,
-                std::vector<double>& x) {
-  x.assign(p.beta.size(), 0.0);
-  x[0] = 1.0;
-  if (p.indicator > 0) x[p.indicator] = 1.0;
-  for (std::size_t j = 0; j < columns.size(); ++j) {
-    double z = p.references[j] ? *p.references[j] : v[columns[j].covariate];
-    if (std::isnan(z)) return false;
-    if (columns[j].level) z = z == *columns[j].level ? 1.0 : 0.0;
-    x[p.offset + j] = z;
-  }
-  return true;
-}
-
-double dot(const std::vector<double>& a, const std::vector<double>& b) {
-  double s = 0.0;
-  for (std::size_t i = 0; i < a.size(); ++i) s += a[i] * b[i];
-  return s;
-}
-
-double quadratic_form(const std::vector<double>& covariance, const std::vector<double>& g) {
-  const std::size_t p = g.size();
-  double q = 0.0;
-  for (std::size_t i = 0; i < p; ++i)
-    for (std::size_t j = 0; j < p; ++j) q += g[i] * covariance[i * p + j] * g[j];
-  return std::max(q, 0.0);
-}
 
 // Lower Cholesky factor of a covariance matrix (for parametric bootstrap draws).
 std::vector<double> cholesky(const std::vector<double>& a, std::size_t p) {

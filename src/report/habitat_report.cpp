@@ -10,6 +10,7 @@
 #include "report/input_summary.hpp"
 #include "stipple/format.hpp"
 #include "stipple/intensity/poisson.hpp"
+#include "stipple/randomness/envelope.hpp"
 #include "stipple/report/tables.hpp"
 #include "stipple/version.hpp"
 
@@ -155,6 +156,38 @@ std::string habitat_json(const InputFacts& input, const Survey& survey, const Ha
                      {"ks_statistic", t.ks.d},
                      {"ks_p_value", t.ks.p}});
   doc["covariate_tests"] = std::move(tests);
+  Json clustering = Json::array();
+  const auto test_json = [](const EnvelopeResult& e) {
+    Json departures = Json::array();
+    for (const auto& d : e.departures)
+      departures.push_back(
+          {{"from", d.from_m}, {"to", d.to_m}, {"direction", d.direction == "above" ? "clustered" : "regular"}});
+    return Json{{"simulations", e.simulations},
+                {"dclf_p_value", e.dclf_p_value},
+                {"mad_p_value", e.mad_p_value},
+                {"erl_p_value", e.erl_p_value},
+                {"departures", std::move(departures)}};
+  };
+  const auto fit_json = [&](const ClusterFit& f, const std::optional<EnvelopeResult>& test, const char* scale) {
+    Json j{{"kappa", f.kappa_per_m2 * per_unit}, {scale, f.scale_m},
+           {"mean_offspring", f.mean_offspring}, {"contrast", f.contrast},
+           {"converged", f.converged},           {"poisson_limit", f.poisson_limit}};
+    j["fit_test"] = test ? test_json(*test) : Json(nullptr);
+    return j;
+  };
+  for (const auto& c : run.clustering) {
+    Json j{{"species", species_json(survey, c.species)},
+           {"n", c.n},
+           {"rmax_m", c.rmax_m},
+           {"verdict", c.verdict},
+           {"inhomogeneous_l_test", test_json(c.l_envelope)}};
+    j["thomas"] = c.thomas ? fit_json(*c.thomas, c.thomas_test, "sigma_m") : Json(nullptr);
+    j["matern"] = c.matern ? fit_json(*c.matern, c.matern_test, "radius_m") : Json(nullptr);
+    clustering.push_back(std::move(j));
+  }
+  doc["simulations"] = run.simulations;
+  doc["seed"] = run.seed;
+  doc["clustering"] = std::move(clustering);
   Json abundance = Json::array();
   for (const auto& a : run.abundance)
     abundance.push_back({{"unit", a.unit},
@@ -242,6 +275,40 @@ std::string habitat_table(const InputFacts& input, const Survey& survey, const H
                      format_p_value(t.z1.p_two_sided), format_fixed(t.ks.d, 3), format_p_value(t.ks.p)});
     out << table.render();
     out << "  Z1 > 0: sightings at higher values than chance; KS p is conservative for a raster's tied values\n\n";
+  }
+  if (!run.clustering.empty()) {
+    out << "What habitat leaves unexplained: inhomogeneous L with the fitted intensity against " << run.simulations
+        << " simulations of the fitted model (seed " << run.seed << ")\n";
+    TextTable table({"species", "n", "rmax_m", "DCLF p", "verdict", "Thomas kappa/" + run.unit, "sigma_m", "offspring",
+                     "fit p", "Matern kappa/" + run.unit, "R_m", "fit p"},
+                    1);
+    const auto fit_cells = [&](const std::optional<ClusterFit>& f, const std::optional<EnvelopeResult>& test,
+                               std::vector<std::string>& row) {
+      if (!f || f->poisson_limit) {
+        row.insert(row.end(), {"-", "-", "-", "-"});
+        return;
+      }
+      row.push_back(format_significant(f->kappa_per_m2 * per_unit, 3));
+      row.push_back(format_significant(f->scale_m, 3));
+      row.push_back(format_significant(f->mean_offspring, 3));
+      row.push_back(test ? format_p_value(test->dclf_p_value) : "-");
+    };
+    for (const auto& c : run.clustering) {
+      std::vector<std::string> row{species_text(survey, c.species), std::to_string(c.n),
+                                   format_significant(c.rmax_m, 3), format_p_value(c.l_envelope.dclf_p_value),
+                                   c.verdict};
+      fit_cells(c.thomas, c.thomas_test, row);
+      std::vector<std::string> matern;
+      fit_cells(c.matern, c.matern_test, matern);
+      row.push_back(matern[0]);
+      row.push_back(matern[1]);
+      row.push_back(matern[3]);
+      table.add_row(row);
+    }
+    out << table.render();
+    out << "  Cluster fits by minimum contrast on the inhomogeneous K (Diggle 1983; Waagepetersen 2007); fit p: DCLF "
+           "test of L against simulations of the fitted cluster process (a small p: the model does not fit); kappa: "
+           "parent intensity; offspring: mean per parent at the mean intensity\n\n";
   }
   if (!run.abundance.empty()) {
     out << "Expected numbers in the management units (bias terms at their reference; interval for the expected "

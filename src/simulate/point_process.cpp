@@ -81,6 +81,31 @@ std::vector<Point> simulate_thomas(const Window& window, double kappa_per_m2, do
   return points;
 }
 
+std::vector<Point> simulate_matern_cluster(const Window& window, double kappa_per_m2, double mean_offspring,
+                                           double radius_m, Engine& engine) {
+  if (!(kappa_per_m2 >= 0.0 && mean_offspring >= 0.0 && radius_m > 0.0))
+    throw AnalysisError("Matern cluster process needs kappa >= 0, mu >= 0 and R > 0");
+  const Bounds outer = dilate(window.bounds(), radius_m);
+  boost::random::poisson_distribution<std::size_t, double> parents(
+      std::max(1e-12, kappa_per_m2 * outer.width() * outer.height()));
+  boost::random::poisson_distribution<std::size_t, double> offspring(std::max(1e-12, mean_offspring));
+  boost::random::uniform_real_distribution<double> unit(0.0, 1.0);
+  std::vector<Point> points;
+  const std::size_t n_parents = parents(engine);
+  for (std::size_t k = 0; k < n_parents; ++k) {
+    const Point parent = uniform_in(outer, engine);
+    const std::size_t n_children = offspring(engine);
+    for (std::size_t c = 0; c < n_children; ++c) {
+      // Uniform in the disc: radius R sqrt(U), angle 2 pi V.
+      const double rho = radius_m * std::sqrt(unit(engine));
+      const double theta = 2.0 * 3.14159265358979323846 * unit(engine);
+      const Point child{parent.x + rho * std::cos(theta), parent.y + rho * std::sin(theta)};
+      if (window.contains_almost_surely(child)) points.push_back(child);
+    }
+  }
+  return points;
+}
+
 std::vector<Point> simulate_matern_ii(const Window& window, double intensity_per_m2, double hard_core_m,
                                       Engine& engine) {
   if (!(intensity_per_m2 >= 0.0 && hard_core_m >= 0.0))

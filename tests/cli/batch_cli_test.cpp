@@ -23,6 +23,15 @@ namespace fs = std::filesystem;
 namespace stipple {
 namespace {
 
+// Headless Chromium now and then stalls on a loaded machine: each attempt is limited to 90 s
+// by coreutils' timeout, and a stalled or failed one is tried once more.
+int screenshot_with_retry(const std::string& command) {
+  int status = std::system(command.c_str());
+  if (status != 0) status = std::system(command.c_str());
+  return status;
+}
+
+
 using test::run_cli;
 using test::sample;
 using test::TempDir;
@@ -340,12 +349,12 @@ TEST(BatchCli, ReportRendersInHeadlessChromium) {
   EXPECT_EQ(html.find("src=\"http"), std::string::npos);  // self-contained
   const std::string png = out.file("shot.png");
   const std::string command =
-      "/usr/bin/chromium --headless --no-sandbox --disable-gpu --disable-quic --no-first-run "
+      "timeout -k 5 90 /usr/bin/chromium --headless --no-sandbox --disable-gpu --disable-quic --no-first-run "
       "--disable-background-networking --disable-component-update --disable-sync "
       "--user-data-dir=" +
       out.file("profile") + " --window-size=1200,1600 --screenshot=" + png + " file://" + out.file("o/report.html") +
       " > /dev/null 2>&1";
-  ASSERT_EQ(std::system(command.c_str()), 0);
+  ASSERT_EQ(screenshot_with_retry(command), 0);
   cairo_surface_t* image = cairo_image_surface_create_from_png(png.c_str());
   ASSERT_EQ(cairo_surface_status(image), CAIRO_STATUS_SUCCESS);
   const int width = cairo_image_surface_get_width(image);
@@ -371,12 +380,12 @@ struct Screenshot {
   Screenshot(const TempDir& dir, const std::string& page, const std::string& name, int width, int height) {
     const std::string png = dir.file(name + ".png");
     const std::string command =
-        "/usr/bin/chromium --headless --no-sandbox --disable-gpu --disable-quic --no-first-run "
+        "timeout -k 5 90 /usr/bin/chromium --headless --no-sandbox --disable-gpu --disable-quic --no-first-run "
         "--disable-background-networking --disable-component-update --disable-sync --hide-scrollbars "
         "--force-device-scale-factor=1 --user-data-dir=" +
         dir.file("profile-" + name) + " --window-size=" + std::to_string(width) + "," + std::to_string(height) +
         " --screenshot=" + png + " file://" + page + " > /dev/null 2>&1";
-    if (std::system(command.c_str()) == 0) image = cairo_image_surface_create_from_png(png.c_str());
+    if (screenshot_with_retry(command) == 0) image = cairo_image_surface_create_from_png(png.c_str());
   }
   ~Screenshot() {
     if (image != nullptr) cairo_surface_destroy(image);

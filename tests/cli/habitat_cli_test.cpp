@@ -183,6 +183,34 @@ TEST(HabitatCli, SurfacesAndAbundanceInManagementUnits) {
   EXPECT_NE(text.find("32630"), std::string::npos);
 }
 
+TEST(HabitatCli, TellsTheClusteredSpeciesFromTheHabitatFollowingOne) {
+  // The generator: sedge is inhomogeneous Poisson in moisture, the orchid a Thomas process
+  // (2.5 parents per ha, sigma 7 m) indifferent to habitat.
+  const auto r = run_cli(habitat("sightings", "plots", moisture() + " --json -"));
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  const auto doc = nlohmann::json::parse(r.out);
+  EXPECT_EQ(doc["simulations"], 199);
+  std::map<std::string, nlohmann::json> by_species;
+  for (const auto& c : doc["clustering"])
+    if (!c["species"].is_null()) by_species[c["species"].get<std::string>()] = c;
+  ASSERT_EQ(by_species.size(), 2u);
+  EXPECT_EQ(by_species["sedge"]["verdict"], "explained by habitat");
+  EXPECT_EQ(by_species["orchid"]["verdict"], "clustered beyond habitat");
+  const auto& thomas = by_species["orchid"]["thomas"];
+  const auto truth_orchid = truth()["plot_species"]["orchid"];
+  // Within 30% of the generating sigma and parent intensity (one pattern of about 470 plants).
+  EXPECT_NEAR(thomas["sigma_m"].get<double>(), truth_orchid["sigma_m"].get<double>(), 0.3 * 7.0);
+  EXPECT_NEAR(thomas["kappa"].get<double>(), truth_orchid["parents_ha"].get<double>(), 0.3 * 2.5);
+  EXPECT_GT(thomas["fit_test"]["dclf_p_value"].get<double>(), 0.05);
+  for (const char* key : {"dclf_p_value", "mad_p_value", "departures"})
+    EXPECT_TRUE(by_species["sedge"]["inhomogeneous_l_test"].contains(key)) << key;
+  // The same numbers on one thread as on two.
+  const auto one = run_cli(habitat("sightings", "plots", moisture() + " --threads 1 --json -"));
+  const auto two = run_cli(habitat("sightings", "plots", moisture() + " --threads 2 --json -"));
+  ASSERT_EQ(one.exit_code, 0) << one.err;
+  EXPECT_EQ(one.out, two.out);
+}
+
 TEST(HabitatCli, RefusesBadCovariatesNamingThem) {
   expect_refused(run_cli(habitat("sightings", "plots", "")), "needs at least one --covariate");
   expect_refused(run_cli(habitat("sightings", "plots", "--covariate moisture")), "--covariate 'moisture'");

@@ -5,6 +5,7 @@
 #include <vector>
 
 #include "stipple/geometry/survey.hpp"
+#include "stipple/habitat/clustering.hpp"
 #include "stipple/habitat/habitat_model.hpp"
 #include "stipple/habitat/prediction.hpp"
 #include "stipple/input_facts.hpp"
@@ -26,6 +27,10 @@ struct HabitatRunFacts {
   std::vector<Covariate> covariates;
   /// Expected numbers in management units, when asked for.
   std::vector<AbundanceEstimate> abundance;
+  /// What habitat leaves unexplained, per species (empty when no simulations ran).
+  std::vector<SpeciesClustering> clustering;
+  std::size_t simulations = 0;
+  std::uint64_t seed = 0;
   /// The intensity surfaces written (GeoTIFF paths).
   std::vector<std::string> surfaces;
 };

@@ -30,6 +30,12 @@ namespace stipple {
 [[nodiscard]] std::vector<Point> simulate_thomas(const Window& window, double kappa_per_m2, double mean_offspring,
                                                  double sigma_m, Engine& engine);
 
+/// A Matern cluster process: parents Poisson(kappa) on the window dilated by R, each with
+/// Poisson(mu) offspring uniform in the disc of radius R about it; offspring inside the
+/// window are kept. Intensity kappa * mu (Matern 1960; Stoyan, Kendall & Mecke 1995, 5.3).
+[[nodiscard]] std::vector<Point> simulate_matern_cluster(const Window& window, double kappa_per_m2,
+                                                         double mean_offspring, double radius_m, Engine& engine);
+
 /// Matern's hard-core process of type II: a Poisson(intensity) proposal on the window
 /// dilated by the hard-core distance, each point with a uniform mark; a point is deleted
 /// when another point within `hard_core_m` has a smaller mark (Matern 1960; Illian et al.
