@@ -11,6 +11,7 @@
 #include "stipple/error.hpp"
 #include "stipple/format.hpp"
 #include "stipple/habitat/clustering.hpp"
+#include "stipple/habitat/diagnostics.hpp"
 #include "stipple/habitat/habitat_model.hpp"
 #include "stipple/habitat/prediction.hpp"
 #include "stipple/intensity/poisson.hpp"
@@ -34,6 +35,7 @@ struct HabitatCommandOptions {
   std::vector<std::string> bias_distances;
   double spacing = 0.0;
   std::string surface;
+  std::string figures;
   double cell = 0.0;
   std::string abundance;
   std::string abundance_layer;
@@ -237,6 +239,19 @@ int run_habitat(const HabitatCommandOptions& o) {
     }
   }
 
+  if (!o.figures.empty()) {
+    double cell = 0.0;
+    for (const auto& c : covariates)
+      if (!c.distance_to && (cell == 0.0 || std::min(c.grid.cell_width, c.grid.cell_height) < cell))
+        cell = std::min(c.grid.cell_width, c.grid.cell_height);
+    if (cell == 0.0 || std::max(area.width(), area.height()) / cell > 400.0)
+      cell = std::max(area.width(), area.height()) / 200.0;
+    write_folder(o.figures,
+                 habitat_figures(survey.survey, run, result,
+                                 smoothed_residuals(survey.survey, covariates, options, result, cell),
+                                 partial_effects(survey.survey, covariates, options, result)),
+                 inputs);
+  }
   const bool stdout_taken = o.common.json == "-" || o.common.csv == "-";
   if (!o.common.json.empty()) write_output(o.common.json, habitat_json(survey, survey.survey, run, result), inputs);
   if (!o.common.csv.empty()) write_output(o.common.csv, habitat_csv(survey.survey, run, result), inputs);
@@ -302,6 +317,9 @@ Action add_habitat_command(CLI::App& app) {
   command->add_option("--surface", options->surface,
                       "Folder for <species>.tif: predicted intensity per --unit (band 1) and its standard error "
                       "(band 2) over the plots' extent, bias terms at their reference");
+  command->add_option("--figures", options->figures,
+                      "Folder for the figures (SVG): covariate distribution functions, partial effects, residual "
+                      "maps and inhomogeneous L envelopes, with figures.csv");
   command->add_option("--cell", options->cell, "Cell size of --surface, metres (default: the finest raster cell)")
       ->check(positive_number());
   command->add_option("--abundance", options->abundance,

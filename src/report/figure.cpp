@@ -438,6 +438,113 @@ std::string plot_map_svg(const Plot& plot, const MarkedPattern& pattern, const s
   return stable_ids(out);
 }
 
+std::string field_map_svg(const RasterGrid& field, const std::vector<Plot>& plots, const std::string& title,
+                          const std::string& legend, bool diverging) {
+  MapFrame m;
+  m.bounds = Bounds{field.x_min, field.y_min(), field.x_max(), field.y_max};
+  m.scale = std::min(m.map_w / m.bounds.width(), m.map_h / m.bounds.height());
+  m.map_h = m.bounds.height() * m.scale;
+  double lo = std::numeric_limits<double>::infinity();
+  double hi = -lo;
+  for (double v : field.values)
+    if (std::isfinite(v)) lo = std::min(lo, v), hi = std::max(hi, v);
+  if (!(hi >= lo)) lo = hi = 0.0;
+  const double extent = diverging ? std::max({std::abs(lo), std::abs(hi), 1e-300}) : std::max(hi, 1e-300);
+  const Rgb blue = colour_of(0);
+  const Rgb red = colour_of(1);
+  // t in [-1, 1] (diverging) or [0, 1]: white at 0, the palette colour at the ends.
+  const auto colour = [&](double t) {
+    const Rgb& end = t < 0.0 ? blue : (diverging ? red : blue);
+    const double a = std::min(1.0, std::abs(t));
+    return Rgb{1.0 + (end.r - 1.0) * a, 1.0 + (end.g - 1.0) * a, 1.0 + (end.b - 1.0) * a};
+  };
+  const double height = std::max(m.top + m.map_h + 60.0, m.top + 260.0);
+  std::string out;
+  cairo_surface_t* surface = cairo_svg_surface_create_for_stream(append_to_string, &out, 760.0, height);
+  cairo_t* cr = cairo_create(surface);
+  cairo_set_source_rgb(cr, 1, 1, 1);
+  cairo_paint(cr);
+  const double cw = field.cell_width * m.scale;
+  const double ch = field.cell_height * m.scale;
+  const auto window_paths = [&] {
+    cairo_new_path(cr);
+    for (const Plot& plot : plots)
+      for (const auto& polygon : plot.window.shape()) {
+        const auto ring_path = [&](const BgPolygon::ring_type& ring) {
+          for (std::size_t i = 0; i < ring.size(); ++i) {
+            if (i == 0)
+              cairo_move_to(cr, m.X(ring[i].x()), m.Y(ring[i].y()));
+            else
+              cairo_line_to(cr, m.X(ring[i].x()), m.Y(ring[i].y()));
+          }
+          cairo_close_path(cr);
+        };
+        ring_path(polygon.outer());
+        for (const auto& inner : polygon.inners()) ring_path(inner);
+      }
+  };
+  // Cells are drawn clipped to the windows, so their edges follow the plot outlines.
+  cairo_save(cr);
+  window_paths();
+  cairo_set_fill_rule(cr, CAIRO_FILL_RULE_EVEN_ODD);
+  cairo_clip(cr);
+  for (std::size_t r = 0; r < field.rows; ++r)
+    for (std::size_t c = 0; c < field.columns; ++c) {
+      const double v = field.values[r * field.columns + c];
+      if (!std::isfinite(v)) continue;
+      const Rgb k = colour(v / extent);
+      cairo_set_source_rgb(cr, k.r, k.g, k.b);
+      // A hair wider than the cell, so no seams show between cells.
+      cairo_rectangle(cr, m.X(field.x_min) + static_cast<double>(c) * cw,
+                      m.Y(field.y_max) + static_cast<double>(r) * ch, cw + 0.3, ch + 0.3);
+      cairo_fill(cr);
+    }
+  cairo_restore(cr);
+  cairo_set_source_rgb(cr, 0.2, 0.2, 0.2);
+  cairo_set_line_width(cr, 1.2);
+  window_paths();
+  cairo_stroke(cr);
+  // Colour bar: 200 px tall right of the map, labelled at its ends and middle.
+  const double bx = m.left + m.map_w + 40.0;
+  const double by = m.top + 20.0;
+  for (int i = 0; i < 100; ++i) {
+    const double t = diverging ? 1.0 - 2.0 * i / 99.0 : 1.0 - i / 99.0;
+    const Rgb k = colour(t);
+    cairo_set_source_rgb(cr, k.r, k.g, k.b);
+    cairo_rectangle(cr, bx, by + 2.0 * i, 24.0, 2.3);
+    cairo_fill(cr);
+  }
+  cairo_set_source_rgb(cr, 0, 0, 0);
+  cairo_set_line_width(cr, 0.8);
+  cairo_rectangle(cr, bx, by, 24.0, 200.0);
+  cairo_stroke(cr);
+  cairo_select_font_face(cr, "DejaVu Sans", CAIRO_FONT_SLANT_NORMAL, CAIRO_FONT_WEIGHT_NORMAL);
+  cairo_set_font_size(cr, 13.0);
+  const auto label = [&](double y, double value) {
+    cairo_move_to(cr, bx + 30.0, y + 4.0);
+    cairo_show_text(cr, format_significant(value, 3).c_str());
+  };
+  label(by, extent);
+  label(by + 100.0, diverging ? 0.0 : 0.5 * extent);
+  label(by + 200.0, diverging ? -extent : 0.0);
+  // The legend under the bar, broken at its first space when it is long.
+  const auto space = legend.find(' ');
+  const bool two_lines = legend.size() > 12 && space != std::string::npos;
+  cairo_move_to(cr, bx, by + 222.0);
+  cairo_show_text(cr, (two_lines ? legend.substr(0, space) : legend).c_str());
+  if (two_lines) {
+    cairo_move_to(cr, bx, by + 240.0);
+    cairo_show_text(cr, legend.substr(space + 1).c_str());
+  }
+  cairo_set_font_size(cr, 18.0);
+  cairo_move_to(cr, m.left, 32);
+  cairo_show_text(cr, title.c_str());
+  cairo_set_font_size(cr, 13.0);
+  draw_scale_bar(cr, m);
+  finish_drawing(cr, surface, title);
+  return stable_ids(out);
+}
+
 Chart envelope_chart(const EnvelopeFigure& f) {
   Chart c;
   c.title = f.title;

@@ -11,6 +11,7 @@
 #include "stipple/format.hpp"
 #include "stipple/intensity/poisson.hpp"
 #include "stipple/randomness/envelope.hpp"
+#include "stipple/report/figure.hpp"
 #include "stipple/report/tables.hpp"
 #include "stipple/version.hpp"
 
@@ -343,6 +344,96 @@ std::string habitat_table(const InputFacts& input, const Survey& survey, const H
   out << "\nCautions\n";
   for (const auto& c : habitat_cautions()) out << "  - " << c << "\n";
   return out.str();
+}
+
+std::vector<FigureFile> habitat_figures(const Survey& survey, const HabitatRunFacts& run, const HabitatResult& result,
+                                        const std::vector<ResidualField>& residuals,
+                                        const std::vector<PartialEffect>& effects) {
+  using Kind = ChartSeries::Kind;
+  std::vector<FigureFile> files;
+  FileNamer namer;
+  std::string manifest = "file,species,covariate,figure\n";
+  const auto add = [&](const std::string& stem, std::string content, const std::optional<std::size_t>& species,
+                       const std::string& covariate, const std::string& figure, const std::string& shows) {
+    manifest += csv_field(stem + ".svg") + "," + csv_field(species ? survey.species()[*species] : "") + "," +
+                csv_field(covariate) + "," + figure + "\n";
+    files.push_back({stem + ".svg", std::move(content), shows});
+  };
+  const auto name_of = [&](const std::optional<std::size_t>& s) {
+    return s ? survey.species()[*s] : std::string("all-species");
+  };
+  for (const auto& t : result.covariate_tests) {
+    // Step functions: each value's share at or below it, drawn as steps.
+    ChartSeries window{Kind::dashed_line, {}, {}, {}, 2, "window (CSR)"};
+    ChartSeries seen{Kind::line, {}, {}, {}, 0, "sightings"};
+    double previous_window = 0.0;
+    double previous_seen = 0.0;
+    for (std::size_t i = 0; i < t.ks.values.size(); ++i) {
+      const double v = t.ks.values[i];
+      window.x.insert(window.x.end(), {v, v});
+      window.y.insert(window.y.end(), {previous_window, t.ks.window_cdf[i]});
+      seen.x.insert(seen.x.end(), {v, v});
+      seen.y.insert(seen.y.end(), {previous_seen, t.ks.sighting_cdf[i]});
+      previous_window = t.ks.window_cdf[i];
+      previous_seen = t.ks.sighting_cdf[i];
+    }
+    Chart c;
+    c.title = species_text(survey, t.species) + ": " + t.covariate + " at the sightings and over the window";
+    c.x_label = t.covariate;
+    c.y_label = "share at or below";
+    c.caption = "Berman (1986): Z1 = " + format_fixed(t.z1.statistic, 2) + " (p " + format_p_value(t.z1.p_two_sided) +
+                "), KS D = " + format_fixed(t.ks.d, 3) + " (p " + format_p_value(t.ks.p) + ")";
+    c.series = {window, seen};
+    add(namer.stem("ks", {name_of(t.species), t.covariate}), chart_svg(c), t.species, t.covariate,
+        "covariate distribution functions", c.title);
+  }
+  for (const auto& e : effects) {
+    Chart c;
+    c.title = species_text(survey, e.species) + ": fitted intensity against " + e.covariate;
+    c.x_label = e.factor ? e.covariate + " class" : e.covariate;
+    c.y_label = "intensity per " + run.unit;
+    c.caption =
+        "other covariates at their mean over the windows (factors at their reference class, bias terms at "
+        "their reference); band: " +
+        format_general(100.0 * run.confidence) + "% Wald interval";
+    if (e.factor) {
+      for (std::size_t i = 0; i < e.x.size(); ++i)
+        c.series.push_back({Kind::line, {e.x[i], e.x[i]}, {e.low[i], e.high[i]}, {}, 2, i == 0 ? "interval" : ""});
+      c.series.push_back({Kind::points, e.x, e.fit, {}, 0, "fitted"});
+    } else {
+      c.series.push_back({Kind::band, e.x, e.low, e.high, 3, "interval"});
+      c.series.push_back({Kind::line, e.x, e.fit, {}, 0, "fitted"});
+    }
+    add(namer.stem("effect", {name_of(e.species), e.covariate}), chart_svg(c), e.species, e.covariate, "partial effect",
+        c.title);
+  }
+  for (const auto& r : residuals) {
+    const std::string title = species_text(survey, r.species) + ": smoothed raw residuals (Gaussian, sigma " +
+                              format_significant(r.bandwidth_m, 3) + " m)";
+    add(namer.stem("residuals", {name_of(r.species)}),
+        field_map_svg(r.field, survey.plots(), title, "per-" + run.unit + " observed-fitted", true), r.species, "",
+        "residual map", title);
+  }
+  for (const auto& c : run.clustering) {
+    const EnvelopeResult& e = c.l_envelope;
+    EnvelopeFigure f{species_text(survey, c.species) + ": inhomogeneous L with the fitted intensity",
+                     "L_inhom(r) (m)",
+                     e.r,
+                     e.observed,
+                     e.theoretical,
+                     e.pointwise_low,
+                     e.pointwise_high,
+                     e.global_low,
+                     e.global_high,
+                     std::to_string(e.simulations) + " simulations of the fitted model; DCLF p = " +
+                         format_p_value(e.dclf_p_value) + "; " + c.verdict};
+    Chart chart = envelope_chart(f);
+    for (auto& s : chart.series)
+      if (s.label == "CSR (theoretical)") s.label = "inhomogeneous Poisson (theoretical)";
+    add(namer.stem("L", {name_of(c.species)}), chart_svg(chart), c.species, "", "inhomogeneous L envelope", f.title);
+  }
+  files.push_back({"figures.csv", manifest, ""});
+  return files;
 }
 
 std::string habitat_csv(const Survey& survey, const HabitatRunFacts& run, const HabitatResult& result) {

@@ -31,7 +31,6 @@ int screenshot_with_retry(const std::string& command) {
   return status;
 }
 
-
 using test::run_cli;
 using test::sample;
 using test::TempDir;

@@ -211,6 +211,24 @@ TEST(HabitatCli, TellsTheClusteredSpeciesFromTheHabitatFollowingOne) {
   EXPECT_EQ(one.out, two.out);
 }
 
+TEST(HabitatCli, FiguresForEveryCovariateSpeciesAndTest) {
+  TempDir dir;
+  const auto r = run_cli(habitat("sightings", "plots",
+                                 moisture() + " --factor landcover=" + sample("habitat/landcover.tif") +
+                                     " --simulations 39 --figures " + dir.file("fig")));
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  for (const char* name : {"ks-sedge-moisture.svg", "effect-sedge-moisture.svg", "effect-orchid-landcover.svg",
+                           "residuals-orchid.svg", "L-orchid.svg", "figures.csv"}) {
+    const std::string text = test::read_file(dir.file(std::string("fig/") + name));
+    EXPECT_FALSE(text.empty()) << name;
+    if (std::string(name).find(".svg") != std::string::npos) {
+      EXPECT_NE(text.find("<svg"), std::string::npos) << name;
+    }
+  }
+  const std::string manifest = test::read_file(dir.file("fig/figures.csv"));
+  EXPECT_NE(manifest.find("residuals-sedge.svg,sedge,,residual map"), std::string::npos) << manifest;
+}
+
 TEST(HabitatCli, RefusesBadCovariatesNamingThem) {
   expect_refused(run_cli(habitat("sightings", "plots", "")), "needs at least one --covariate");
   expect_refused(run_cli(habitat("sightings", "plots", "--covariate moisture")), "--covariate 'moisture'");

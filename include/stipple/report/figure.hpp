@@ -5,6 +5,7 @@
 #include <string>
 #include <vector>
 
+#include "stipple/geometry/raster_grid.hpp"
 #include "stipple/geometry/survey.hpp"
 
 namespace stipple {
@@ -58,5 +59,12 @@ struct EnvelopeFigure {
 /// distinct colour and marker shape per species (colour-blind-safe), and a scale bar. SVG.
 [[nodiscard]] std::string plot_map_svg(const Plot& plot, const MarkedPattern& pattern,
                                        const std::vector<std::string>& species);
+
+/// A map of a field of values on a grid (a residual or intensity map): each cell filled on a
+/// colour scale — diverging blue-white-vermillion about 0 (Okabe & Ito 2008 ends), or
+/// white-to-blue for a field of one sign — with the plots' outlines over it, a colour bar
+/// labelled `legend` and a scale bar. NaN cells are left blank. SVG.
+[[nodiscard]] std::string field_map_svg(const RasterGrid& field, const std::vector<Plot>& plots,
+                                        const std::string& title, const std::string& legend, bool diverging);
 
 }  // namespace stipple

@@ -6,9 +6,11 @@
 
 #include "stipple/geometry/survey.hpp"
 #include "stipple/habitat/clustering.hpp"
+#include "stipple/habitat/diagnostics.hpp"
 #include "stipple/habitat/habitat_model.hpp"
 #include "stipple/habitat/prediction.hpp"
 #include "stipple/input_facts.hpp"
+#include "stipple/report/figure.hpp"
 
 namespace stipple {
 
@@ -46,5 +48,14 @@ struct HabitatRunFacts {
 /// One row per model coefficient (kind `coefficient`), term test (`term_test`) and
 /// covariate test (`covariate_test`); empty species = all species together.
 [[nodiscard]] std::string habitat_csv(const Survey& survey, const HabitatRunFacts& run, const HabitatResult& result);
+
+/// The figures of `stipple habitat --figures`: per species and covariate the distribution
+/// functions of Berman's KS test (ks-*), the partial effect (effect-*), per species the
+/// smoothed residual map (residuals-*) and the inhomogeneous L envelope (L-*), as SVG, with
+/// a figures.csv manifest.
+[[nodiscard]] std::vector<FigureFile> habitat_figures(const Survey& survey, const HabitatRunFacts& run,
+                                                      const HabitatResult& result,
+                                                      const std::vector<ResidualField>& residuals,
+                                                      const std::vector<PartialEffect>& effects);
 
 }  // namespace stipple
