@@ -36,6 +36,11 @@ struct HabitatCommandOptions {
   double spacing = 0.0;
   std::string surface;
   std::string figures;
+  std::string detection_file;
+  double detection_prob = 1.0;
+  double detection_se = 0.0;
+  CLI::Option* prob_option = nullptr;
+  CLI::Option* se_option = nullptr;
   double cell = 0.0;
   std::string abundance;
   std::string abundance_layer;
@@ -127,7 +132,18 @@ int run_habitat(const HabitatCommandOptions& o) {
     references[n] = *value;
   }
 
+  std::optional<Detection> single;
+  if (o.prob_option->count() > 0 || o.se_option->count() > 0) {
+    if (o.prob_option->count() == 0) throw InputError("--detection-se needs --detection-prob");
+    single = make_detection(o.detection_prob, o.detection_se, "--detection-prob");
+  }
   std::vector<std::string> inputs = input_paths(o.common);
+  if (!o.detection_file.empty()) {
+    options.detection = read_detection_table(o.detection_file, single);
+    inputs.push_back(o.detection_file);
+  } else if (single) {
+    options.detection = DetectionTable::uniform(*single);
+  }
   for (const auto& g : given) inputs.push_back(g.distance ? g.path.substr(0, g.path.rfind(',')) : g.path);
   if (!o.abundance.empty()) inputs.push_back(o.abundance);
   check_outputs({{"--json", o.common.json}, {"--csv", o.common.csv}}, inputs);
@@ -347,6 +363,17 @@ Action add_habitat_command(CLI::App& app) {
   command->add_option("--seed", options->seed, "Seed of the simulations and the parametric bootstrap")
       ->check(whole_number(0, 18446744073709551615ULL))
       ->capture_default_str();
+  command->add_option("--detection", options->detection_file,
+                      "CSV of detection probabilities (species, p, optional se): each species' intensity is "
+                      "divided by its p, as in density");
+  options->prob_option =
+      command
+          ->add_option("--detection-prob", options->detection_prob,
+                       "One detection probability for every species (or for species not in --detection)")
+          ->check(probability());
+  options->se_option =
+      command->add_option("--detection-se", options->detection_se, "Standard error of --detection-prob")
+          ->check(non_negative_number());
   command->add_option("--slopes", options->slopes, "separate: each species its own slopes; shared: common slopes")
       ->check(CLI::IsMember({"separate", "shared"}))
       ->capture_default_str();

@@ -184,8 +184,7 @@ std::vector<SpeciesClustering> analyse_clustering(const Survey& survey, const st
       refit.names.push_back(covariates[c.covariate].name + (c.level ? "=" + format_general(*c.level) : ""));
     // A model fitted with bias terms describes the observed (thinned) pattern: simulate and
     // weight with the bias terms at their actual values.
-    habitat_detail::Predictor observed = p;
-    for (auto& ref : observed.references) ref.reset();
+    const habitat_detail::Predictor observed = p.observed();
     for (std::size_t j = 0; j < survey.plots().size(); ++j) {
       PlotData d;
       d.window = &survey.plots()[j].window;

@@ -66,8 +66,7 @@ std::vector<ResidualField> smoothed_residuals(const Survey& survey, const std::v
   std::vector<double> v;
   for (const auto& predictor : habitat_detail::predictors(result)) {
     // The observed pattern's model: bias terms at their actual values.
-    habitat_detail::Predictor p = predictor;
-    for (auto& r : p.references) r.reset();
+    const habitat_detail::Predictor p = predictor.observed();
     std::vector<Point> points;
     std::vector<double> bandwidths;  // Scott's rule in each plot with sightings
     for (std::size_t j = 0; j < survey.plots().size(); ++j) {

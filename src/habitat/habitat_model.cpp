@@ -287,6 +287,64 @@ HabitatModel fit_shared(const Context& ctx, const std::vector<std::size_t>& spec
   return model;
 }
 
+// Divides each species' intensity by its detection probability: intercept - log p, and the
+// intercept's variance + (se_p / p)^2, added to the covariance in the fit's own
+// parametrisation (for shared slopes, b0 and the species offsets b0 + d_s). The all-species
+// model is corrected only when every species has the same p.
+void correct_for_detection(const Survey& survey, const DetectionTable& detection, const Context& ctx,
+                           HabitatResult& result) {
+  for (HabitatModel& m : result.models) {
+    std::vector<std::size_t> rows;  // intercept rows
+    for (std::size_t i = 0; i < m.coefficients.size(); ++i)
+      if (m.coefficients[i].covariate.empty()) rows.push_back(i);
+    std::vector<Detection> d;
+    if (rows.size() == 1 && !m.species) {
+      // All species together: one p only if every species shares it.
+      const Detection first = detection.for_species(survey.species().front());
+      for (const auto& name : survey.species()) {
+        const Detection other = detection.for_species(name);
+        if (other.probability != first.probability || other.standard_error != first.standard_error) {
+          result.warnings.push_back(
+              "all species together: not corrected for detection (the species' detection "
+              "probabilities differ); see each species' model");
+          d.clear();
+          break;
+        }
+        d = {first};
+      }
+      if (d.empty()) continue;
+    } else {
+      for (std::size_t r : rows) {
+        const std::size_t s = m.coefficients[r].species ? *m.coefficients[r].species : *m.species;
+        d.push_back(detection.for_species(survey.species()[s]));
+      }
+    }
+    const std::size_t p = static_cast<std::size_t>(std::sqrt(static_cast<double>(m.covariance.size())) + 0.5);
+    std::vector<double> var(rows.size());
+    for (std::size_t t = 0; t < rows.size(); ++t) {
+      HabitatCoefficient& c = m.coefficients[rows[t]];
+      var[t] = std::pow(d[t].standard_error / d[t].probability, 2);
+      c.estimate -= std::log(d[t].probability);
+      c.se = std::sqrt(c.se * c.se + var[t]);
+      c.ci_low = c.estimate - ctx.z_crit * c.se;
+      c.ci_high = c.estimate + ctx.z_crit * c.se;
+      c.z = c.estimate / c.se;
+      c.p_value = normal_two_sided_p(c.z);
+      c.detection_probability = d[t].probability;
+    }
+    // Independent errors e_t on the intercepts I_t = b0 + d_t (d_0 = 0): b0 takes e_0, the
+    // offset d_t takes e_t - e_0.
+    const auto add = [&](std::size_t i, std::size_t j, double v) { m.covariance[i * p + j] += v; };
+    add(0, 0, var[0]);
+    for (std::size_t t = 1; t < rows.size(); ++t) {
+      add(0, t, -var[0]);
+      add(t, 0, -var[0]);
+      for (std::size_t u = 1; u < rows.size(); ++u) add(t, u, var[0] + (t == u ? var[t] : 0.0));
+    }
+    m.detection_probability = rows.size() == 1 ? d[0].probability : 1.0;
+  }
+}
+
 HabitatResult fit_core(const Survey& survey, const std::vector<HabitatCovariate>& covariates,
                        const HabitatOptions& options) {
   if (covariates.empty()) throw InputError("habitat model: no covariate given");
@@ -424,6 +482,7 @@ HabitatResult fit_core(const Survey& survey, const std::vector<HabitatCovariate>
     result.models = std::move(separate);  // one species: shared and separate are the same model
   }
   if (result.models.empty()) throw AnalysisError("habitat model: no species could be fitted");
+  if (options.detection) correct_for_detection(survey, *options.detection, ctx, result);
   result.columns = ctx.columns;
 
   // Covariate tests, each numeric covariate against each species and all together.

@@ -20,6 +20,17 @@ struct Predictor {
   std::size_t indicator = 0;                      // 0: none; s: x[s] = 1 (shared slopes, species s > 0)
   std::size_t offset = 1;                         // index of the first slope
   std::vector<std::optional<double>> references;  // per slope column: bias reference
+  std::vector<double> log_detection;              // per intercept: log p it was corrected by (0: none)
+
+  // The model of the pattern as recorded: bias terms at their actual values and the
+  // intercepts not divided by the detection probability, for simulations and residuals.
+  [[nodiscard]] Predictor observed() const {
+    Predictor o = *this;
+    for (auto& r : o.references) r.reset();
+    o.beta[0] += log_detection[0];
+    for (std::size_t t = 1; t < log_detection.size(); ++t) o.beta[t] += log_detection[t] - log_detection[0];
+    return o;
+  }
 };
 
 inline std::vector<Predictor> predictors(const HabitatResult& result) {
@@ -37,6 +48,7 @@ inline std::vector<Predictor> predictors(const HabitatResult& result) {
       p.indicator = s;
       p.beta.push_back(intercepts[0]->estimate);
       for (std::size_t t = 1; t < s_count; ++t) p.beta.push_back(intercepts[t]->estimate - intercepts[0]->estimate);
+      for (const auto* c : intercepts) p.log_detection.push_back(std::log(c->detection_probability.value_or(1.0)));
       for (const auto* c : slopes) {
         p.beta.push_back(c->estimate);
         p.references.push_back(c->bias ? c->bias_reference : std::nullopt);

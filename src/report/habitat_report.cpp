@@ -57,6 +57,7 @@ Json coefficient_json(const Survey& survey, const HabitatCoefficient& c) {
     j["bias"] = c.bias;
     if (c.bias_reference) j["bias_reference"] = *c.bias_reference;
   }
+  if (c.detection_probability) j["detection_probability"] = *c.detection_probability;
   return j;
 }
 
@@ -117,6 +118,7 @@ std::string habitat_json(const InputFacts& input, const Survey& survey, const Ha
       tests.push_back({{"term", t.term}, {"statistic", t.statistic}, {"df", t.df}, {"p_value", t.p_value}});
     j["term_tests"] = std::move(tests);
     j["iterations"] = m.iterations;
+    j["detection_probability"] = m.detection_probability;
     models.push_back(std::move(j));
   }
   doc["models"] = std::move(models);
@@ -254,6 +256,11 @@ std::string habitat_table(const InputFacts& input, const Survey& survey, const H
     for (const auto& t : m.term_tests)
       out << "  drop " << t.term << ": likelihood ratio " << format_fixed(t.statistic, 2) << " on " << t.df << " df, p "
           << format_p_value(t.p_value) << "\n";
+    for (const auto& c : m.coefficients)
+      if (c.detection_probability && *c.detection_probability < 1.0)
+        out << "  " << c.term << (c.species && !m.species ? " " + survey.species()[*c.species] : std::string())
+            << " is corrected for detection: intensity divided by p = " << format_general(*c.detection_probability)
+            << "\n";
     for (const auto& c : m.coefficients)
       if (c.bias_reference)
         out << "  " << c.term << " is observer effort: predictions set it to " << format_general(*c.bias_reference)

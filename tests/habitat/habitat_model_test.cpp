@@ -286,6 +286,35 @@ TEST(HabitatModel, DistanceCovariateMatchesTheExactLikelihoodOfAnExponentialGrad
   EXPECT_GT(r.quadrature->largest_change_in_se, 0.0);
 }
 
+TEST(HabitatModel, KnownDetectionDividesTheIntensityAsInDensity) {
+  // A detected pattern is a thinned Poisson process of intensity p lambda: the corrected
+  // intercept is log(rate / p), with variance 1 / n_0 + (se_p / p)^2 (delta method), as
+  // `density` corrects a count; slopes do not change.
+  HabitatOptions options;
+  DetectionTable table = DetectionTable::uniform(make_detection(0.5, 0.05, "test"));
+  options.detection = table;
+  const HabitatResult plain = fit_habitat(two_region_survey(), {covariate("wet", two_region_raster())}, {});
+  const HabitatResult r = fit_habitat(two_region_survey(), {covariate("wet", two_region_raster())}, options);
+  const HabitatModel& a = model_of(r, 0);
+  EXPECT_NEAR(a.coefficients[0].estimate, std::log(9.0 / 3500.0 * 1e4 / 0.5), 1e-8);
+  EXPECT_NEAR(a.coefficients[0].se, std::sqrt(1.0 / 9.0 + 0.01), 1e-8);
+  EXPECT_EQ(a.coefficients[0].detection_probability, std::optional<double>(0.5));
+  EXPECT_NEAR(a.coefficients[1].estimate, model_of(plain, 0).coefficients[1].estimate, 1e-12);
+  EXPECT_NEAR(a.covariance[0], model_of(plain, 0).covariance[0] + 0.01, 1e-12);
+  // Shared slopes: each species' intercept by its own p.
+  options.slopes = SlopeMode::shared;
+  const HabitatResult shared = fit_habitat(two_region_survey(), {covariate("wet", two_region_raster())}, options);
+  HabitatOptions shared_plain;
+  shared_plain.slopes = SlopeMode::shared;
+  const HabitatResult base = fit_habitat(two_region_survey(), {covariate("wet", two_region_raster())}, shared_plain);
+  for (std::size_t i = 0; i < 2; ++i) {
+    EXPECT_NEAR(shared.models[0].coefficients[i].estimate, base.models[0].coefficients[i].estimate - std::log(0.5),
+                1e-12);
+    EXPECT_NEAR(shared.models[0].coefficients[i].se, std::sqrt(std::pow(base.models[0].coefficients[i].se, 2) + 0.01),
+                1e-12);
+  }
+}
+
 TEST(HabitatModel, RefusesWhatCannotBeFitted) {
   EXPECT_THROW((void)fit_habitat(two_region_survey(), {}, {}), InputError);
   HabitatOptions bad;

@@ -16,6 +16,7 @@
 #include "stipple/geometry/raster_grid.hpp"
 #include "stipple/geometry/survey.hpp"
 #include "stipple/habitat/covariate_tests.hpp"
+#include "stipple/intensity/detection.hpp"
 
 namespace stipple {
 
@@ -51,6 +52,10 @@ struct HabitatOptions {
   double unit_m2 = 1e4;
   /// Exclude window parts and sightings where a covariate has no value, instead of refusing.
   bool drop_missing = false;
+  /// Known detection probabilities: a species' intercept is corrected to the intensity of
+  /// the whole population, log(lambda / p), its variance adding (se_p / p)^2 (delta method),
+  /// as `density` corrects counts. Empty: no correction.
+  std::optional<DetectionTable> detection;
 };
 
 struct HabitatCoefficient {
@@ -69,6 +74,8 @@ struct HabitatCoefficient {
   bool bias = false;
   /// For a bias term: the covariate value at which predictions are made.
   std::optional<double> bias_reference;
+  /// For an intercept corrected for detection: the probability it was divided by.
+  std::optional<double> detection_probability;
 };
 
 /// Likelihood-ratio test for dropping a covariate (all classes of a factor together).
@@ -87,6 +94,9 @@ struct HabitatModel {
   double log_likelihood = 0.0;
   double aic = 0.0;
   std::size_t iterations = 0;
+  /// Detection probability the intercept(s) were divided by (1: none); for a shared model,
+  /// see each intercept's `detection_probability`.
+  double detection_probability = 1.0;
   std::vector<HabitatCoefficient> coefficients;
   std::vector<HabitatTermTest> term_tests;
   /// Covariance of the coefficients as fitted (intercept first, per square metre), row-major.
