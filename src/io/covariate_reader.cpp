@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <filesystem>
 #include <memory>
 #include <set>
 #include <string>
@@ -23,6 +24,12 @@ struct WarpOptionsDeleter {
   void operator()(GDALWarpAppOptions* options) const { GDALWarpAppOptionsFree(options); }
 };
 
+// " (GDAL's message)", or nothing when GDAL left none.
+std::string gdal_reason() {
+  const std::string m = last_gdal_message();
+  return m.empty() ? std::string() : " (" + m + ")";
+}
+
 std::string describe_bounds(double xmin, double ymin, double xmax, double ymax) {
   return "x " + format_general(xmin) + " to " + format_general(xmax) + ", y " + format_general(ymin) + " to " +
          format_general(ymax);
@@ -43,7 +50,7 @@ RasterGrid read_cells(GDALDataset& dataset, const double* gt, int col0, int row0
   grid.values.assign(grid.columns * grid.rows, 0.0);
   if (band->RasterIO(GF_Read, col0, row0, columns, rows, grid.values.data(), columns, rows, GDT_Float64, 0, 0) !=
       CE_None)
-    throw InputError(label + ": cannot read the cells (" + CPLGetLastErrorMsg() + ")");
+    throw InputError(label + ": cannot read the cells" + gdal_reason());
   int has_nodata = 0;
   const double nodata = band->GetNoDataValue(&has_nodata);
   const int mask_flags = band->GetMaskFlags();
@@ -52,7 +59,7 @@ RasterGrid read_cells(GDALDataset& dataset, const double* gt, int col0, int row0
     mask.assign(grid.values.size(), 255);
     if (band->GetMaskBand()->RasterIO(GF_Read, col0, row0, columns, rows, mask.data(), columns, rows, GDT_Byte, 0, 0) !=
         CE_None)
-      throw InputError(label + ": cannot read the mask of valid cells (" + CPLGetLastErrorMsg() + ")");
+      throw InputError(label + ": cannot read the mask of valid cells" + gdal_reason());
   }
   for (std::size_t i = 0; i < grid.values.size(); ++i) {
     double& v = grid.values[i];
@@ -71,7 +78,11 @@ CovariateRaster read_covariate_raster(const std::string& path, const AnalysisCrs
   out.label = path + " (band 1)";
   DatasetPtr dataset(
       GDALDataset::FromHandle(GDALOpenEx(path.c_str(), GDAL_OF_RASTER | GDAL_OF_READONLY, nullptr, nullptr, nullptr)));
-  if (!dataset) throw InputError(path + ": not a readable raster (" + CPLGetLastErrorMsg() + ")");
+  if (!dataset) {
+    std::error_code ec;
+    if (!std::filesystem::exists(path, ec)) throw InputError(path + ": no such file");
+    throw InputError(path + ": not a raster GDAL can read" + gdal_reason());
+  }
   if (dataset->GetRasterCount() < 1) throw InputError(path + ": has no raster band");
   if (dataset->GetRasterCount() > 1)
     out.notes.push_back(out.label + ": band 1 used of " + std::to_string(dataset->GetRasterCount()));
@@ -135,13 +146,12 @@ CovariateRaster read_covariate_raster(const std::string& path, const AnalysisCrs
   for (auto& a : args) argv.push_back(a.data());
   argv.push_back(nullptr);
   std::unique_ptr<GDALWarpAppOptions, WarpOptionsDeleter> options(GDALWarpAppOptionsNew(argv.data(), nullptr));
-  if (!options) throw InputError(path + ": cannot set up the reprojection (" + CPLGetLastErrorMsg() + ")");
+  if (!options) throw InputError(path + ": cannot set up the reprojection" + gdal_reason());
   GDALDatasetH source_handle = GDALDataset::ToHandle(dataset.get());
   int usage_error = 0;
   DatasetPtr warped(GDALDataset::FromHandle(GDALWarp("", nullptr, 1, &source_handle, options.get(), &usage_error)));
   if (!warped)
-    throw InputError(path + ": cannot be reprojected from " + out.source_crs + " to " + crs.code + " (" +
-                     CPLGetLastErrorMsg() + ")");
+    throw InputError(path + ": cannot be reprojected from " + out.source_crs + " to " + crs.code + gdal_reason());
   double wgt[6];
   warped->GetGeoTransform(wgt);
   out.grid = read_cells(*warped, wgt, 0, 0, warped->GetRasterXSize(), warped->GetRasterYSize(), out.label);

@@ -25,6 +25,9 @@ std::string moisture() {
   return "--covariate moisture=" + sample("habitat/moisture.tif");
 }
 
+// Most tests need no simulations of the fitted model (they take most of a run's time).
+const std::string no_sims = " --simulations 0";
+
 nlohmann::json truth() {
   std::ifstream file(sample("habitat/generating-values.json"));
   return nlohmann::json::parse(file);
@@ -37,7 +40,7 @@ const nlohmann::json& model(const nlohmann::json& doc, const std::string& specie
 }
 
 TEST(HabitatCli, DemoRecoversTheGeneratingCoefficientsOfTheSedge) {
-  const auto r = run_cli(habitat("sightings", "plots", moisture() + " --json -"));
+  const auto r = run_cli(habitat("sightings", "plots", moisture() + no_sims + " --json -"));
   ASSERT_EQ(r.exit_code, 0) << r.err;
   const auto doc = nlohmann::json::parse(r.out);
   const auto generating = truth()["plot_species"]["sedge"]["log_intensity_per_ha"];
@@ -54,7 +57,7 @@ TEST(HabitatCli, DemoRecoversTheGeneratingCoefficientsOfTheSedge) {
 }
 
 TEST(HabitatCli, JsonContractHolds) {
-  const auto r = run_cli(habitat("sightings", "plots", moisture() + " --json -"));
+  const auto r = run_cli(habitat("sightings", "plots", moisture() + no_sims + " --json -"));
   ASSERT_EQ(r.exit_code, 0) << r.err;
   const auto doc = nlohmann::json::parse(r.out);
   EXPECT_EQ(doc["crs"], "EPSG:32630");
@@ -88,14 +91,14 @@ TEST(HabitatCli, JsonContractHolds) {
 }
 
 TEST(HabitatCli, TableCsvAndSharedSlopes) {
-  const auto table = run_cli(habitat("sightings", "plots", moisture()));
+  const auto table = run_cli(habitat("sightings", "plots", moisture() + no_sims));
   ASSERT_EQ(table.exit_code, 0) << table.err;
   EXPECT_NE(table.out.find("Species sedge"), std::string::npos);
   EXPECT_NE(table.out.find("Cautions"), std::string::npos);
-  const auto csv = run_cli(habitat("sightings", "plots", moisture() + " --csv -"));
+  const auto csv = run_cli(habitat("sightings", "plots", moisture() + no_sims + " --csv -"));
   ASSERT_EQ(csv.exit_code, 0) << csv.err;
   EXPECT_EQ(csv.out.rfind("kind,species,term,covariate,estimate,se,ci_low,ci_high,z,p_value", 0), 0u);
-  const auto shared = run_cli(habitat("sightings", "plots", moisture() + " --slopes shared --json -"));
+  const auto shared = run_cli(habitat("sightings", "plots", moisture() + no_sims + " --slopes shared --json -"));
   ASSERT_EQ(shared.exit_code, 0) << shared.err;
   const auto doc = nlohmann::json::parse(shared.out);
   EXPECT_EQ(doc["slopes"], "shared");
@@ -105,8 +108,8 @@ TEST(HabitatCli, TableCsvAndSharedSlopes) {
 }
 
 TEST(HabitatCli, FactorStatesItsReferenceClass) {
-  const auto r = run_cli(
-      habitat("opportunistic", "compartment", "--factor landcover=" + sample("habitat/landcover.tif") + " --json -"));
+  const auto r = run_cli(habitat("opportunistic", "compartment",
+                                 "--factor landcover=" + sample("habitat/landcover.tif") + no_sims + " --json -"));
   ASSERT_EQ(r.exit_code, 0) << r.err;
   const auto doc = nlohmann::json::parse(r.out);
   EXPECT_EQ(doc["covariates"][0]["kind"], "factor");
@@ -144,7 +147,7 @@ TEST(HabitatCli, ThinnedObserverPatternIsCorrectedByTheDistanceToPaths) {
   EXPECT_EQ(coefficients[3]["bias_reference"], 0.0);
   EXPECT_EQ(doc["quadrature"]["spacing_m"], 10.0);
   EXPECT_LT(doc["quadrature"]["largest_change_in_se"].get<double>(), 0.1);
-  const auto naive = run_cli(habitat("opportunistic", "compartment", cover + " --json -"));
+  const auto naive = run_cli(habitat("opportunistic", "compartment", cover + no_sims + " --json -"));
   ASSERT_EQ(naive.exit_code, 0) << naive.err;
   EXPECT_LT(nlohmann::json::parse(naive.out)["models"][0]["coefficients"][0]["ci"][1].get<double>(), heath - 1.0);
 }
@@ -158,7 +161,7 @@ TEST(HabitatCli, SurfacesAndAbundanceInManagementUnits) {
   const auto r = run_cli(habitat("opportunistic", "compartment",
                                  "--factor landcover=" + sample("habitat/landcover.tif") +
                                      " --bias-distance path=" + gpkg + ",paths --abundance " + gpkg +
-                                     " --abundance-layer plots --surface " + dir.file("maps") + " --json -"));
+                                     " --abundance-layer plots --surface " + dir.file("maps") + no_sims + " --json -"));
   ASSERT_EQ(r.exit_code, 0) << r.err;
   const auto doc = nlohmann::json::parse(r.out);
   ASSERT_EQ(doc["abundance"].size(), 3u);
@@ -186,10 +189,10 @@ TEST(HabitatCli, SurfacesAndAbundanceInManagementUnits) {
 TEST(HabitatCli, TellsTheClusteredSpeciesFromTheHabitatFollowingOne) {
   // The generator: sedge is inhomogeneous Poisson in moisture, the orchid a Thomas process
   // (2.5 parents per ha, sigma 7 m) indifferent to habitat.
-  const auto r = run_cli(habitat("sightings", "plots", moisture() + " --json -"));
+  const auto r = run_cli(habitat("sightings", "plots", moisture() + " --simulations 99 --json -"));
   ASSERT_EQ(r.exit_code, 0) << r.err;
   const auto doc = nlohmann::json::parse(r.out);
-  EXPECT_EQ(doc["simulations"], 199);
+  EXPECT_EQ(doc["simulations"], 99);
   std::map<std::string, nlohmann::json> by_species;
   for (const auto& c : doc["clustering"])
     if (!c["species"].is_null()) by_species[c["species"].get<std::string>()] = c;
@@ -205,8 +208,8 @@ TEST(HabitatCli, TellsTheClusteredSpeciesFromTheHabitatFollowingOne) {
   for (const char* key : {"dclf_p_value", "mad_p_value", "departures"})
     EXPECT_TRUE(by_species["sedge"]["inhomogeneous_l_test"].contains(key)) << key;
   // The same numbers on one thread as on two.
-  const auto one = run_cli(habitat("sightings", "plots", moisture() + " --threads 1 --json -"));
-  const auto two = run_cli(habitat("sightings", "plots", moisture() + " --threads 2 --json -"));
+  const auto one = run_cli(habitat("sightings", "plots", moisture() + " --simulations 39 --threads 1 --json -"));
+  const auto two = run_cli(habitat("sightings", "plots", moisture() + " --simulations 39 --threads 2 --json -"));
   ASSERT_EQ(one.exit_code, 0) << one.err;
   EXPECT_EQ(one.out, two.out);
 }
@@ -245,7 +248,8 @@ TEST(HabitatCli, RefusesBadCovariatesNamingThem) {
   const auto r = run_cli(habitat("sightings", "plots", "--covariate moisture=" + part));
   expect_refused(r, "has no value of covariate 'moisture'");
   EXPECT_NE(r.err.find("--drop-missing"), std::string::npos);
-  const auto dropped = run_cli(habitat("sightings", "plots", "--covariate moisture=" + part + " --drop-missing"));
+  const auto dropped =
+      run_cli(habitat("sightings", "plots", "--covariate moisture=" + part + " --drop-missing" + no_sims));
   ASSERT_EQ(dropped.exit_code, 0) << dropped.err;
   EXPECT_NE(dropped.out.find("left out of the model"), std::string::npos) << dropped.out;
 }

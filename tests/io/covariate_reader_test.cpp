@@ -131,8 +131,8 @@ TEST(RasterReader, RefusesWhatCannotBePlaced) {
     }
   };
   refused(no_crs, area, "has no CRS");
-  refused(dir.write("notes.txt", "not a raster\n"), area, "not a readable raster");
-  refused(dir.file("missing.tif"), area, "not a readable raster");
+  refused(dir.write("notes.txt", "not a raster\n"), area, "not a raster GDAL can read");
+  refused(dir.file("missing.tif"), area, "no such file");
   const std::string far = write_tiff(dir, "far.tif", 32630, gt, 10, 10, [](int, int) { return 1.0; });
   refused(far, Bounds{600000.0, 6100000.0, 600100.0, 6100100.0}, "does not overlap the survey");
 }
