@@ -63,16 +63,13 @@ std::pair<std::string, std::string> name_value(const std::string& text, const st
   return {text.substr(0, eq), text.substr(eq + 1)};
 }
 
-Bounds survey_bounds(const Survey& survey) {
-  Bounds b = survey.plots().front().window.bounds();
-  for (const Plot& p : survey.plots()) {
-    const Bounds& q = p.window.bounds();
-    b.xmin = std::min(b.xmin, q.xmin);
-    b.ymin = std::min(b.ymin, q.ymin);
-    b.xmax = std::max(b.xmax, q.xmax);
-    b.ymax = std::max(b.ymax, q.ymax);
-  }
-  return b;
+// The finest raster cell among the covariates, else 1/200 of the survey's extent.
+double finest_cell(const std::vector<HabitatCovariate>& covariates, const Bounds& area) {
+  double cell = 0.0;
+  for (const auto& c : covariates)
+    if (!c.distance_to && (cell == 0.0 || std::min(c.grid.cell_width, c.grid.cell_height) < cell))
+      cell = std::min(c.grid.cell_width, c.grid.cell_height);
+  return cell > 0.0 ? cell : std::max(area.width(), area.height()) / 200.0;
 }
 
 int run_habitat(const HabitatCommandOptions& o) {
@@ -148,7 +145,7 @@ int run_habitat(const HabitatCommandOptions& o) {
   if (!o.abundance.empty()) inputs.push_back(o.abundance);
   check_outputs({{"--json", o.common.json}, {"--csv", o.common.csv}}, inputs);
   LoadedSurvey survey = load_survey(to_read_options(o.common));
-  const Bounds area = survey_bounds(survey.survey);
+  const Bounds area = plots_bounds(survey.survey);
 
   std::vector<HabitatCovariate> covariates;
   HabitatRunFacts run;
@@ -228,13 +225,7 @@ int run_habitat(const HabitatCommandOptions& o) {
                                   "the expected number there extrapolates the model");
   }
   if (!o.surface.empty()) {
-    double cell = o.cell;
-    if (cell == 0.0) {
-      for (const auto& c : covariates)
-        if (!c.distance_to && (cell == 0.0 || std::min(c.grid.cell_width, c.grid.cell_height) < cell))
-          cell = std::min(c.grid.cell_width, c.grid.cell_height);
-      if (cell == 0.0) cell = std::max(area.width(), area.height()) / 200.0;
-    }
+    const double cell = o.cell > 0.0 ? o.cell : finest_cell(covariates, area);
     // Every surface is computed before the folder is made, so a refusal leaves nothing behind.
     const std::vector<HabitatSurface> surfaces =
         predict_surfaces(survey.survey, covariates, options, result, area, cell);
@@ -256,12 +247,9 @@ int run_habitat(const HabitatCommandOptions& o) {
   }
 
   if (!o.figures.empty()) {
-    double cell = 0.0;
-    for (const auto& c : covariates)
-      if (!c.distance_to && (cell == 0.0 || std::min(c.grid.cell_width, c.grid.cell_height) < cell))
-        cell = std::min(c.grid.cell_width, c.grid.cell_height);
-    if (cell == 0.0 || std::max(area.width(), area.height()) / cell > 400.0)
-      cell = std::max(area.width(), area.height()) / 200.0;
+    // Residual maps: the finest raster cell, but no finer than 1/400 of the extent.
+    double cell = finest_cell(covariates, area);
+    if (std::max(area.width(), area.height()) / cell > 400.0) cell = std::max(area.width(), area.height()) / 200.0;
     write_folder(o.figures,
                  habitat_figures(survey.survey, run, result,
                                  smoothed_residuals(survey.survey, covariates, options, result, cell),

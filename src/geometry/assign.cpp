@@ -46,6 +46,19 @@ void check_plots(const std::vector<Plot>& plots) {
 
 }  // namespace
 
+Bounds plots_bounds(const Survey& survey) {
+  if (survey.plots().empty()) throw AnalysisError("the survey has no plots");
+  Bounds b = survey.plots().front().window.bounds();
+  for (const Plot& p : survey.plots()) {
+    const Bounds& q = p.window.bounds();
+    b.xmin = std::min(b.xmin, q.xmin);
+    b.ymin = std::min(b.ymin, q.ymin);
+    b.xmax = std::max(b.xmax, q.xmax);
+    b.ymax = std::max(b.ymax, q.ymax);
+  }
+  return b;
+}
+
 std::size_t Survey::sighting_count() const {
   std::size_t n = 0;
   for (const auto& pattern : patterns_) n += pattern.points.size();

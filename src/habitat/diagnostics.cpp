@@ -21,18 +21,6 @@ namespace {
 constexpr double nan = std::numeric_limits<double>::quiet_NaN();
 constexpr double pi = boost::math::double_constants::pi;
 
-Bounds plots_bounds(const Survey& survey) {
-  Bounds b = survey.plots().front().window.bounds();
-  for (const Plot& p : survey.plots()) {
-    const Bounds& q = p.window.bounds();
-    b.xmin = std::min(b.xmin, q.xmin);
-    b.ymin = std::min(b.ymin, q.ymin);
-    b.xmax = std::max(b.xmax, q.xmax);
-    b.ymax = std::max(b.ymax, q.ymax);
-  }
-  return b;
-}
-
 struct Piece {
   Point centre;
   double area_m2;

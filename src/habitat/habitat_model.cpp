@@ -508,18 +508,6 @@ HabitatResult fit_core(const Survey& survey, const std::vector<HabitatCovariate>
   return result;
 }
 
-Bounds survey_bounds(const Survey& survey) {
-  Bounds b = survey.plots().front().window.bounds();
-  for (const Plot& p : survey.plots()) {
-    const Bounds& q = p.window.bounds();
-    b.xmin = std::min(b.xmin, q.xmin);
-    b.ymin = std::min(b.ymin, q.ymin);
-    b.xmax = std::max(b.xmax, q.xmax);
-    b.ymax = std::max(b.ymax, q.ymax);
-  }
-  return b;
-}
-
 // Square cells of `spacing` over `b`, aligned to `align` (a raster's corner) when given.
 RasterGrid quadrature_grid(const Bounds& b, double spacing, const RasterGrid* align) {
   RasterGrid g;
@@ -551,7 +539,7 @@ HabitatResult fit_habitat(const Survey& survey, const std::vector<HabitatCovaria
   }
   if (distance_names.empty()) return fit_core(survey, covariates, options);
 
-  const Bounds b = survey_bounds(survey);
+  const Bounds b = plots_bounds(survey);
   const auto with_spacing = [&](double factor) {
     std::vector<HabitatCovariate> out = covariates;
     for (auto& c : out) {

@@ -11,6 +11,7 @@
 #include "habitat/predictor.hpp"
 #include "stipple/error.hpp"
 #include "stipple/format.hpp"
+#include "stipple/simulate/engine.hpp"
 #include "stipple/stats/interval.hpp"
 
 namespace stipple {
@@ -163,11 +164,11 @@ std::vector<AbundanceEstimate> predict_abundance(const Survey& survey, const std
         e.ci_high = e.expected * std::exp(z * log_se);
         e.method = "delta method on the log scale";
       } else {
-        // One engine per unit and model, seeded from the run's seed: results do not depend
-        // on the order or number of units computed before.
-        std::seed_seq seq{static_cast<std::uint32_t>(abundance.seed), static_cast<std::uint32_t>(abundance.seed >> 32),
-                          static_cast<std::uint32_t>(u), static_cast<std::uint32_t>(m)};
-        std::mt19937_64 engine(seq);
+        // One engine per unit and model, seeded from the run's seed and their names: results
+        // do not depend on the order or number of units computed before.
+        Engine engine(derive_seed(
+            abundance.seed,
+            seed_key({"abundance", unit.id, p.species ? survey.species()[*p.species] : "(all)", std::to_string(m)})));
         std::normal_distribution<double> normal;
         const std::size_t k = p.beta.size();
         const std::vector<double> l = cholesky(p.covariance, k);

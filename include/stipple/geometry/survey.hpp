@@ -83,6 +83,9 @@ struct SightingTable {
   void check() const;
 };
 
+/// The bounding rectangle of every plot window; throws AnalysisError when there are no plots.
+[[nodiscard]] Bounds plots_bounds(const Survey& survey);
+
 /// Assigns each sighting to a plot: by its plot attribute when it carries one (then a
 /// sighting outside its own polygon is kept and listed in `off_window_feature_ids`),
 /// otherwise by point-in-polygon (boundary inclusive). Throws InputError when plot ids
