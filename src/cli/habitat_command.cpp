@@ -120,8 +120,9 @@ int run_habitat(const HabitatCommandOptions& o) {
                          "' is already used by " + given[j].option);
   std::map<std::string, double> references;
   for (const auto& t : o.bias_references) {
-    auto [n, v] = name_value(t, "--bias-reference");
-    const auto it = std::find_if(given.begin(), given.end(), [&](const Given& g) { return g.name == n; });
+    const auto [n, v] = name_value(t, "--bias-reference");
+    const std::string name = n;
+    const auto it = std::find_if(given.begin(), given.end(), [&](const Given& g) { return g.name == name; });
     if (it == given.end() || !it->bias)
       throw InputError("--bias-reference " + t + ": '" + n + "' is not a --bias or --bias-distance term");
     const auto value = parse_finite_number(v);

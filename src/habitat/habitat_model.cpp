@@ -149,6 +149,7 @@ LoglinearDesign species_design(const Context& ctx, std::optional<std::size_t> sp
 LoglinearDesign shared_design(const Context& ctx, const std::vector<std::size_t>& species,
                               std::optional<std::size_t> without) {
   std::vector<LoglinearDesign> parts;
+  parts.reserve(species.size());
   for (std::size_t s : species) parts.push_back(species_design(ctx, s, without));
   LoglinearDesign d;
   const std::size_t extra = species.size() - 1;
@@ -319,7 +320,7 @@ void correct_for_detection(const Survey& survey, const DetectionTable& detection
         d.push_back(detection.for_species(survey.species()[s]));
       }
     }
-    const std::size_t p = static_cast<std::size_t>(std::sqrt(static_cast<double>(m.covariance.size())) + 0.5);
+    const auto p = static_cast<std::size_t>(std::lround(std::sqrt(static_cast<double>(m.covariance.size()))));
     std::vector<double> var(rows.size());
     for (std::size_t t = 0; t < rows.size(); ++t) {
       HabitatCoefficient& c = m.coefficients[rows[t]];

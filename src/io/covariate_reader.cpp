@@ -143,6 +143,7 @@ CovariateRaster read_covariate_raster(const std::string& path, const AnalysisCrs
                                    format_round_trip(area.xmax + margin),
                                    format_round_trip(area.ymax + margin)};
   std::vector<char*> argv;
+  argv.reserve(args.size() + 1);
   for (auto& a : args) argv.push_back(a.data());
   argv.push_back(nullptr);
   std::unique_ptr<GDALWarpAppOptions, WarpOptionsDeleter> options(GDALWarpAppOptionsNew(argv.data(), nullptr));
