@@ -314,9 +314,8 @@ struct MapFrame {
   [[nodiscard]] double Y(double y) const { return top + map_h - (y - bounds.ymin) * scale; }
 };
 
-// The window's parts and holes, filled even-odd and outlined.
-void draw_window(cairo_t* cr, const MapFrame& m, const Window& window) {
-  cairo_new_path(cr);
+// Adds the window's rings (parts and holes) to the current path.
+void add_window_path(cairo_t* cr, const MapFrame& m, const Window& window) {
   const auto ring_path = [&](const BgPolygon::ring_type& ring) {
     for (std::size_t i = 0; i < ring.size(); ++i) {
       if (i == 0)
@@ -330,6 +329,12 @@ void draw_window(cairo_t* cr, const MapFrame& m, const Window& window) {
     ring_path(polygon.outer());
     for (const auto& inner : polygon.inners()) ring_path(inner);
   }
+}
+
+// The window's parts and holes, filled even-odd and outlined.
+void draw_window(cairo_t* cr, const MapFrame& m, const Window& window) {
+  cairo_new_path(cr);
+  add_window_path(cr, m, window);
   cairo_set_fill_rule(cr, CAIRO_FILL_RULE_EVEN_ODD);
   cairo_set_source_rgb(cr, 0.96, 0.96, 0.93);
   cairo_fill_preserve(cr);
@@ -468,20 +473,7 @@ std::string field_map_svg(const RasterGrid& field, const std::vector<Plot>& plot
   const double ch = field.cell_height * m.scale;
   const auto window_paths = [&] {
     cairo_new_path(cr);
-    for (const Plot& plot : plots)
-      for (const auto& polygon : plot.window.shape()) {
-        const auto ring_path = [&](const BgPolygon::ring_type& ring) {
-          for (std::size_t i = 0; i < ring.size(); ++i) {
-            if (i == 0)
-              cairo_move_to(cr, m.X(ring[i].x()), m.Y(ring[i].y()));
-            else
-              cairo_line_to(cr, m.X(ring[i].x()), m.Y(ring[i].y()));
-          }
-          cairo_close_path(cr);
-        };
-        ring_path(polygon.outer());
-        for (const auto& inner : polygon.inners()) ring_path(inner);
-      }
+    for (const Plot& plot : plots) add_window_path(cr, m, plot.window);
   };
   // Cells are drawn clipped to the windows, so their edges follow the plot outlines.
   cairo_save(cr);
